@@ -20,7 +20,7 @@ const (
 // Symbol returns "°C" or "°F".
 func (u Units) Symbol() string { return "°" + string(u) }
 
-// FromCelsius converts a temperature difference-free value in °C to these units.
+// FromCelsius converts a temperature (not a difference) given in °C to these units.
 func (u Units) FromCelsius(c float64) float64 {
 	if u == Fahrenheit {
 		return c*9/5 + 32
@@ -40,6 +40,7 @@ type Series struct {
 	// "(tmax + tmin)/2 from columns TMAX, TMIN" or "column tavg".
 	MeanFrom string
 	Warnings []string // things the user should know (inferred units, ...)
+	SHA256   string   // hex SHA-256 of the input bytes, for the manifest
 }
 
 // End returns the last day of the series.
