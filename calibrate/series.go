@@ -37,7 +37,7 @@ type Series struct {
 	Temps []float64     // daily means in Units; NaN = missing; first and last are never NaN
 	Units Units
 	// MeanFrom says how the daily mean was obtained, e.g.
-	// "(tmax + tmin)/2 from columns TMAX, TMIN" or "column tavg".
+	// "(max + min)/2 from columns TMAX, TMIN" or "column tavg".
 	MeanFrom string
 	Warnings []string // things the user should know (inferred units, ...)
 	SHA256   string   // hex SHA-256 of the input bytes, for the manifest

@@ -1,0 +1,580 @@
+package calibrate
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat"
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"wxstress/calendar"
+	"wxstress/diagnose"
+	"wxstress/model"
+	"wxstress/shocks"
+)
+
+// Settings choose the model's structure. A nil *Settings means the defaults:
+// harmonics by BIC, AR(1), trend "auto", shock family by AIC.
+type Settings struct {
+	Harmonics int    // 1..4; 0 chooses by BIC among 1..4
+	AROrder   int    // 1..5; 0 means 1
+	Trend     string // "auto" (default), "linear" or "none"
+	Shocks    string // "auto" (default), "normal", "t", "skew-t" or "bootstrap"
+}
+
+// Limits and rules of the fit.
+const (
+	MaxHarmonics = 4
+	MaxAROrder   = 5
+	// MinTrendYears is the record length from which "auto" keeps a linear
+	// trend. Annual mean temperatures wander with a standard deviation of
+	// roughly 0.5–0.8 °C from year to year, so over a record of N years the
+	// slope's standard error is about 0.6·√(12/N³) °C a year: 0.35 °C per
+	// decade at N = 15, already above the 0.1–0.3 °C per decade of observed
+	// warming, and several °C per decade at N = 4. Below 15 years a fitted
+	// slope is mostly weather, and extrapolating it to a target year would
+	// shift every simulated day by that error.
+	MinTrendYears = 15
+	// ARAdviceMargin is the BIC improvement that counts as a clear
+	// preference for a higher AR order (10: "very strong" evidence on the
+	// Kass–Raftery scale).
+	ARAdviceMargin = 10
+	acfLags        = 30
+	qqPoints       = 200
+)
+
+// decade is the trend column's scale in the design matrix: t/decade keeps
+// the columns of comparable size, which conditions the QR solve.
+const decade = 10 * calendar.DaysPerYear
+
+// ErrFit is wrapped by errors that come from the data being unfit for the
+// model (too short, too many gaps in a month, degenerate values).
+var ErrFit = errors.New("cannot fit")
+
+// Validate checks the settings and names the valid choices.
+func (s *Settings) Validate() error {
+	if s.Harmonics < 0 || s.Harmonics > MaxHarmonics {
+		return fmt.Errorf("calibrate: harmonics %d: want auto or 1..%d", s.Harmonics, MaxHarmonics)
+	}
+	if s.AROrder < 0 || s.AROrder > MaxAROrder {
+		return fmt.Errorf("calibrate: AR order %d: want 1..%d", s.AROrder, MaxAROrder)
+	}
+	switch s.Trend {
+	case "", "auto", "linear", "none":
+	default:
+		return fmt.Errorf("calibrate: trend %q: want auto, linear or none", s.Trend)
+	}
+	switch s.Shocks {
+	case "", "auto", model.FamilyNormal, model.FamilyStudentT, model.FamilySkewT, model.FamilyBootstrap:
+	default:
+		return fmt.Errorf("calibrate: shocks %q: want auto, normal, t, skew-t or bootstrap", s.Shocks)
+	}
+	return nil
+}
+
+// Result is a fitted model with the series it came from.
+type Result struct {
+	Model   *model.File
+	Series  *Series
+	Fitted  []float64 // S(t) on the series' grid
+	Anomaly []float64 // X = T − S on the grid, NaN where T is missing
+	Z       []float64 // standardized innovations on the grid, NaN where undefined
+}
+
+// Fit calibrates the temperature model to s. The model's tool_version is
+// left for the caller to set.
+func Fit(s *Series, set *Settings) (*Result, error) {
+	if set == nil {
+		set = &Settings{}
+	}
+	if err := set.Validate(); err != nil {
+		return nil, err
+	}
+	p := max(set.AROrder, 1)
+	obs := observed(s)
+	if len(obs) < 2*365 {
+		return nil, fmt.Errorf("%s: %w: %d days with values, at least 730 needed", s.Name, ErrFit, len(obs))
+	}
+	years := float64(len(s.Temps)) / calendar.DaysPerYear
+	trendKind, rule := chooseTrend(set.Trend, years)
+
+	f := &model.File{
+		Schema:        model.Schema,
+		SchemaVersion: model.SchemaVersion,
+		Data:          dataInfo(s),
+		Diagnostics:   &model.Diagnostics{Observations: len(obs)},
+	}
+	d := f.Diagnostics
+
+	// Mean model: harmonics by BIC unless fixed.
+	var mean olsFit
+	k := set.Harmonics
+	for K := 1; K <= MaxHarmonics; K++ {
+		fit, err := ols(design(s, obs, K, trendKind == "linear"), values(s, obs))
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %v", s.Name, ErrFit, K, err)
+		}
+		d.HarmonicsTable = append(d.HarmonicsTable, model.OrderScore{Order: K, BIC: fit.BIC()})
+		if set.Harmonics == 0 && (K == 1 || fit.BIC() < mean.BIC()) || set.Harmonics == K {
+			mean, k = fit, K
+		}
+	}
+	d.HarmonicsTable[k-1].Chosen = true
+	f.Trend, f.Seasonal = meanParams(mean, k, trendKind == "linear")
+	f.Trend.Rule = rule
+	f.Seasonal.R2 = mean.R2()
+
+	// The slope as fitted with a trend term, reported whichever way the
+	// model goes.
+	withTrend := mean
+	if trendKind != "linear" {
+		var err error
+		if withTrend, err = ols(design(s, obs, k, true), values(s, obs)); err != nil {
+			return nil, fmt.Errorf("%s: %w: trend estimate: %v", s.Name, ErrFit, err)
+		}
+	}
+
+	res := &Result{Model: f, Series: s, Fitted: make([]float64, len(s.Temps)), Anomaly: make([]float64, len(s.Temps))}
+	for i := range s.Temps {
+		res.Fitted[i] = f.Mean(s.Date(i).ModelTime())
+		res.Anomaly[i] = s.Temps[i] - res.Fitted[i]
+	}
+	x := res.Anomaly
+	d.ACF = diagnose.ACF(x, acfLags)
+	d.PACF = diagnose.PACF(d.ACF)
+	d.ACFBound = diagnose.ConfidenceBound(len(obs))
+	f.Trend.Estimate = trendEstimate(withTrend, d.ACF[0])
+
+	// AR order table on a common sample, then the chosen order on all the
+	// rows that have its lags.
+	for q := 1; q <= MaxAROrder; q++ {
+		xm, y := lagged(x, q, MaxAROrder)
+		fit, err := ols(xm, y)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+		}
+		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: fit.BIC(), Chosen: q == p})
+	}
+	best := d.ARTable[0]
+	for _, r := range d.ARTable {
+		if r.BIC < best.BIC {
+			best = r
+		}
+	}
+	if best.Order > p && d.ARTable[p-1].BIC-best.BIC > ARAdviceMargin {
+		d.ARAdvice = fmt.Sprintf("BIC prefers AR(%d) over the fitted AR(%d) by %.0f; consider --ar %d",
+			best.Order, p, d.ARTable[p-1].BIC-best.BIC, best.Order)
+	}
+	xm, y := lagged(x, p, p)
+	ar, err := ols(xm, y)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, p, err)
+	}
+	d.ARPairs = ar.N
+	f.AR = model.AR{Phi: ar.Beta, PhiSE: ar.SE, Last: lastAnomalies(x, p)}
+	if r := model.SpectralRadius(ar.Beta); r >= 1 {
+		return nil, fmt.Errorf("%s: %w: fitted AR(%d) %v is not stationary", s.Name, ErrFit, p, ar.Beta)
+	}
+
+	// Innovations, monthly σ, standardized shocks.
+	e := innovations(x, ar.Beta)
+	if err := monthlySigma(s, e, &f.Volatility); err != nil {
+		return nil, err
+	}
+	z := make([]float64, len(e))
+	var zc []float64
+	byMonth := make([][]float64, 12)
+	for i, v := range e {
+		z[i] = math.NaN()
+		if math.IsNaN(v) {
+			continue
+		}
+		m := int(s.Date(i).Month()) - 1
+		z[i] = v / f.Volatility.Monthly[m]
+		zc = append(zc, z[i])
+		byMonth[m] = append(byMonth[m], z[i])
+	}
+	res.Z = z
+
+	dist, err := chooseShocks(set.Shocks, zc, byMonth, f, d)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", s.Name, err)
+	}
+
+	d.LjungBoxZ10 = test(diagnose.LjungBox(z, 10, p))
+	d.LjungBoxZ20 = test(diagnose.LjungBox(z, 20, p))
+	z2 := make([]float64, len(z))
+	for i, v := range z {
+		z2[i] = v * v
+	}
+	d.LjungBoxZ210 = test(diagnose.LjungBox(z2, 10, 0))
+	d.LjungBoxZ220 = test(diagnose.LjungBox(z2, 20, 0))
+	d.JarqueBera = test(diagnose.JarqueBera(zc))
+	d.Skewness = diagnose.Skewness(zc)
+	d.ExcessKurtosis = diagnose.ExcessKurtosis(zc)
+	d.KS = test(diagnose.KolmogorovSmirnov(zc, dist.CDF))
+	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
+	d.Spread = []model.WindowSpread{windowSpread(s, f, x, 30), windowSpread(s, f, x, 151)}
+	return res, nil
+}
+
+func chooseTrend(setting string, years float64) (kind, rule string) {
+	switch setting {
+	case "linear":
+		return "linear", "linear trend requested"
+	case "none":
+		return "none", "no trend requested"
+	}
+	if years >= MinTrendYears {
+		return "linear", fmt.Sprintf("auto: record of %.1f years ≥ %d, linear trend kept", years, MinTrendYears)
+	}
+	return "none", fmt.Sprintf("auto: record of %.1f years < %d, trend not fitted: over so short a record the slope is "+
+		"mostly year-to-year weather (its estimate is reported only as information)", years, MinTrendYears)
+}
+
+func dataInfo(s *Series) model.Data {
+	missing, longest := s.Gaps()
+	return model.Data{
+		File: s.Name, SHA256: s.SHA256, FirstDate: s.Start, LastDate: s.End(), Units: string(s.Units),
+		MeanFrom: s.MeanFrom, Days: len(s.Temps), Missing: missing, LongestGap: longest, Warnings: s.Warnings,
+	}
+}
+
+func observed(s *Series) []int {
+	idx := make([]int, 0, len(s.Temps))
+	for i, v := range s.Temps {
+		if !math.IsNaN(v) {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+func values(s *Series, idx []int) []float64 {
+	y := make([]float64, len(idx))
+	for j, i := range idx {
+		y[j] = s.Temps[i]
+	}
+	return y
+}
+
+// design returns the mean model's regressors [1, t/decade, cos kωt, sin kωt]
+// for the days idx.
+func design(s *Series, idx []int, harmonics int, trend bool) *mat.Dense {
+	cols := 1 + 2*harmonics
+	if trend {
+		cols++
+	}
+	x := mat.NewDense(len(idx), cols, nil)
+	w := 2 * math.Pi / calendar.DaysPerYear
+	for r, i := range idx {
+		t := s.Date(i).ModelTime()
+		row := x.RawRowView(r)
+		row[0] = 1
+		c := 1
+		if trend {
+			row[1] = t / decade
+			c = 2
+		}
+		for k := 1; k <= harmonics; k++ {
+			row[c] = math.Cos(float64(k) * w * t)
+			row[c+1] = math.Sin(float64(k) * w * t)
+			c += 2
+		}
+	}
+	return x
+}
+
+// meanParams turns the mean model's coefficients into the model's trend and
+// seasonal parts.
+func meanParams(fit olsFit, harmonics int, trend bool) (model.Trend, model.Seasonal) {
+	tr := model.Trend{Kind: "none", Epoch: calendar.Epoch, Intercept: fit.Beta[0]}
+	c := 1
+	if trend {
+		tr.Kind = "linear"
+		tr.SlopePerYear = fit.Beta[1] / 10
+		c = 2
+	}
+	se := model.Seasonal{PeriodDays: calendar.DaysPerYear}
+	w := se.Omega()
+	for k := 1; k <= harmonics; k++ {
+		a, b := fit.Beta[c], fit.Beta[c+1]
+		theta := math.Atan2(a, b)
+		// α sin(kωt + θ) peaks first where kωt + θ = π/2 (mod 2π).
+		peak := math.Mod(math.Pi/2-theta, 2*math.Pi)
+		if peak < 0 {
+			peak += 2 * math.Pi
+		}
+		se.Harmonics = append(se.Harmonics, model.Harmonic{
+			K: k, Cos: a, Sin: b, Amplitude: math.Hypot(a, b), Phase: theta,
+			PeakDayOfYear: 1 + peak/(float64(k)*w),
+		})
+		c += 2
+	}
+	se.PeakDayOfYear, se.TroughDayOfYear = extremes(se)
+	return tr, se
+}
+
+// extremes locates the maximum and minimum of the seasonal cycle on a grid of
+// 0.01 day over one period (t = 0 is 1 January, day of year 1).
+func extremes(s model.Seasonal) (peak, trough float64) {
+	const step = 0.01
+	hi, lo := math.Inf(-1), math.Inf(1)
+	for t := 0.0; t < s.PeriodDays; t += step {
+		v := s.At(t)
+		if v > hi {
+			hi, peak = v, t
+		}
+		if v < lo {
+			lo, trough = v, t
+		}
+	}
+	return 1 + peak, 1 + trough
+}
+
+// trendEstimate reports the slope of a fit with a trend column, per decade,
+// with its OLS standard error and one widened for the residuals' lag-1
+// autocorrelation r1: the effective sample size n(1 − r1)/(1 + r1).
+func trendEstimate(fit olsFit, r1 float64) model.TrendEstimate {
+	adj := math.Sqrt((1 + r1) / (1 - r1))
+	if !(r1 > -1 && r1 < 1) {
+		adj = math.NaN()
+	}
+	return model.TrendEstimate{PerDecade: fit.Beta[1], SEOLS: fit.SE[1], SEAdjusted: fit.SE[1] * adj}
+}
+
+// lagged returns the AR(q) regression x_t on x_{t−1..t−q} over the days t
+// where x_t and its first maxLag lags are all present, so that tables for
+// different q share one sample when maxLag is their largest q.
+func lagged(x []float64, q, maxLag int) (*mat.Dense, []float64) {
+	var rows []int
+	for t := maxLag; t < len(x); t++ {
+		ok := true
+		for j := 0; j <= maxLag && ok; j++ {
+			ok = !math.IsNaN(x[t-j])
+		}
+		if ok {
+			rows = append(rows, t)
+		}
+	}
+	xm := mat.NewDense(max(len(rows), 1), q, nil)
+	y := make([]float64, len(rows))
+	for r, t := range rows {
+		y[r] = x[t]
+		for j := 1; j <= q; j++ {
+			xm.Set(r, j-1, x[t-j])
+		}
+	}
+	if len(rows) == 0 {
+		return mat.NewDense(1, q, nil), nil
+	}
+	return xm, y
+}
+
+// innovations returns e_t = x_t − Σ φ_j x_{t−j} on the grid, NaN where any
+// term is missing.
+func innovations(x, phi []float64) []float64 {
+	e := make([]float64, len(x))
+	for t := range x {
+		if t < len(phi) {
+			e[t] = math.NaN()
+			continue
+		}
+		v := x[t]
+		for j, p := range phi {
+			v -= p * x[t-j-1]
+		}
+		e[t] = v
+	}
+	return e
+}
+
+// lastAnomalies returns the last p anomalies, most recent first, with
+// missing values replaced by 0 (the anomaly's mean).
+func lastAnomalies(x []float64, p int) []float64 {
+	out := make([]float64, p)
+	for j := range p {
+		if i := len(x) - 1 - j; i >= 0 && !math.IsNaN(x[i]) {
+			out[j] = x[i]
+		}
+	}
+	return out
+}
+
+// monthlySigma sets σ for each calendar month: the sample standard deviation
+// (n − 1) of that month's innovations, with a 95 % chi-square band.
+func monthlySigma(s *Series, e []float64, v *model.Volatility) error {
+	byMonth := make([][]float64, 12)
+	for i, x := range e {
+		if !math.IsNaN(x) {
+			m := s.Date(i).Month() - 1
+			byMonth[m] = append(byMonth[m], x)
+		}
+	}
+	v.Kind = "monthly"
+	for m, xs := range byMonth {
+		n := len(xs)
+		if n < 10 {
+			return fmt.Errorf("%s: %w: month %d has %d innovations (days with the previous days present); at least 10 needed",
+				s.Name, ErrFit, m+1, n)
+		}
+		sd := stat.StdDev(xs, nil)
+		if !(sd > 0) {
+			return fmt.Errorf("%s: %w: month %d: innovations have no spread (constant data?)", s.Name, ErrFit, m+1)
+		}
+		chi := distuv.ChiSquared{K: float64(n - 1)}
+		v.Monthly[m], v.Count[m] = sd, n
+		v.Band[m] = [2]float64{
+			sd * math.Sqrt(float64(n-1)/chi.Quantile(0.975)),
+			sd * math.Sqrt(float64(n-1)/chi.Quantile(0.025)),
+		}
+	}
+	return nil
+}
+
+// chooseShocks fits the parametric families, fills the family table and the
+// model's shocks, and returns the parametric distribution z is compared with.
+func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.File, d *model.Diagnostics) (shocks.Dist, error) {
+	fits := []shocks.Fit{shocks.FitNormal(z)}
+	t, err := shocks.FitStudentT(z)
+	if err != nil {
+		return nil, err
+	}
+	st, err := shocks.FitSkewT(z)
+	if err != nil {
+		return nil, err
+	}
+	fits = append(fits, t, st)
+	best := 0
+	for i, fit := range fits {
+		if fit.AIC() < fits[best].AIC() {
+			best = i
+		}
+	}
+	chosen := best
+	switch setting {
+	case model.FamilyNormal:
+		chosen = 0
+	case model.FamilyStudentT:
+		chosen = 1
+	case model.FamilySkewT:
+		chosen = 2
+	}
+	for i, fit := range fits {
+		row := model.FamilyScore{
+			Family: model.Families[i], LogLik: fit.LogLik, Params: fit.Params, AIC: fit.AIC(),
+			Chosen: i == chosen && setting != model.FamilyBootstrap,
+		}
+		row.DF, row.Skew = shape(fit.Dist)
+		d.ShockTable = append(d.ShockTable, row)
+	}
+	d.KSFamily = model.Families[chosen]
+	if setting == model.FamilyBootstrap {
+		f.Shocks = model.Shocks{Family: model.FamilyBootstrap, ByMonth: byMonth}
+		d.ShockTable = append(d.ShockTable, model.FamilyScore{Family: model.FamilyBootstrap, Chosen: true})
+		return fits[chosen].Dist, nil
+	}
+	f.Shocks.Family = model.Families[chosen]
+	f.Shocks.DF, f.Shocks.Skew = shape(fits[chosen].Dist)
+	return fits[chosen].Dist, nil
+}
+
+func shape(d shocks.Dist) (df, skew float64) {
+	switch v := d.(type) {
+	case shocks.StudentT:
+		return v.Nu, 0
+	case shocks.SkewT:
+		return v.Nu, v.Xi
+	}
+	return 0, 0
+}
+
+func test(t diagnose.Test) model.Test { return model.Test{Stat: t.Stat, DF: t.DF, P: t.P} }
+
+// thin keeps about qqPoints evenly spaced pairs, always the two ends.
+func thin(a, b []float64) ([]float64, []float64) {
+	n := len(a)
+	if n <= qqPoints {
+		return a, b
+	}
+	ta, tb := make([]float64, 0, qqPoints), make([]float64, 0, qqPoints)
+	for j := range qqPoints {
+		i := j * (n - 1) / (qqPoints - 1)
+		ta, tb = append(ta, a[i]), append(tb, b[i])
+	}
+	return ta, tb
+}
+
+// windowSpread compares the standard deviation of non-overlapping L-day mean
+// anomalies (windows from the first day; a window missing more than a tenth
+// of its days is skipped) with the model's implied value for the same
+// windows:
+//
+//	Var(Σ_{t∈W} X_t) = Σ_s σ²(s) · (Σ_{t∈W, t≥s} ψ_{t−s})²
+//
+// where ψ is the AR's impulse response, averaged over the windows.
+func windowSpread(s *Series, f *model.File, x []float64, L int) model.WindowSpread {
+	psi := impulse(f.AR.Phi)
+	cum := make([]float64, len(psi))
+	acc := 0.0
+	for j, v := range psi {
+		acc += v
+		cum[j] = acc
+	}
+	at := func(j int) float64 { // Σ_{k=0..j} ψ_k
+		if j < 0 {
+			return 0
+		}
+		return cum[min(j, len(cum)-1)]
+	}
+	var means []float64
+	var varSum float64
+	for a := 0; a+L <= len(x); a += L {
+		sum, n := 0.0, 0
+		for _, v := range x[a : a+L] {
+			if !math.IsNaN(v) {
+				sum += v
+				n++
+			}
+		}
+		if n < L*9/10 {
+			continue
+		}
+		means = append(means, sum/float64(n))
+		end := a + L - 1
+		v := 0.0
+		for s0 := a - len(psi); s0 <= end; s0++ {
+			w := at(end-s0) - at(a-1-s0)
+			sg := f.Volatility.Monthly[(s.Date(s0).Month() - 1)]
+			v += sg * sg * w * w
+		}
+		varSum += v / float64(L*L)
+	}
+	ws := model.WindowSpread{Days: L, Windows: len(means)}
+	if len(means) >= 2 {
+		ws.Observed = stat.StdDev(means, nil)
+		ws.Model = math.Sqrt(varSum / float64(len(means)))
+	}
+	return ws
+}
+
+// impulse returns the AR's impulse response ψ₀ = 1, ψⱼ = Σᵢ φᵢ ψⱼ₋ᵢ until it
+// falls below 1e-12 (or 5000 lags).
+func impulse(phi []float64) []float64 {
+	psi := []float64{1}
+	for j := 1; j < 5000; j++ {
+		v := 0.0
+		for i, p := range phi {
+			if j-i-1 >= 0 {
+				v += p * psi[j-i-1]
+			}
+		}
+		psi = append(psi, v)
+		if j > len(phi) && math.Abs(v) < 1e-12 && math.Abs(psi[j-1]) < 1e-12 {
+			break
+		}
+	}
+	return psi
+}

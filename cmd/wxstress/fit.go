@@ -1,0 +1,143 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strconv"
+
+	"github.com/spf13/pflag"
+
+	"wxstress/calibrate"
+	"wxstress/cmd/wxstress/render"
+	"wxstress/model"
+)
+
+var fitUsage = helpText{
+	usage: "wxstress fit --temps FILE.csv [--out model.json] [flags]",
+	about: `Calibrate the daily temperature model to a station's history: trend, seasonal
+cycle (period 365.25 days), AR anomaly, monthly volatility and shock family,
+with diagnostics. The CSV needs a header with a date column (YYYY-MM-DD) and
+either a daily mean column (tavg, tmean, temp, ...) or max and min columns
+(tmax/tmin, temp_max/temp_min, max/min, ...); with both, the mean is
+(max + min)/2 unless --mean-column names a column. Missing values (empty, NA,
+NaN, -9999) are gaps.`,
+	examples: `  wxstress fit --temps station.csv --out model.json
+  wxstress fit --temps station.csv --units F --harmonics 2 --ar 2 --shocks t
+  wxstress fit --temps station.csv --format json > model.json`,
+}
+
+type fitOptions struct {
+	temps, out, format   string
+	units, meanColumn    string
+	harmonics, ar, trend string
+	shocks               string
+	settings             calibrate.Settings
+	readOpts             calibrate.ReadOptions
+}
+
+func newFitFlags(o *fitOptions) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("fit", pflag.ContinueOnError)
+	o.addFlags(fs)
+	return fs
+}
+
+func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
+	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
+	fs.StringVar(&o.out, "out", "", "write the model file (JSON) here")
+	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
+	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C, with a warning if the data look like °F)")
+	fs.StringVar(&o.meanColumn, "mean-column", "", "use this column as the daily mean instead of (max + min)/2")
+	fs.StringVar(&o.harmonics, "harmonics", "auto", "seasonal harmonics: auto (by BIC) or 1..4")
+	fs.StringVar(&o.ar, "ar", "1", "AR order of the anomaly: 1..5")
+	fs.StringVar(&o.trend, "trend", "auto", "trend: auto (linear from 15 years of data), linear or none")
+	fs.StringVar(&o.shocks, "shocks", "auto", "shock family: auto (by AIC), normal, t, skew-t or bootstrap")
+}
+
+func (o *fitOptions) validate() error {
+	if o.temps == "" {
+		return usagef("fit: --temps is required")
+	}
+	if o.format != "table" && o.format != "json" {
+		return usagef("fit: --format %q: want table or json", o.format)
+	}
+	if o.units != "" {
+		u, err := calibrate.ParseUnits(o.units)
+		if err != nil {
+			return usagef("fit: --units: %v", err)
+		}
+		o.readOpts.Units = u
+	}
+	o.readOpts.MeanColumn = o.meanColumn
+	if o.harmonics != "auto" {
+		k, err := strconv.Atoi(o.harmonics)
+		if err != nil || k < 1 || k > calibrate.MaxHarmonics {
+			return usagef("fit: --harmonics %q: want auto or 1..%d", o.harmonics, calibrate.MaxHarmonics)
+		}
+		o.settings.Harmonics = k
+	}
+	p, err := strconv.Atoi(o.ar)
+	if err != nil || p < 1 || p > calibrate.MaxAROrder {
+		return usagef("fit: --ar %q: want 1..%d", o.ar, calibrate.MaxAROrder)
+	}
+	o.settings.AROrder = p
+	o.settings.Trend = o.trend
+	o.settings.Shocks = o.shocks
+	if err := o.settings.Validate(); err != nil {
+		return usagef("fit: %v", err)
+	}
+	return nil
+}
+
+func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	var o fitOptions
+	if err := parseFlags(newFitFlags(&o), fitUsage, args, stdout); err != nil {
+		return err
+	}
+	if err := o.validate(); err != nil {
+		return err
+	}
+	series, err := calibrate.ReadFile(o.temps, o.readOpts)
+	if err != nil {
+		return err
+	}
+	res, err := fitSeries(series, &o.settings)
+	if err != nil {
+		return err
+	}
+	return emitFit(stdout, stderr, res.Model, o.format, o.out)
+}
+
+func fitSeries(s *calibrate.Series, set *calibrate.Settings) (*calibrate.Result, error) {
+	res, err := calibrate.Fit(s, set)
+	if err != nil {
+		return nil, err
+	}
+	res.Model.ToolVersion = version
+	return res, nil
+}
+
+// emitFit prints the model summary or JSON and writes the model file.
+func emitFit(stdout, stderr io.Writer, m *model.File, format, out string) error {
+	for _, w := range m.Data.Warnings {
+		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+	}
+	if out != "" {
+		if err := m.Write(out); err != nil {
+			return err
+		}
+	}
+	if format == "json" {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(m)
+	}
+	if err := render.FitSummary(stdout, m); err != nil {
+		return err
+	}
+	if out != "" {
+		fmt.Fprintf(stdout, "\nModel written to %s\n", out)
+	}
+	return nil
+}

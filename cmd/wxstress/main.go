@@ -1,0 +1,95 @@
+// Command wxstress calibrates a daily-temperature model to a station's
+// history, simulates synthetic years from it, and reports degree-day and
+// demand tails. Run "wxstress help" for the subcommands.
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+)
+
+// version is the tool version written into every output's manifest.
+const version = "0.1.0"
+
+// Exit codes.
+const (
+	exitOK          = 0
+	exitFailure     = 1
+	exitUsage       = 2
+	exitInterrupted = 130
+)
+
+// command is one subcommand.
+type command struct {
+	name    string
+	summary string
+	run     func(ctx context.Context, args []string, stdout, stderr io.Writer) error
+}
+
+func commands() []command {
+	return []command{
+		{"demo", "run the whole job on the built-in invented station", runDemoCmd},
+		{"fit", "calibrate a temperature model to a daily CSV", runFitCmd},
+		{"simulate", "draw synthetic years and report degree-day tail tables", runSimulateCmd},
+		{"version", "print the tool version", runVersionCmd},
+		{"help", "show help for wxstress or a subcommand", runHelpCmd},
+	}
+}
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	code := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	stop()
+	os.Exit(code)
+}
+
+// run dispatches to a subcommand and maps its error to an exit code.
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		writeMainUsage(stderr)
+		return exitUsage
+	}
+	name := args[0]
+	if name == "-h" || name == "--help" {
+		name = "help"
+	}
+	for _, c := range commands() {
+		if c.name == name {
+			return exitCode(c.run(ctx, args[1:], stdout, stderr), ctx, stderr)
+		}
+	}
+	fmt.Fprintf(stderr, "wxstress: unknown command %q\n\n", name)
+	writeMainUsage(stderr)
+	return exitUsage
+}
+
+// usageError marks an error in how the tool was called (exit 2).
+type usageError struct{ msg string }
+
+func (e *usageError) Error() string { return e.msg }
+
+func usagef(format string, a ...any) error { return &usageError{fmt.Sprintf(format, a...)} }
+
+// errHelpShown means the help text was printed on request (exit 0).
+var errHelpShown = errors.New("help shown")
+
+func exitCode(err error, ctx context.Context, stderr io.Writer) int {
+	var ue *usageError
+	switch {
+	case err == nil, errors.Is(err, errHelpShown):
+		return exitOK
+	case ctx.Err() != nil || errors.Is(err, context.Canceled):
+		fmt.Fprintln(stderr, "wxstress: interrupted; no output was written")
+		return exitInterrupted
+	case errors.As(err, &ue):
+		fmt.Fprintf(stderr, "wxstress: %v\n(run 'wxstress help' for usage)\n", err)
+		return exitUsage
+	}
+	fmt.Fprintf(stderr, "wxstress: %v\n", err)
+	return exitFailure
+}

@@ -1,0 +1,190 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+)
+
+// call runs the tool in-process and returns its exit code, stdout and stderr.
+func call(t *testing.T, ctx context.Context, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(ctx, args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+var (
+	demoModelOnce sync.Once
+	demoModelPath string
+)
+
+// demoModel fits the embedded demo station once and returns the model path.
+func demoModel(t *testing.T) string {
+	t.Helper()
+	demoModelOnce.Do(func() {
+		dir, err := os.MkdirTemp("", "wxstress-test")
+		if err != nil {
+			t.Fatal(err)
+		}
+		demoModelPath = filepath.Join(dir, "kestrel.json")
+		if code, _, stderr := call(t, context.Background(), "demo", "--paths", "200", "--model-out", demoModelPath); code != 0 {
+			t.Fatalf("demo failed (%d): %s", code, stderr)
+		}
+	})
+	return demoModelPath
+}
+
+func TestExitCodes(t *testing.T) {
+	t.Parallel()
+	cases := []struct {
+		args []string
+		code int
+		msg  string
+	}{
+		{nil, exitUsage, "Usage"},
+		{[]string{"frobnicate"}, exitUsage, `unknown command "frobnicate"`},
+		{[]string{"help"}, exitOK, ""},
+		{[]string{"help", "simulate"}, exitOK, ""},
+		{[]string{"simulate", "-h"}, exitOK, ""},
+		{[]string{"version"}, exitOK, ""},
+		{[]string{"fit"}, exitUsage, "--temps is required"},
+		{[]string{"fit", "--temps", "x.csv", "--ar", "9"}, exitUsage, "want 1..5"},
+		{[]string{"fit", "--temps", "x.csv", "--shocks", "cauchy"}, exitUsage, "normal, t, skew-t"},
+		{[]string{"fit", "--temps", "/nonexistent/x.csv"}, exitFailure, "no such file"},
+		{[]string{"fit", "--bogus"}, exitUsage, "unknown flag"},
+		{[]string{"simulate", "--model", "m.json", "--paths", "0"}, exitUsage, "--paths must be a positive"},
+		{[]string{"simulate", "--model", "m.json", "--period", "winter"}, exitUsage, "MM-DD:MM-DD"},
+		{[]string{"simulate", "--model", "m.json", "--period", "02-30:03-01"}, exitUsage, "malformed window"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "frost:3"}, exitUsage, "unknown index"},
+		{[]string{"simulate", "--model", "m.json", "--format", "xml"}, exitUsage, "table, csv or json"},
+	}
+	for _, c := range cases {
+		code, stdout, stderr := call(t, context.Background(), c.args...)
+		if code != c.code {
+			t.Errorf("%v: exit %d, want %d (stderr %q)", c.args, code, c.code, stderr)
+		}
+		if !strings.Contains(stdout+stderr, c.msg) {
+			t.Errorf("%v: output lacks %q: %q", c.args, c.msg, stderr)
+		}
+	}
+}
+
+func TestFitReportsPositionedErrors(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "bad.csv")
+	os.WriteFile(p, []byte("date,tavg\n2020-01-01,3.5\n2020-01-02,warm\n"), 0o644)
+	code, _, stderr := call(t, context.Background(), "fit", "--temps", p)
+	if code != exitFailure || !strings.Contains(stderr, p+":3:12") {
+		t.Errorf("exit %d, stderr %q: want exit 1 and the position %s:3:12", code, stderr, p)
+	}
+}
+
+func TestModelFileErrorsNameTheKey(t *testing.T) {
+	t.Parallel()
+	b, err := os.ReadFile(demoModel(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	for _, c := range []struct {
+		edit func(m map[string]any)
+		key  string
+	}{
+		{func(m map[string]any) { delete(m["volatility"].(map[string]any), "monthly") }, "volatility.monthly"},
+		{func(m map[string]any) { m["schema_version"] = 99 }, "schema_version"},
+		{func(m map[string]any) { m["volatility"].(map[string]any)["monthly"].([]any)[3] = -1.0 }, "volatility.monthly[3]"},
+		{func(m map[string]any) { m["shocks"].(map[string]any)["df"] = 1.5 }, "shocks.df"},
+		{func(m map[string]any) { m["ar"].(map[string]any)["phi"] = []any{1.02} }, "ar.phi"},
+	} {
+		var m map[string]any
+		json.Unmarshal(b, &m)
+		c.edit(m)
+		p := filepath.Join(dir, strings.ReplaceAll(c.key, "[", "_")+".json")
+		nb, _ := json.Marshal(m)
+		os.WriteFile(p, nb, 0o644)
+		code, _, stderr := call(t, context.Background(), "simulate", "--model", p, "--paths", "10")
+		if code != exitFailure || !strings.Contains(stderr, "key "+c.key) {
+			t.Errorf("%s: exit %d, stderr %q", c.key, code, stderr)
+		}
+	}
+}
+
+func TestSimulateJSONIsIdenticalForAnyWorkerCount(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	var first string
+	for _, w := range []string{"1", "2", "7"} {
+		code, out, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "3000", "--seed", "5",
+			"--workers", w, "--format", "json")
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		if first == "" {
+			first = out
+		} else if out != first {
+			t.Fatalf("--workers %s changed the JSON output", w)
+		}
+	}
+	var doc struct {
+		Manifest map[string]any
+		Indices  []struct {
+			Name, Period, Unit string
+			Quantiles          map[string]float64
+			ReturnLevels       map[string]float64 `json:"return_levels"`
+			ES95               *float64
+		}
+	}
+	if err := json.Unmarshal([]byte(first), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := doc.Manifest["workers"]; ok {
+		t.Error("manifest records the worker count")
+	}
+	if len(doc.Indices) == 0 || doc.Indices[0].Name != "HDD" || doc.Indices[0].Period != "year" ||
+		len(doc.Indices[0].Quantiles) != 9 || doc.Indices[0].ReturnLevels["20"] == 0 || doc.Indices[0].ES95 == nil {
+		t.Errorf("unexpected JSON shape: %+v", doc.Indices[0])
+	}
+	if _, ok := doc.Indices[0].Quantiles["0.05"]; !ok {
+		t.Error(`quantile keys are not like "0.05"`)
+	}
+}
+
+func TestSimulateOutDirAndInterrupt(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	dir := filepath.Join(t.TempDir(), "res")
+	code, stdout, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "500", "--out", dir,
+		"--exceed", "hdd:heating:2500")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stdout, "P(HDD > 2500)") {
+		t.Errorf("exceedance not shown:\n%s", stdout)
+	}
+	paths, _ := os.ReadFile(filepath.Join(dir, "paths.csv"))
+	if lines := strings.Count(string(paths), "\n"); lines != 501 {
+		t.Errorf("paths.csv has %d lines, want a header and 500 paths", lines)
+	}
+	for _, f := range []string{"tails.json", "tails.csv"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Error(err)
+		}
+	}
+
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	dir2 := filepath.Join(t.TempDir(), "never")
+	code, _, _ = call(t, ctx, "simulate", "--model", m, "--paths", "100000", "--out", dir2)
+	if code != exitInterrupted {
+		t.Errorf("interrupted run exit %d, want %d", code, exitInterrupted)
+	}
+	if _, err := os.Stat(dir2); err == nil {
+		t.Error("interrupted run left output behind")
+	}
+}

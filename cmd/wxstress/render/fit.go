@@ -1,0 +1,199 @@
+package render
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"time"
+
+	"wxstress/model"
+)
+
+// Caution is the statement every report carries.
+const Caution = "These are statistical scenarios, not forecasts. Capacity, reliability and hedging decisions " +
+	"remain subject to local codes, regulators' planning standards and licensed professional judgement."
+
+// FitSummary writes the readable summary of a fitted model.
+func FitSummary(w io.Writer, f *model.File) error {
+	e := &errWriter{w: w}
+	u := "°" + f.Data.Units
+	d := f.Data
+	e.printf("Station record  %s\n", d.File)
+	e.printf("  %s to %s: %d days, %d missing (longest gap %d days); daily mean = %s; units %s\n",
+		d.FirstDate, d.LastDate, d.Days, d.Missing, d.LongestGap, d.MeanFrom, u)
+	for _, w := range d.Warnings {
+		e.printf("  warning: %s\n", w)
+	}
+
+	e.printf("\nSeasonal mean  S(t) = a + b·t + Σ harmonics, period %.2f days, t in days since %s\n",
+		f.Seasonal.PeriodDays, f.Trend.Epoch)
+	e.printf("  level a = %.3f %s; R² = %.4f\n", f.Trend.Intercept, u, f.Seasonal.R2)
+	est := f.Trend.Estimate
+	e.printf("  trend: %s; fitted slope %+.3f %s/decade (s.e. %.3f OLS, %.3f allowing for autocorrelation)\n",
+		f.Trend.Kind, est.PerDecade, u, est.SEOLS, est.SEAdjusted)
+	e.printf("  %s\n", f.Trend.Rule)
+	rows := [][]string{}
+	for _, h := range f.Seasonal.Harmonics {
+		rows = append(rows, []string{fmt.Sprint(h.K), num(h.Amplitude, 3), num(h.Phase, 4),
+			num(h.PeakDayOfYear, 1), dayName(h.PeakDayOfYear)})
+	}
+	e.table([]string{"harmonic", "amplitude " + u, "phase θ (rad)", "first peak (day of year)", "date"}, rows)
+	e.printf("  whole cycle: warmest on day %.1f (%s), coldest on day %.1f (%s)\n",
+		f.Seasonal.PeakDayOfYear, dayName(f.Seasonal.PeakDayOfYear),
+		f.Seasonal.TroughDayOfYear, dayName(f.Seasonal.TroughDayOfYear))
+
+	dg := f.Diagnostics
+	if dg != nil {
+		e.printf("\nHarmonics by BIC (lower is better)\n")
+		e.table([]string{"K", "BIC", ""}, orderRows(dg.HarmonicsTable))
+	}
+
+	e.printf("\nAnomaly X(t): AR(%d)\n", len(f.AR.Phi))
+	rows = rows[:0]
+	for i, v := range f.AR.Phi {
+		rows = append(rows, []string{fmt.Sprintf("φ%d", i+1), num(v, 4), num(f.AR.PhiSE[i], 4)})
+	}
+	e.table([]string{"coefficient", "estimate", "s.e."}, rows)
+	if dg != nil {
+		e.printf("AR order by BIC (all orders on one common sample)\n")
+		e.table([]string{"p", "BIC", ""}, orderRows(dg.ARTable))
+		if dg.ARAdvice != "" {
+			e.printf("  note: %s\n", dg.ARAdvice)
+		}
+	}
+
+	e.printf("\nInnovation volatility σ by month (%s, with 95%% band)\n", u)
+	rows = rows[:0]
+	v := f.Volatility
+	for m := range 12 {
+		rows = append(rows, []string{time.Month(m + 1).String()[:3], num(v.Monthly[m], 3),
+			num(v.Band[m][0], 3) + "–" + num(v.Band[m][1], 3), fmt.Sprint(v.Count[m])})
+	}
+	e.table([]string{"month", "σ", "95% band", "innovations"}, rows)
+
+	e.printf("\nShocks: %s\n", shockText(f.Shocks))
+	if dg != nil {
+		rows = rows[:0]
+		for _, s := range dg.ShockTable {
+			if s.Family == model.FamilyBootstrap {
+				rows = append(rows, []string{s.Family, "—", "—", "—", "—", mark(s.Chosen)})
+				continue
+			}
+			rows = append(rows, []string{s.Family, num(s.LogLik, 1), fmt.Sprint(s.Params), num(s.AIC, 1),
+				shapeText(s), mark(s.Chosen)})
+		}
+		e.table([]string{"family", "log-lik", "shape params", "AIC", "shape", ""}, rows)
+		writeDiagnostics(e, f)
+	}
+	e.printf("\n%s\n", Caution)
+	return e.err
+}
+
+func writeDiagnostics(e *errWriter, f *model.File) {
+	dg := f.Diagnostics
+	u := "°" + f.Data.Units
+	e.printf("\nDiagnostics of the standardized innovations z\n")
+	rows := [][]string{
+		lbRow("Ljung–Box Q(10) on z", dg.LjungBoxZ10),
+		lbRow("Ljung–Box Q(20) on z", dg.LjungBoxZ20),
+		lbRow("Ljung–Box Q(10) on z²", dg.LjungBoxZ210),
+		lbRow("Ljung–Box Q(20) on z²", dg.LjungBoxZ220),
+		lbRow("Jarque–Bera", dg.JarqueBera),
+		{"Kolmogorov–Smirnov D vs " + dg.KSFamily, num(dg.KS.Stat, 4), "", pval(dg.KS.P), verdict(dg.KS.P)},
+		{"skewness", num(dg.Skewness, 3), "", "", ""},
+		{"excess kurtosis", num(dg.ExcessKurtosis, 3), "", "", ""},
+	}
+	e.table([]string{"test", "statistic", "df", "p-value", "at 5 %"}, rows)
+	e.printf("\nPersistence: autocorrelation of X (95%% bound ±%.3f)\n", dg.ACFBound)
+	rows = rows[:0]
+	for _, lag := range []int{1, 2, 3, 5, 10, 20, 30} {
+		if lag <= len(dg.ACF) {
+			rows = append(rows, []string{fmt.Sprint(lag), num(dg.ACF[lag-1], 3), num(dg.PACF[lag-1], 3)})
+		}
+	}
+	e.table([]string{"lag (days)", "ACF", "PACF"}, rows)
+	e.printf("\nSpread of window-mean anomalies: data against model (%s)\n", u)
+	rows = rows[:0]
+	for _, s := range dg.Spread {
+		ratio := "—"
+		if s.Observed > 0 {
+			ratio = num(s.Model/s.Observed, 2)
+		}
+		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), fmt.Sprint(s.Windows),
+			num(s.Observed, 3), num(s.Model, 3), ratio})
+	}
+	e.table([]string{"window", "windows", "observed sd", "model sd", "model / observed"}, rows)
+	for _, s := range dg.Spread {
+		if s.Observed > 0 && s.Model/s.Observed < 0.8 {
+			e.printf("  note: the model's %d-day spread is %.0f%% of the data's: monthly and seasonal sums "+
+				"will be too narrow; consider a higher AR order\n", s.Days, 100*s.Model/s.Observed)
+		}
+	}
+}
+
+func lbRow(name string, t model.Test) []string {
+	return []string{name, num(t.Stat, 2), num(t.DF, 0), pval(t.P), verdict(t.P)}
+}
+
+func verdict(p float64) string {
+	if p < 0.05 {
+		return "rejected"
+	}
+	return "not rejected"
+}
+
+func orderRows(s []model.OrderScore) [][]string {
+	best := 0
+	for i, r := range s {
+		if r.BIC < s[best].BIC {
+			best = i
+		}
+	}
+	rows := make([][]string, len(s))
+	for i, r := range s {
+		note := []string{}
+		if r.Chosen {
+			note = append(note, "fitted")
+		}
+		if i == best {
+			note = append(note, "lowest")
+		}
+		rows[i] = []string{fmt.Sprint(r.Order), num(r.BIC, 1), strings.Join(note, ", ")}
+	}
+	return rows
+}
+
+func mark(b bool) string {
+	if b {
+		return "chosen"
+	}
+	return ""
+}
+
+func shapeText(s model.FamilyScore) string {
+	switch s.Family {
+	case model.FamilyStudentT:
+		return fmt.Sprintf("ν = %.2f", s.DF)
+	case model.FamilySkewT:
+		return fmt.Sprintf("ν = %.2f, ξ = %.3f", s.DF, s.Skew)
+	}
+	return ""
+}
+
+func shockText(s model.Shocks) string {
+	switch s.Family {
+	case model.FamilyStudentT:
+		return fmt.Sprintf("unit-variance Student-t, ν = %.2f", s.DF)
+	case model.FamilySkewT:
+		return fmt.Sprintf("unit-variance skewed Student-t, ν = %.2f, ξ = %.3f (ξ < 1: longer cold tail)", s.DF, s.Skew)
+	case model.FamilyBootstrap:
+		return "seasonal bootstrap of the standardized innovations (same calendar month)"
+	}
+	return "standard normal"
+}
+
+// dayName turns a fractional day of year into a date label, e.g. "25 Jul".
+func dayName(doy float64) string {
+	d := time.Date(2001, time.January, 1, 0, 0, 0, 0, time.UTC).AddDate(0, 0, int(doy)-1)
+	return d.Format("2 Jan")
+}

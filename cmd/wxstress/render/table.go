@@ -1,0 +1,79 @@
+// Package render presents results: terminal tables, CSV, JSON and the HTML
+// report. It never computes a statistic; every function takes an io.Writer
+// and a result value built elsewhere.
+package render
+
+import (
+	"fmt"
+	"io"
+	"math"
+
+	"github.com/olekukonko/tablewriter"
+	"github.com/olekukonko/tablewriter/tw"
+)
+
+// table writes a boxed terminal table with the header as given and the
+// body right-aligned except its first column.
+func table(w io.Writer, header []string, rows [][]string) error {
+	align := make([]tw.Align, len(header))
+	for i := range align {
+		align[i] = tw.AlignRight
+	}
+	align[0] = tw.AlignLeft
+	t := tablewriter.NewTable(w,
+		tablewriter.WithHeaderAutoFormat(tw.Off),
+		tablewriter.WithHeaderAlignment(tw.AlignCenter),
+		tablewriter.WithRowAlignmentConfig(tw.CellAlignment{PerColumn: align}),
+	)
+	t.Header(toAny(header)...)
+	if err := t.Bulk(rows); err != nil {
+		return err
+	}
+	return t.Render()
+}
+
+func toAny(s []string) []any {
+	out := make([]any, len(s))
+	for i, v := range s {
+		out[i] = v
+	}
+	return out
+}
+
+// num formats a value with d decimals, "—" for NaN.
+func num(v float64, d int) string {
+	if math.IsNaN(v) {
+		return "—"
+	}
+	return fmt.Sprintf("%.*f", d, v)
+}
+
+// pval formats a p-value: "< 0.0001" below that.
+func pval(p float64) string {
+	switch {
+	case math.IsNaN(p):
+		return "—"
+	case p < 1e-4:
+		return "< 0.0001"
+	}
+	return fmt.Sprintf("%.4f", p)
+}
+
+// errWriter remembers the first write error so that long reports can be
+// written without checking each line.
+type errWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (e *errWriter) printf(format string, a ...any) {
+	if e.err == nil {
+		_, e.err = fmt.Fprintf(e.w, format, a...)
+	}
+}
+
+func (e *errWriter) table(header []string, rows [][]string) {
+	if e.err == nil {
+		e.err = table(e.w, header, rows)
+	}
+}

@@ -1,0 +1,253 @@
+package render
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strconv"
+
+	"wxstress/sim"
+)
+
+// Manifest records what produced an output. It leaves out the worker count
+// and the wall time on purpose: neither may change a result.
+type Manifest struct {
+	Tool        string   `json:"tool"`
+	ToolVersion string   `json:"tool_version"`
+	ModelFile   string   `json:"model_file"`
+	ModelSHA256 string   `json:"model_sha256"`
+	DataSHA256  string   `json:"data_sha256,omitempty"`
+	Seed        uint64   `json:"seed"`
+	Paths       int      `json:"paths"`
+	Year        int      `json:"year"`
+	Start       string   `json:"start"`
+	Periods     []string `json:"periods"`
+	// SimulatedDays is the days stepped per path, burn-in included.
+	SimulatedDays int     `json:"simulated_days"`
+	Units         string  `json:"units"`
+	HDDBase       float64 `json:"hdd_base"`
+	CDDBase       float64 `json:"cdd_base"`
+	ColdBelow     float64 `json:"cold_below"`
+	Shocks        string  `json:"shocks"`
+	Quantiles     string  `json:"quantile_convention"`
+	Caution       string  `json:"caution"`
+}
+
+// QuantileConvention describes how quantiles are computed, for manifests.
+const QuantileConvention = "Hyndman-Fan type 4 (linear interpolation of the empirical CDF); " +
+	"expected shortfall = mean of the worst ceil((1-a)N) paths; return level 1-in-T = adverse quantile 1-1/T"
+
+// SimReport is what the simulate renderers show: one result for the table,
+// CSV and JSON forms.
+type SimReport struct {
+	Manifest Manifest
+	Rows     []sim.Row
+}
+
+// jsonRow is an index row of the JSON output.
+type jsonRow struct {
+	Name         string             `json:"name"`
+	Key          string             `json:"key"`
+	Period       string             `json:"period"`
+	Unit         string             `json:"unit"`
+	Adverse      string             `json:"adverse"`
+	Mean         float64            `json:"mean"`
+	SD           float64            `json:"sd"`
+	MeanSE       float64            `json:"mean_se"`
+	Quantiles    map[string]float64 `json:"quantiles"`
+	VaR95        float64            `json:"var95"`
+	VaR99        float64            `json:"var99"`
+	ES95         float64            `json:"es95"`
+	ES99         float64            `json:"es99"`
+	ReturnLevels map[string]float64 `json:"return_levels"`
+	Exceedance   []jsonExceed       `json:"exceedance,omitempty"`
+}
+
+type jsonExceed struct {
+	Threshold   float64 `json:"threshold"`
+	Probability float64 `json:"probability"`
+	SE          float64 `json:"se"`
+}
+
+func adverseSide(r sim.Row) string {
+	if r.Info.HighIsAdverse {
+		return "high"
+	}
+	return "low"
+}
+
+func toJSONRows(rows []sim.Row) []jsonRow {
+	out := make([]jsonRow, len(rows))
+	for i, r := range rows {
+		t := r.Tail
+		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: adverseSide(r),
+			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, VaR95: t.VaR95, VaR99: t.VaR99, ES95: t.ES95, ES99: t.ES99,
+			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}}
+		for k, p := range sim.Probs {
+			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantiles[k]
+		}
+		for k, T := range sim.ReturnPeriods {
+			j.ReturnLevels[strconv.Itoa(T)] = t.ReturnLevels[k]
+		}
+		for _, e := range t.Exceedances {
+			j.Exceedance = append(j.Exceedance, jsonExceed{e.Threshold, e.Prob, e.SE})
+		}
+		out[i] = j
+	}
+	return out
+}
+
+// SimJSON writes the report as JSON: {"manifest", "indices"}.
+func SimJSON(w io.Writer, r *SimReport) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(struct {
+		Manifest Manifest  `json:"manifest"`
+		Indices  []jsonRow `json:"indices"`
+	}{r.Manifest, toJSONRows(r.Rows)})
+}
+
+// statistic is one named number of a tail table, in display order.
+type statistic struct {
+	key, label string
+	value      func(t sim.Tail) float64
+}
+
+func statistics() []statistic {
+	s := []statistic{
+		{"mean", "mean", func(t sim.Tail) float64 { return t.Mean }},
+		{"sd", "sd", func(t sim.Tail) float64 { return t.SD }},
+	}
+	for k, p := range sim.Probs {
+		s = append(s, statistic{fmt.Sprintf("p%02.0f", 100*p), fmt.Sprintf("P%.0f", 100*p),
+			func(t sim.Tail) float64 { return t.Quantiles[k] }})
+	}
+	s = append(s,
+		statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }},
+		statistic{"es95", "ES 95%", func(t sim.Tail) float64 { return t.ES95 }},
+		statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
+		statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
+	)
+	for k, T := range sim.ReturnPeriods {
+		s = append(s, statistic{fmt.Sprintf("rl%d", T), fmt.Sprintf("1-in-%d", T),
+			func(t sim.Tail) float64 { return t.ReturnLevels[k] }})
+	}
+	return s
+}
+
+// SimCSV writes the report in long form, one number a line:
+// index,period,unit,statistic,value, after "# key: value" manifest lines.
+func SimCSV(w io.Writer, r *SimReport) error {
+	if err := csvManifest(w, r.Manifest); err != nil {
+		return err
+	}
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"index", "period", "unit", "adverse", "statistic", "value"})
+	stats := statistics()
+	for _, row := range r.Rows {
+		put := func(stat string, v float64) {
+			cw.Write([]string{row.Info.Key, row.Period, row.Unit, adverseSide(row), stat, strconv.FormatFloat(v, 'g', -1, 64)})
+		}
+		for _, s := range stats {
+			put(s.key, s.value(row.Tail))
+		}
+		put("mean_se", row.Tail.MeanSE)
+		for _, e := range row.Tail.Exceedances {
+			put("exceed:"+strconv.FormatFloat(e.Threshold, 'g', -1, 64), e.Prob)
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func csvManifest(w io.Writer, m Manifest) error {
+	b, err := json.Marshal(m)
+	if err != nil {
+		return err
+	}
+	var kv map[string]any
+	json.Unmarshal(b, &kv)
+	e := &errWriter{w: w}
+	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "seed", "paths", "year", "start",
+		"periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "quantile_convention", "caution"} {
+		e.printf("# %s: %v\n", k, kv[k])
+	}
+	return e.err
+}
+
+// SimTables writes one terminal table per period: statistics down, indices
+// across.
+func SimTables(w io.Writer, r *SimReport) error {
+	e := &errWriter{w: w}
+	m := r.Manifest
+	e.printf("%d synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
+		m.Paths, m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
+	for _, group := range byPeriod(r.Rows) {
+		e.printf("\nPeriod: %s\n", group[0].Period)
+		header := []string{"statistic"}
+		for _, row := range group {
+			header = append(header, fmt.Sprintf("%s (%s)", row.Name, row.Unit))
+		}
+		var rows [][]string
+		for _, s := range statistics() {
+			line := []string{s.label}
+			for _, row := range group {
+				line = append(line, num(s.value(row.Tail), 1))
+			}
+			rows = append(rows, line)
+		}
+		adverse := []string{"adverse side"}
+		for _, row := range group {
+			adverse = append(adverse, adverseSide(row))
+		}
+		rows = append(rows, adverse)
+		e.table(header, rows)
+		for _, row := range group {
+			for _, x := range row.Tail.Exceedances {
+				e.printf("  P(%s %s %g) = %.4f ± %.4f\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
+					x.Threshold, x.Prob, x.SE)
+			}
+		}
+	}
+	e.printf("\nVaR and ES are on the adverse side (ES = mean of the worst 5%% or 1%% of years); 1-in-T is the level\n" +
+		"passed on the adverse side once in T years on average. Quantiles: Hyndman–Fan type 4.\n")
+	e.printf("%s\n", Caution)
+	return e.err
+}
+
+// byPeriod groups rows by period, keeping their order.
+func byPeriod(rows []sim.Row) [][]sim.Row {
+	var out [][]sim.Row
+	for _, r := range rows {
+		if n := len(out); n > 0 && out[n-1][0].Period == r.Period {
+			out[n-1] = append(out[n-1], r)
+			continue
+		}
+		out = append(out, []sim.Row{r})
+	}
+	return out
+}
+
+// PathsCSV writes the per-path aggregates: one row a path, one column an
+// index of a period ("heating.hdd").
+func PathsCSV(w io.Writer, res *sim.Result) error {
+	cw := csv.NewWriter(w)
+	header := []string{"path"}
+	for _, a := range res.Aggregates {
+		header = append(header, a.Period.Name+"."+a.Index.Info().Key)
+	}
+	cw.Write(header)
+	line := make([]string, len(header))
+	for i := range res.Config.Paths {
+		line[0] = strconv.Itoa(i)
+		for j, a := range res.Aggregates {
+			line[j+1] = strconv.FormatFloat(a.Values[i], 'g', -1, 64)
+		}
+		if err := cw.Write(line); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}

@@ -1,0 +1,226 @@
+package main
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
+	"golang.org/x/term"
+
+	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/atomicfile"
+	"wxstress/model"
+	"wxstress/sim"
+)
+
+var simulateUsage = helpText{
+	usage: "wxstress simulate --model model.json [--paths N] [--seed S] [flags]",
+	about: `Draw N synthetic years for a target year from a fitted model and report tail
+tables of degree days, the coldest and hottest day, cold days and the longest
+cold spell for each period. Path i has its own random stream derived from
+(seed, i): the same seed gives the same numbers for any --workers.
+
+Periods: ` + sim.PeriodForms + `.
+Default periods: year, heating, cooling. Periods that cross the year end are the
+ones that end in the target year.`,
+	examples: `  wxstress simulate --model model.json --paths 100000 --seed 7
+  wxstress simulate --model model.json --year 2030 --period heating --period jan --period 12-15:01-15
+  wxstress simulate --model model.json --start conditional --exceed hdd:heating:2800 --format json
+  wxstress simulate --model model.json --paths 1000000 --out results/`,
+}
+
+type simulateOptions struct {
+	modelPath string
+	paths     int
+	seed      uint64
+	workers   int
+	year      int
+	start     string
+	periods   []string
+	hddBase   float64
+	cddBase   float64
+	coldBelow float64
+	exceed    []string
+	format    string
+	out       string
+
+	fs         *pflag.FlagSet
+	thresholds []sim.Threshold
+}
+
+func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("simulate", pflag.ContinueOnError)
+	fs.StringVar(&o.modelPath, "model", "", "model file written by 'wxstress fit' (required)")
+	fs.IntVar(&o.paths, "paths", 10000, "number of synthetic years")
+	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
+	fs.IntVar(&o.workers, "workers", 0, "worker goroutines (default: all cores); never changes results")
+	fs.IntVar(&o.year, "year", 0, "target year (default: the year after the data end)")
+	fs.StringVar(&o.start, "start", sim.StartClimate, "start state: climate (stationary, after a burn-in) or conditional (the last observed anomalies)")
+	fs.StringArrayVar(&o.periods, "period", nil, "index period, repeatable (default: year, heating, cooling)")
+	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F, by the model's units)")
+	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
+	fs.Float64Var(&o.coldBelow, "cold-below", 0, "a cold day has a mean below this (default 0 °C or 32 °F)")
+	fs.StringArrayVar(&o.exceed, "exceed", nil, "report P(worse than a threshold): INDEX:VALUE or INDEX:PERIOD:VALUE, repeatable")
+	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
+	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
+	o.fs = fs
+	return fs
+}
+
+func (o *simulateOptions) validate() error {
+	if o.modelPath == "" {
+		return usagef("simulate: --model is required")
+	}
+	if o.paths <= 0 {
+		return usagef("simulate: --paths must be a positive number, got %d", o.paths)
+	}
+	if o.workers < 0 {
+		return usagef("simulate: --workers must be positive, got %d", o.workers)
+	}
+	if o.start != sim.StartClimate && o.start != sim.StartConditional {
+		return usagef("simulate: --start %q: want climate or conditional", o.start)
+	}
+	switch o.format {
+	case "table", "csv", "json":
+	default:
+		return usagef("simulate: --format %q: want table, csv or json", o.format)
+	}
+	for _, p := range o.periods {
+		if _, err := sim.ParsePeriod(p, 2001); err != nil {
+			return usagef("simulate: --period: %v", strings.TrimPrefix(err.Error(), "sim: "))
+		}
+	}
+	for _, s := range o.exceed {
+		th, err := sim.ParseThreshold(s)
+		if err != nil {
+			return usagef("simulate: --exceed: %v", strings.TrimPrefix(err.Error(), "sim: "))
+		}
+		o.thresholds = append(o.thresholds, th)
+	}
+	return nil
+}
+
+// config builds the simulation settings for model m.
+func (o *simulateOptions) config(m *model.File) sim.Config {
+	b := sim.DefaultBases(m.Data.Units)
+	if o.fs.Changed("hdd-base") {
+		b.HDD = o.hddBase
+	}
+	if o.fs.Changed("cdd-base") {
+		b.CDD = o.cddBase
+	}
+	if o.fs.Changed("cold-below") {
+		b.ColdBelow = o.coldBelow
+	}
+	return sim.Config{Paths: o.paths, Seed: o.seed, Workers: o.workers, Year: o.year, Start: o.start,
+		Periods: o.periods, Bases: b}
+}
+
+func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	var o simulateOptions
+	if err := parseFlags(newSimulateFlags(&o), simulateUsage, args, stdout); err != nil {
+		return err
+	}
+	if err := o.validate(); err != nil {
+		return err
+	}
+	m, sum, err := readModel(o.modelPath)
+	if err != nil {
+		return err
+	}
+	cfg := o.config(m)
+	stopBar := attachProgress(&cfg, stderr)
+	res, err := sim.Run(ctx, m, cfg)
+	stopBar()
+	if err != nil {
+		return err
+	}
+	rep := &render.SimReport{
+		Manifest: manifest(m, o.modelPath, sum, res),
+		Rows:     res.Summarize(m.Data.Units, o.thresholds),
+	}
+	if o.out != "" {
+		if err := writeSimDir(o.out, rep, res); err != nil {
+			return err
+		}
+	}
+	switch o.format {
+	case "json":
+		return render.SimJSON(stdout, rep)
+	case "csv":
+		return render.SimCSV(stdout, rep)
+	}
+	if err := render.SimTables(stdout, rep); err != nil {
+		return err
+	}
+	if o.out != "" {
+		fmt.Fprintf(stdout, "\nWrote tails.json, tails.csv and paths.csv to %s\n", o.out)
+	}
+	return nil
+}
+
+// readModel reads and validates a model file and returns its SHA-256.
+func readModel(path string) (*model.File, string, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, "", err
+	}
+	m, err := model.Decode(b, path)
+	if err != nil {
+		return nil, "", err
+	}
+	h := sha256.Sum256(b)
+	return m, hex.EncodeToString(h[:]), nil
+}
+
+func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Manifest {
+	c := res.Config
+	return render.Manifest{
+		Tool: "wxstress", ToolVersion: version, ModelFile: filepath.Base(modelPath), ModelSHA256: sum,
+		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
+		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,
+		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution,
+	}
+}
+
+// writeSimDir writes the tail tables and per-path aggregates into dir, each
+// file atomically.
+func writeSimDir(dir string, rep *render.SimReport, res *sim.Result) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	files := []struct {
+		name string
+		fill func(io.Writer) error
+	}{
+		{"tails.json", func(w io.Writer) error { return render.SimJSON(w, rep) }},
+		{"tails.csv", func(w io.Writer) error { return render.SimCSV(w, rep) }},
+		{"paths.csv", func(w io.Writer) error { return render.PathsCSV(w, res) }},
+	}
+	for _, f := range files {
+		if err := atomicfile.Write(filepath.Join(dir, f.name), f.fill); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// attachProgress shows a progress bar on stderr for runs of more than about
+// a second, when stderr is a terminal; it returns the function that clears it.
+func attachProgress(cfg *sim.Config, stderr io.Writer) func() {
+	f, ok := stderr.(*os.File)
+	if !ok || !term.IsTerminal(int(f.Fd())) || cfg.Paths < 200_000 {
+		return func() {}
+	}
+	bar := progressbar.NewOptions(cfg.Paths, progressbar.OptionSetWriter(f), progressbar.OptionSetDescription("simulating"),
+		progressbar.OptionShowCount(), progressbar.OptionThrottle(100_000_000), progressbar.OptionClearOnFinish())
+	cfg.Progress = func(n int) { bar.Add(n) }
+	return func() { bar.Finish() }
+}

@@ -1,0 +1,160 @@
+package model
+
+import (
+	"math"
+
+	"wxstress/calendar"
+)
+
+// Schema identifies the model file format; SchemaVersion is bumped on any
+// change a version-1 reader could misread. A reader accepts files whose
+// schema_version is at most its own.
+const (
+	Schema        = "wxstress-model"
+	SchemaVersion = 1
+)
+
+// Shock families.
+const (
+	FamilyNormal    = "normal"
+	FamilyStudentT  = "t"
+	FamilySkewT     = "skew-t"
+	FamilyBootstrap = "bootstrap"
+)
+
+// Families lists the shock families in the order reports show them.
+var Families = []string{FamilyNormal, FamilyStudentT, FamilySkewT, FamilyBootstrap}
+
+// File is the model file: everything the simulator needs, the provenance of
+// the data it came from, and the fit's diagnostics. Temperatures are in
+// Data.Units throughout (°C or °F); time t counts days from Trend.Epoch.
+//
+//	T(t) = S(t) + X(t)
+//	S(t) = a + b·t + Σₖ [cₖ cos(kωt) + sₖ sin(kωt)],  ω = 2π / period_days
+//	X(t) = Σᵢ φᵢ X(t−i) + σ(month of t) ε(t),  ε zero-mean, unit-variance
+type File struct {
+	Schema        string       `json:"schema"`
+	SchemaVersion int          `json:"schema_version"`
+	ToolVersion   string       `json:"tool_version"`
+	Data          Data         `json:"data"`
+	Trend         Trend        `json:"trend"`
+	Seasonal      Seasonal     `json:"seasonal"`
+	AR            AR           `json:"ar"`
+	Volatility    Volatility   `json:"volatility"`
+	Shocks        Shocks       `json:"shocks"`
+	Diagnostics   *Diagnostics `json:"diagnostics,omitempty"`
+}
+
+// Data describes the record the model was fitted to.
+type Data struct {
+	File        string        `json:"file"`
+	SHA256      string        `json:"sha256"`
+	FirstDate   calendar.Date `json:"first_date"`
+	LastDate    calendar.Date `json:"last_date"`
+	Units       string        `json:"units"` // "C" or "F"
+	MeanFrom    string        `json:"mean_from"`
+	Days        int           `json:"days"`    // days from first to last date
+	Missing     int           `json:"missing"` // of which without a value
+	LongestGap  int           `json:"longest_gap_days"`
+	Warnings    []string      `json:"warnings,omitempty"`
+	Description string        `json:"description,omitempty"`
+}
+
+// Trend is the linear part of S: a + b·t, t in days since Epoch.
+type Trend struct {
+	Kind      string        `json:"kind"` // "linear" or "none"
+	Epoch     calendar.Date `json:"epoch"`
+	Intercept float64       `json:"intercept"` // a: level at Epoch without the seasonal cycle
+	// SlopePerYear is b·365.25 (zero when Kind is "none"); the units are the
+	// data's units per year.
+	SlopePerYear float64 `json:"slope_per_year"`
+	// Estimate is the slope as fitted with a linear term, reported whether
+	// or not the model keeps it.
+	Estimate TrendEstimate `json:"estimate"`
+	Rule     string        `json:"rule"` // why the trend was kept or dropped
+}
+
+// TrendEstimate is a fitted slope with its standard errors, per decade.
+type TrendEstimate struct {
+	PerDecade float64 `json:"per_decade"`
+	// SEOLS is the ordinary least-squares standard error, which assumes
+	// independent residuals and so understates the uncertainty.
+	SEOLS float64 `json:"se_ols_per_decade"`
+	// SEAdjusted widens SEOLS for lag-1 autocorrelation r of the residuals
+	// by √((1 + r)/(1 − r)) (the effective-sample-size correction).
+	SEAdjusted float64 `json:"se_adjusted_per_decade"`
+}
+
+// Slope returns b, the slope per day.
+func (t Trend) Slope() float64 { return t.SlopePerYear / calendar.DaysPerYear }
+
+// Seasonal is the truncated Fourier series of S.
+type Seasonal struct {
+	PeriodDays float64    `json:"period_days"`
+	Harmonics  []Harmonic `json:"harmonics"`
+	// PeakDayOfYear and TroughDayOfYear locate the maximum and minimum of
+	// the whole seasonal cycle (all harmonics), 1-based and fractional.
+	PeakDayOfYear   float64 `json:"peak_day_of_year"`
+	TroughDayOfYear float64 `json:"trough_day_of_year"`
+	R2              float64 `json:"r2"` // of the mean model T ≈ S
+}
+
+// Harmonic k of the seasonal cycle: c cos(kωt) + s sin(kωt) = α sin(kωt + θ).
+type Harmonic struct {
+	K         int     `json:"k"`
+	Cos       float64 `json:"cos"`
+	Sin       float64 `json:"sin"`
+	Amplitude float64 `json:"amplitude"` // α = √(c² + s²)
+	Phase     float64 `json:"phase"`     // θ = atan2(c, s), radians
+	// PeakDayOfYear is the first maximum of this harmonic alone, 1-based
+	// (1 January = 1), fractional.
+	PeakDayOfYear float64 `json:"peak_day_of_year"`
+}
+
+// AR is the anomaly's autoregression.
+type AR struct {
+	Phi   []float64 `json:"phi"`    // φ₁..φₚ
+	PhiSE []float64 `json:"phi_se"` // conditional least-squares standard errors
+	// Last holds the last p anomalies of the record, most recent first
+	// (Last[0] is X on Data.LastDate); missing ones are 0.
+	Last []float64 `json:"last_anomalies"`
+}
+
+// Volatility is σ(t), the innovation standard deviation by calendar month.
+type Volatility struct {
+	Kind    string      `json:"kind"`    // "monthly"
+	Monthly [12]float64 `json:"monthly"` // January..December, in data units
+	Count   [12]int     `json:"count"`   // innovations behind each value
+	// Band is an approximate 95 % interval for each σ (normal theory: the
+	// chi-square interval of a variance).
+	Band [12][2]float64 `json:"band_95"`
+}
+
+// Shocks is the distribution of the unit-variance innovations ε.
+type Shocks struct {
+	Family string  `json:"family"`
+	DF     float64 `json:"df,omitempty"`   // ν, for "t" and "skew-t"
+	Skew   float64 `json:"skew,omitempty"` // ξ, for "skew-t" (1 = symmetric, < 1 = longer cold tail)
+	// ByMonth holds the standardized innovations of each calendar month,
+	// for "bootstrap" only.
+	ByMonth [][]float64 `json:"by_month,omitempty"`
+}
+
+// Omega returns ω = 2π / period.
+func (s Seasonal) Omega() float64 { return 2 * math.Pi / s.PeriodDays }
+
+// Mean returns S(t), the expected temperature at model time t (days since the epoch).
+func (f *File) Mean(t float64) float64 {
+	return f.Trend.Intercept + f.Trend.Slope()*t + f.Seasonal.At(t)
+}
+
+// At returns the seasonal cycle alone, Σₖ [cₖ cos(kωt) + sₖ sin(kωt)], at model time t.
+func (s Seasonal) At(t float64) float64 {
+	w := s.Omega()
+	v := 0.0
+	for _, h := range s.Harmonics {
+		kw := float64(h.K) * w * t
+		v += h.Cos*math.Cos(kw) + h.Sin*math.Sin(kw)
+	}
+	return v
+}

@@ -1,0 +1,111 @@
+package model
+
+import (
+	"errors"
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"wxstress/calendar"
+)
+
+func valid() *File {
+	f := &File{
+		Schema: Schema, SchemaVersion: SchemaVersion,
+		Data:       Data{FirstDate: calendar.FromYMD(2000, 1, 1), LastDate: calendar.FromYMD(2009, 12, 31), Units: "C"},
+		Trend:      Trend{Kind: "linear", Epoch: calendar.Epoch, Intercept: 10, SlopePerYear: 0.02},
+		Seasonal:   Seasonal{PeriodDays: calendar.DaysPerYear, Harmonics: []Harmonic{{K: 1, Cos: -10, Sin: -4}}},
+		AR:         AR{Phi: []float64{0.7}, Last: []float64{1.5}},
+		Volatility: Volatility{Kind: "monthly"},
+		Shocks:     Shocks{Family: FamilySkewT, DF: 8, Skew: 0.9},
+	}
+	for m := range 12 {
+		f.Volatility.Monthly[m] = 2
+	}
+	return f
+}
+
+func TestWriteReadRoundTrip(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "m.json")
+	f := valid()
+	if err := f.Write(p); err != nil {
+		t.Fatal(err)
+	}
+	g, err := Read(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tt := range []float64{-5000, 0, 123.4, 9000} {
+		if a, b := f.Mean(tt), g.Mean(tt); a != b {
+			t.Errorf("Mean(%v): %v before, %v after the round trip", tt, a, b)
+		}
+	}
+}
+
+func TestMeanFormula(t *testing.T) {
+	t.Parallel()
+	f := valid()
+	// S(t) = a + b·t + c cos ωt + s sin ωt with b = 0.02/365.25 per day.
+	tt := 100.0
+	w := 2 * math.Pi / 365.25
+	want := 10 + 0.02/365.25*tt - 10*math.Cos(w*tt) - 4*math.Sin(w*tt)
+	if got := f.Mean(tt); math.Abs(got-want) > 1e-12 {
+		t.Errorf("Mean = %v, want %v", got, want)
+	}
+}
+
+func TestValidateNamesTheKey(t *testing.T) {
+	t.Parallel()
+	cases := []struct {
+		edit func(f *File)
+		key  string
+	}{
+		{func(f *File) { f.Data.Units = "K" }, "data.units"},
+		{func(f *File) { f.Volatility.Monthly[5] = 0 }, "volatility.monthly[5]"},
+		{func(f *File) { f.Shocks.DF = 2 }, "shocks.df"},
+		{func(f *File) { f.Shocks.Skew = -1 }, "shocks.skew"},
+		{func(f *File) { f.AR.Phi = []float64{0.5, 0.6}; f.AR.Last = []float64{0, 0} }, "ar.phi"},
+		{func(f *File) { f.AR.Last = nil }, "ar.last_anomalies"},
+		{func(f *File) { f.Shocks.Family = "cauchy" }, "shocks.family"},
+		{func(f *File) { f.Trend.Kind = "none" }, "trend.slope_per_year"},
+		{func(f *File) { f.Seasonal.PeriodDays = 365.25 * 2 }, "seasonal.period_days"},
+		{func(f *File) { f.Shocks = Shocks{Family: FamilyBootstrap, ByMonth: make([][]float64, 12)} }, "shocks.by_month[0]"},
+	}
+	for _, c := range cases {
+		f := valid()
+		c.edit(f)
+		err := f.Validate("m.json")
+		var ke *KeyError
+		if !errors.As(err, &ke) || ke.Key != c.key || !errors.Is(err, ErrInvalid) {
+			t.Errorf("want an error naming %s, got %v", c.key, err)
+		}
+	}
+}
+
+func TestSpectralRadius(t *testing.T) {
+	t.Parallel()
+	// AR(2) φ = (0.5, 0.6): the roots of z² − 0.5z − 0.6 are (0.5 ± √2.65)/2,
+	// the larger 1.0639 (outside the unit circle: non-stationary).
+	if r := SpectralRadius([]float64{0.5, 0.6}); math.Abs(r-(0.5+math.Sqrt(2.65))/2) > 1e-12 {
+		t.Errorf("radius %v", r)
+	}
+	if r := SpectralRadius([]float64{0.7}); math.Abs(r-0.7) > 1e-15 {
+		t.Errorf("radius %v", r)
+	}
+}
+
+func TestDecodeRejectsNewerSchemaAndUnknownKeys(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct{ json, want string }{
+		{`{"schema":"wxstress-model","schema_version":2}`, "newer than this tool reads"},
+		{`{"schema":"other"}`, "not a wxstress model file"},
+		{`not json`, "not a model file"},
+	} {
+		_, err := Decode([]byte(c.json), "m.json")
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: error %v, want %q", c.json, err, c.want)
+		}
+	}
+}

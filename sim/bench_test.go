@@ -1,0 +1,44 @@
+package sim
+
+import (
+	"context"
+	"math/rand/v2"
+	"testing"
+
+	"wxstress/model"
+)
+
+// BenchmarkPathDay times the per-day kernel: one path of the default
+// periods (year, heating, cooling: 426 accumulated days plus the burn-in)
+// with Student-t shocks, reported per simulated day.
+func BenchmarkPathDay(b *testing.B) {
+	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
+	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
+	if err != nil {
+		b.Fatal(err)
+	}
+	segs := make([]segStats, len(pl.segs))
+	buf := make([]float64, pl.n)
+	var rng rand.PCG
+	for i := 0; b.Loop(); i++ {
+		seedPath(&rng, 1, i)
+		pl.temps(&rng, buf)
+		pl.accumulate(buf, segs)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(pl.n), "ns/day")
+}
+
+// BenchmarkRun times a whole run of 100 000 paths on all cores, tail
+// tables excluded, and reports simulated station-days per second.
+func BenchmarkRun(b *testing.B) {
+	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
+	var days int
+	for b.Loop() {
+		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: DefaultBases("C")})
+		if err != nil {
+			b.Fatal(err)
+		}
+		days = res.SimulatedDays * 100_000
+	}
+	b.ReportMetric(float64(days)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mdays/s")
+}

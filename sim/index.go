@@ -1,0 +1,57 @@
+package sim
+
+// Index is a per-path aggregate of a period: what a tail table has a row for.
+type Index int
+
+const (
+	HDD       Index = iota // heating degree days, Σ max(Tb − T, 0)
+	CDD                    // cooling degree days, Σ max(T − Tb, 0)
+	Coldest                // lowest daily mean
+	Hottest                // highest daily mean
+	ColdDays               // days with a mean below the cold threshold
+	ColdSpell              // longest run of such days
+	numTempIndices
+)
+
+// Info describes an index for reports.
+type Info struct {
+	Key  string // short name for flags and files: "hdd", "coldest", ...
+	Name string // report name: "HDD", "coldest day", ...
+	// HighIsAdverse says which tail is the risk: true for HDD, CDD, demand;
+	// false for the coldest day.
+	HighIsAdverse bool
+	unit          string // "dd" (degree days), "deg" (temperature) or a literal
+}
+
+var indexInfo = [...]Info{
+	HDD:       {"hdd", "HDD", true, "dd"},
+	CDD:       {"cdd", "CDD", true, "dd"},
+	Coldest:   {"coldest", "coldest day", false, "deg"},
+	Hottest:   {"hottest", "hottest day", true, "deg"},
+	ColdDays:  {"cold-days", "cold days", true, "days"},
+	ColdSpell: {"cold-spell", "longest cold spell", true, "days"},
+}
+
+// Info returns the description of the index.
+func (x Index) Info() Info { return indexInfo[x] }
+
+// Unit returns the index's unit for temperatures in units ("C" or "F").
+func (i Info) Unit(units string) string {
+	switch i.unit {
+	case "dd":
+		return "°" + units + "·day"
+	case "deg":
+		return "°" + units
+	}
+	return i.unit
+}
+
+// IndexByKey finds an index by its key.
+func IndexByKey(key string) (Index, bool) {
+	for i, in := range indexInfo {
+		if in.Key == key {
+			return Index(i), true
+		}
+	}
+	return 0, false
+}

@@ -1,0 +1,51 @@
+package sim
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestParsePeriod(t *testing.T) {
+	t.Parallel()
+	cases := []struct {
+		name     string
+		year     int
+		from, to string
+		days     int
+	}{
+		{"year", 2024, "2024-01-01", "2024-12-31", 366},
+		{"Heating", 2025, "2024-11-01", "2025-03-31", 151},
+		{"heating", 2024, "2023-11-01", "2024-03-31", 152},
+		{"cooling", 2025, "2025-05-01", "2025-09-30", 153},
+		{"gas-year", 2025, "2024-10-01", "2025-09-30", 365},
+		{"feb", 2024, "2024-02-01", "2024-02-29", 29},
+		{"dec", 2025, "2025-12-01", "2025-12-31", 31},
+		{"12-15:01-15", 2025, "2024-12-15", "2025-01-15", 32},
+		{"06-01:06-01", 2025, "2025-06-01", "2025-06-01", 1},
+		{"02-01:02-29", 2025, "2025-02-01", "2025-02-28", 28},
+	}
+	for _, c := range cases {
+		p, err := ParsePeriod(c.name, c.year)
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		if p.From.String() != c.from || p.To.String() != c.to || p.Days() != c.days {
+			t.Errorf("%s %d: %s..%s (%d days), want %s..%s (%d)", c.name, c.year, p.From, p.To, p.Days(), c.from, c.to, c.days)
+		}
+	}
+}
+
+func TestParsePeriodErrorsListValidForms(t *testing.T) {
+	t.Parallel()
+	for _, bad := range []string{"winter", "13-01:02-01", "02-30:03-01", "1-1:2-2", "01-01", "01-01:", ""} {
+		_, err := ParsePeriod(bad, 2025)
+		if err == nil {
+			t.Errorf("%q accepted", bad)
+			continue
+		}
+		if !strings.Contains(err.Error(), "MM-DD:MM-DD") {
+			t.Errorf("%q: error %q does not show the valid form", bad, err)
+		}
+	}
+}

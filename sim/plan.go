@@ -1,0 +1,172 @@
+package sim
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"wxstress/calendar"
+	"wxstress/model"
+	"wxstress/shocks"
+)
+
+// Start modes.
+const (
+	StartClimate     = "climate"     // stationary state after a burn-in
+	StartConditional = "conditional" // the last observed anomalies
+)
+
+// Bases are the thresholds of the degree-day and cold-day indices, in the
+// model's units.
+type Bases struct {
+	HDD, CDD  float64 // degree-day bases
+	ColdBelow float64 // a day is cold when its mean is below this
+}
+
+// DefaultBases returns 18 °C / 65 °F for both degree-day bases and a cold
+// threshold of 0 °C / 32 °F: the usual bases of degree-day indices (common
+// practice; 65 °F is the US convention, 18 °C the European one).
+func DefaultBases(units string) Bases {
+	if units == "F" {
+		return Bases{HDD: 65, CDD: 65, ColdBelow: 32}
+	}
+	return Bases{HDD: 18, CDD: 18, ColdBelow: 0}
+}
+
+// segment is a run of accumulated days [lo, hi) that no period boundary
+// splits; periods are unions of consecutive segments.
+type segment struct{ lo, hi int }
+
+// plan is everything about a run that does not depend on the path: the
+// per-day constants are computed once so the day loop only draws, steps
+// the AR and accumulates.
+type plan struct {
+	first   calendar.Date // first simulated day
+	n       int           // simulated days
+	acc     int           // index of the first accumulated day
+	mean    []float64     // S(t) per day
+	sd      []float64     // σ(month) times the shock scale, per day
+	poolOff []int32       // bootstrap: offset of the day's month in pool
+	poolLen []uint64      // bootstrap: size of that month's pool
+	pool    []float64     // bootstrap: standardized innovations by month
+	table   *shocks.Table // parametric shocks
+	p       int           // AR order
+	phi     [maxAR]float64
+	x0      [maxAR]float64 // AR state before the first day, most recent first
+	segs    []segment
+	pspan   [][2]int // per period: segments [s0, s1)
+	bases   Bases
+}
+
+const maxAR = 5
+
+// burnInDays returns how many days a climatological run simulates before its
+// first accumulated day, starting from X = 0: enough for the start's
+// influence on the variance to fall below 1e-6 of the stationary value
+// (ρ^(2B) < 1e-6 for the AR's spectral radius ρ), at least 30 days.
+func burnInDays(phi []float64) int {
+	r := model.SpectralRadius(phi)
+	if r <= 0 {
+		return 30
+	}
+	b := int(math.Ceil(3 * math.Ln10 / -math.Log(r)))
+	return min(max(b, 30), 5000)
+}
+
+func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
+	from, to := periods[0].From, periods[0].To
+	for _, p := range periods[1:] {
+		from, to = min(from, p.From), max(to, p.To)
+	}
+	pl := &plan{bases: cfg.Bases}
+	pl.p = len(m.AR.Phi)
+	copy(pl.phi[:], m.AR.Phi)
+	switch cfg.Start {
+	case StartConditional:
+		if from <= m.Data.LastDate {
+			return nil, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
+				"choose a later --year or --start climate", m.Data.LastDate, periodStarting(periods, from), from)
+		}
+		pl.first = m.Data.LastDate + 1
+		copy(pl.x0[:], m.AR.Last)
+	default:
+		pl.first = from - calendar.Date(burnInDays(m.AR.Phi))
+	}
+	pl.n = int(to-pl.first) + 1
+	pl.acc = int(from - pl.first)
+
+	pl.mean = make([]float64, pl.n)
+	pl.sd = make([]float64, pl.n)
+	months := make([]int, pl.n)
+	for i := range pl.n {
+		d := pl.first + calendar.Date(i)
+		months[i] = int(d.Month()) - 1
+		pl.mean[i] = m.Mean(d.ModelTime())
+		pl.sd[i] = m.Volatility.Monthly[months[i]]
+	}
+	if err := pl.setShocks(m.Shocks, months); err != nil {
+		return nil, err
+	}
+
+	// Elementary segments between all period boundaries.
+	cuts := []int{}
+	for _, p := range periods {
+		cuts = append(cuts, int(p.From-pl.first), int(p.To-pl.first)+1)
+	}
+	slices.Sort(cuts)
+	cuts = slices.Compact(cuts)
+	for i := 0; i+1 < len(cuts); i++ {
+		pl.segs = append(pl.segs, segment{cuts[i], cuts[i+1]})
+	}
+	for _, p := range periods {
+		lo, hi := int(p.From-pl.first), int(p.To-pl.first)+1
+		s0 := slices.IndexFunc(pl.segs, func(s segment) bool { return s.lo == lo })
+		s1 := slices.IndexFunc(pl.segs, func(s segment) bool { return s.hi == hi }) + 1
+		pl.pspan = append(pl.pspan, [2]int{s0, s1})
+	}
+	return pl, nil
+}
+
+func periodStarting(ps []Period, d calendar.Date) string {
+	for _, p := range ps {
+		if p.From == d {
+			return "period " + p.Name
+		}
+	}
+	return "a period"
+}
+
+func (pl *plan) setShocks(s model.Shocks, months []int) error {
+	switch s.Family {
+	case model.FamilyBootstrap:
+		offs := make([]int32, 12)
+		for m, z := range s.ByMonth {
+			offs[m] = int32(len(pl.pool))
+			pl.pool = append(pl.pool, z...)
+		}
+		pl.poolOff = make([]int32, pl.n)
+		pl.poolLen = make([]uint64, pl.n)
+		for i, m := range months {
+			pl.poolOff[i], pl.poolLen[i] = offs[m], uint64(len(s.ByMonth[m]))
+		}
+		return nil
+	case model.FamilyNormal:
+		pl.table = shocks.NewTable(shocks.Normal{})
+	case model.FamilyStudentT:
+		pl.table = shocks.NewTable(shocks.StudentT{Nu: s.DF})
+	case model.FamilySkewT:
+		pl.table = shocks.NewTable(shocks.SkewT{Nu: s.DF, Xi: s.Skew})
+	default:
+		return fmt.Errorf("sim: unknown shock family %q", s.Family)
+	}
+	// The table cuts the tails beyond 2⁻⁵⁴: negligible for ν ≥ 3, but for ν
+	// near 2 much of the variance lies out there. Rescale so the shocks
+	// simulated have unit variance whatever ν is.
+	if _, v := pl.table.Moments(); v > 0 && v != 1 {
+		c := 1 / math.Sqrt(v)
+		for i := range pl.sd {
+			pl.sd[i] *= c
+		}
+	}
+	return nil
+}

@@ -1,0 +1,115 @@
+package sim
+
+import (
+	"math"
+	"slices"
+
+	"gonum.org/v1/gonum/stat"
+)
+
+// Probabilities of the quantile columns of a tail table.
+var Probs = []float64{0.01, 0.05, 0.10, 0.25, 0.50, 0.75, 0.90, 0.95, 0.99}
+
+// ReturnPeriods are the T of the 1-in-T return levels, in years.
+var ReturnPeriods = []int{2, 5, 10, 20, 50, 100}
+
+// Tail summarises the distribution of one aggregate across paths.
+//
+// Quantiles use gonum's stat.LinInterp: linear interpolation of the
+// empirical CDF, type 4 of Hyndman and Fan (1996), R's quantile(type = 4).
+// "Adverse" is the high side for every index but the coldest day, where it is
+// the low side.
+type Tail struct {
+	N         int
+	Mean      float64
+	SD        float64
+	MeanSE    float64   // Monte Carlo standard error of the mean, SD/√N
+	Quantiles []float64 // at Probs
+	// VaR95 and VaR99 are the adverse 95 % and 99 % quantiles (P95 and P99,
+	// or P5 and P1 when low is adverse); ES95 and ES99 are the means of the
+	// worst ⌈0.05·N⌉ and ⌈0.01·N⌉ paths (expected shortfall).
+	VaR95, VaR99 float64
+	ES95, ES99   float64
+	// ReturnLevels[i] is the level reached or passed on the adverse side once
+	// in ReturnPeriods[i] years on average: the quantile 1 − 1/T (1/T when
+	// low is adverse) of the per-year value.
+	ReturnLevels []float64
+	Exceedances  []Exceedance
+}
+
+// Exceedance is the probability that a year is worse than a threshold: above
+// it when high is adverse, below it otherwise.
+type Exceedance struct {
+	Threshold float64
+	Prob      float64
+	SE        float64 // binomial Monte Carlo standard error √(p(1 − p)/N)
+}
+
+// Summarize computes the tail table of values (which it does not modify).
+func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail {
+	n := len(values)
+	if n == 0 {
+		panic("sim: Summarize of no values")
+	}
+	x := slices.Clone(values)
+	slices.Sort(x)
+	t := Tail{N: n}
+	t.Mean, t.SD = stat.MeanStdDev(x, nil)
+	if n < 2 {
+		t.SD = 0
+	}
+	t.MeanSE = t.SD / math.Sqrt(float64(n))
+	q := func(p float64) float64 { return stat.Quantile(p, stat.LinInterp, x, nil) }
+	for _, p := range Probs {
+		t.Quantiles = append(t.Quantiles, q(p))
+	}
+	adverse := func(p float64) float64 { // quantile p on the adverse side
+		if highIsAdverse {
+			return q(p)
+		}
+		return q(1 - p)
+	}
+	t.VaR95, t.VaR99 = adverse(0.95), adverse(0.99)
+	t.ES95, t.ES99 = shortfall(x, 0.05, highIsAdverse), shortfall(x, 0.01, highIsAdverse)
+	for _, T := range ReturnPeriods {
+		t.ReturnLevels = append(t.ReturnLevels, adverse(1-1/float64(T)))
+	}
+	for _, th := range thresholds {
+		var k int
+		if highIsAdverse {
+			k = n - upperBound(x, th)
+		} else {
+			k = lowerBound(x, th)
+		}
+		p := float64(k) / float64(n)
+		t.Exceedances = append(t.Exceedances, Exceedance{th, p, math.Sqrt(p * (1 - p) / float64(n))})
+	}
+	return t
+}
+
+// shortfall is the mean of the worst ⌈a·n⌉ values of sorted x.
+func shortfall(x []float64, a float64, highIsAdverse bool) float64 {
+	k := max(int(math.Ceil(a*float64(len(x))-1e-9)), 1)
+	tail := x[:k]
+	if highIsAdverse {
+		tail = x[len(x)-k:]
+	}
+	return stat.Mean(tail, nil)
+}
+
+// upperBound returns the number of sorted values ≤ v.
+func upperBound(x []float64, v float64) int {
+	i, _ := slices.BinarySearchFunc(x, v, func(a, b float64) int {
+		if a <= b {
+			return -1
+		}
+		return 1
+	})
+	return i
+}
+
+// lowerBound returns the number of sorted values < v.
+func lowerBound(x []float64, v float64) int {
+	i, _ := slices.BinarySearch(x, v)
+	return i
+}

@@ -1,0 +1,85 @@
+package sim
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"testing"
+)
+
+// Golden values: testdata/tail_golden.json, written by testdata/tail_golden.R
+// with R 4.2.2: quantile(x, probs, type = 4), the empirical expected
+// shortfall as the mean of the worst ceiling(a·n) values, mean and sd.
+type tailGolden struct {
+	X          []float64
+	Quantiles  []float64 `json:"quantile_type4"`
+	ReturnHigh []float64 `json:"return_high_type4"`
+	ReturnLow  []float64 `json:"return_low_type4"`
+	ES95High   float64   `json:"es95_high"`
+	ES99High   float64   `json:"es99_high"`
+	ES95Low    float64   `json:"es95_low"`
+	ES99Low    float64   `json:"es99_low"`
+	Mean, SD   float64
+	Exceed600  float64 `json:"exceed_600"`
+	Below100   float64 `json:"below_100"`
+}
+
+const tolTail = 1e-12 // relative: the same arithmetic as R
+
+func TestSummarizeMatchesR(t *testing.T) {
+	t.Parallel()
+	b, err := os.ReadFile("testdata/tail_golden.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g tailGolden
+	if err := json.Unmarshal(b, &g); err != nil {
+		t.Fatal(err)
+	}
+	check := func(what string, got, want float64) {
+		t.Helper()
+		if math.Abs(got-want) > tolTail*math.Abs(want) {
+			t.Errorf("%s = %.15g, R gives %.15g", what, got, want)
+		}
+	}
+	hi := Summarize(g.X, true, []float64{600})
+	lo := Summarize(g.X, false, []float64{100})
+	for i := range Probs {
+		check("quantile", hi.Quantiles[i], g.Quantiles[i])
+	}
+	for i := range ReturnPeriods {
+		check("return level (high adverse)", hi.ReturnLevels[i], g.ReturnHigh[i])
+		check("return level (low adverse)", lo.ReturnLevels[i], g.ReturnLow[i])
+	}
+	check("ES95 high", hi.ES95, g.ES95High)
+	check("ES99 high", hi.ES99, g.ES99High)
+	check("ES95 low", lo.ES95, g.ES95Low)
+	check("ES99 low", lo.ES99, g.ES99Low)
+	check("mean", hi.Mean, g.Mean)
+	check("sd", hi.SD, g.SD)
+	check("P(x > 600)", hi.Exceedances[0].Prob, g.Exceed600)
+	check("P(x < 100)", lo.Exceedances[0].Prob, g.Below100)
+	check("VaR95 = P95", hi.VaR95, g.Quantiles[7])
+	check("VaR95 low = P5", lo.VaR95, g.Quantiles[1])
+}
+
+func TestSummarizeDoesNotReorderInput(t *testing.T) {
+	t.Parallel()
+	x := []float64{3, 1, 2}
+	Summarize(x, true, nil)
+	if x[0] != 3 || x[1] != 1 || x[2] != 2 {
+		t.Errorf("input reordered: %v", x)
+	}
+}
+
+func TestExceedanceCountsTiesOnTheSafeSide(t *testing.T) {
+	t.Parallel()
+	// "Worse than" is strict: a year exactly at the threshold does not exceed it.
+	x := []float64{1, 2, 2, 2, 3}
+	if p := Summarize(x, true, []float64{2}).Exceedances[0].Prob; p != 0.2 {
+		t.Errorf("P(x > 2) = %v, want 0.2", p)
+	}
+	if p := Summarize(x, false, []float64{2}).Exceedances[0].Prob; p != 0.2 {
+		t.Errorf("P(x < 2) = %v, want 0.2", p)
+	}
+}
