@@ -194,32 +194,51 @@ func (pl *plan) temps(rng *rand.PCG, buf []float64) {
 }
 
 // accumulate reduces one path's temperatures to its segment statistics.
+// This loop runs for every day of every path, so it is written for the
+// machine: two passes with few live values each (no register spills), the
+// degree days as max(x, 0) = (x + |x|)/2 (no branch, no NaN handling), the
+// cold-run counter branch-free.
 func (pl *plan) accumulate(buf []float64, segs []segStats) {
-	b := pl.bases
+	hb, cb, cold := pl.bases.HDD, pl.bases.CDD, pl.bases.ColdBelow
 	for s, sg := range pl.segs {
-		st := segStats{lo: math.Inf(1), hi: math.Inf(-1), length: sg.hi - sg.lo}
-		run, alive := 0, 1
-		for _, t := range buf[sg.lo:sg.hi] {
-			st.hdd += max(b.HDD-t, 0)
-			st.cdd += max(t-b.CDD, 0)
-			if t < st.lo {
-				st.lo = t
-			}
-			if t > st.hi {
-				st.hi = t
-			}
+		days := buf[sg.lo:sg.hi]
+		// Two interleaved sums per index halve the add-latency chain.
+		var h0, h1, c0, c1 float64 // twice the degree days, even and odd days
+		lo, hi := math.Inf(1), math.Inf(-1)
+		i := 0
+		for ; i+1 < len(days); i += 2 {
+			t, u := days[i], days[i+1]
+			a, b := hb-t, hb-u
+			h0 += a + math.Abs(a)
+			h1 += b + math.Abs(b)
+			a, b = t-cb, u-cb
+			c0 += a + math.Abs(a)
+			c1 += b + math.Abs(b)
+			lo, hi = min3(lo, t, u), max3(hi, t, u)
+		}
+		if i < len(days) {
+			t := days[i]
+			a, b := hb-t, t-cb
+			h0 += a + math.Abs(a)
+			c0 += b + math.Abs(b)
+			lo, hi = min3(lo, t, t), max3(hi, t, t)
+		}
+		hdd2, cdd2 := h0+h1, c0+c1
+		var count, best, prefix, run int
+		alive := -1 // all ones while every day so far was cold
+		for _, t := range days {
 			c := 0
-			if t < b.ColdBelow {
+			if t < cold {
 				c = 1
 			}
-			run = (run + 1) * c
-			st.best = max(st.best, run)
-			st.cold += c
-			alive &= c
-			st.prefix += alive
+			run = (run + 1) & -c
+			best = max(best, run)
+			count += c
+			alive &= -c
+			prefix -= alive
 		}
-		st.suffix = run
-		segs[s] = st
+		segs[s] = segStats{hdd: hdd2 / 2, cdd: cdd2 / 2, lo: lo, hi: hi, cold: count, best: best, prefix: prefix,
+			suffix: run, length: len(days)}
 	}
 }
 
@@ -249,4 +268,26 @@ func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
 		o[Coldest][i], o[Hottest][i] = lo, hi
 		o[ColdDays][i], o[ColdSpell][i] = float64(cold), float64(best)
 	}
+}
+
+// min3 and max3 compare plainly (the simulated values are never NaN), which
+// compiles to branches the predictor gets right almost always.
+func min3(a, b, c float64) float64 {
+	if b < a {
+		a = b
+	}
+	if c < a {
+		a = c
+	}
+	return a
+}
+
+func max3(a, b, c float64) float64 {
+	if b > a {
+		a = b
+	}
+	if c > a {
+		a = c
+	}
+	return a
 }
