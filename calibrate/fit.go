@@ -112,7 +112,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	var mean olsFit
 	k := set.Harmonics
 	for K := 1; K <= MaxHarmonics; K++ {
-		fit, err := ols(design(s, obs, K, trendKind == "linear"), values(s, obs))
+		fit, err := ols(design(s, obs, K, trendKind == "linear", calendar.DaysPerYear), values(s, obs))
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %v", s.Name, ErrFit, K, err)
 		}
@@ -122,7 +122,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		}
 	}
 	d.HarmonicsTable[k-1].Chosen = true
-	f.Trend, f.Seasonal = meanParams(mean, k, trendKind == "linear")
+	f.Trend, f.Seasonal = meanParams(mean, k, trendKind == "linear", calendar.DaysPerYear)
 	f.Trend.Rule = rule
 	f.Seasonal.R2 = mean.R2()
 
@@ -131,7 +131,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	withTrend := mean
 	if trendKind != "linear" {
 		var err error
-		if withTrend, err = ols(design(s, obs, k, true), values(s, obs)); err != nil {
+		if withTrend, err = ols(design(s, obs, k, true, calendar.DaysPerYear), values(s, obs)); err != nil {
 			return nil, fmt.Errorf("%s: %w: trend estimate: %v", s.Name, ErrFit, err)
 		}
 	}
@@ -260,15 +260,16 @@ func values(s *Series, idx []int) []float64 {
 	return y
 }
 
-// design returns the mean model's regressors [1, t/decade, cos kωt, sin kωt]
-// for the days idx.
-func design(s *Series, idx []int, harmonics int, trend bool) *mat.Dense {
+// design returns the mean model's regressors [1, t/decade, cos kωt, sin kωt],
+// ω = 2π/period, for the days idx. The model always uses the mean calendar
+// year; the period is a parameter so tests can show what another one does.
+func design(s *Series, idx []int, harmonics int, trend bool, period float64) *mat.Dense {
 	cols := 1 + 2*harmonics
 	if trend {
 		cols++
 	}
 	x := mat.NewDense(len(idx), cols, nil)
-	w := 2 * math.Pi / calendar.DaysPerYear
+	w := 2 * math.Pi / period
 	for r, i := range idx {
 		t := s.Date(i).ModelTime()
 		row := x.RawRowView(r)
@@ -289,7 +290,7 @@ func design(s *Series, idx []int, harmonics int, trend bool) *mat.Dense {
 
 // meanParams turns the mean model's coefficients into the model's trend and
 // seasonal parts.
-func meanParams(fit olsFit, harmonics int, trend bool) (model.Trend, model.Seasonal) {
+func meanParams(fit olsFit, harmonics int, trend bool, period float64) (model.Trend, model.Seasonal) {
 	tr := model.Trend{Kind: "none", Epoch: calendar.Epoch, Intercept: fit.Beta[0]}
 	c := 1
 	if trend {
@@ -297,7 +298,7 @@ func meanParams(fit olsFit, harmonics int, trend bool) (model.Trend, model.Seaso
 		tr.SlopePerYear = fit.Beta[1] / 10
 		c = 2
 	}
-	se := model.Seasonal{PeriodDays: calendar.DaysPerYear}
+	se := model.Seasonal{PeriodDays: period}
 	w := se.Omega()
 	for k := 1; k <= harmonics; k++ {
 		a, b := fit.Beta[c], fit.Beta[c+1]

@@ -1,6 +1,8 @@
 package model
 
 import (
+	"bytes"
+	"encoding/json"
 	"math"
 
 	"wxstress/calendar"
@@ -130,14 +132,57 @@ type Volatility struct {
 	Band [12][2]float64 `json:"band_95"`
 }
 
-// Shocks is the distribution of the unit-variance innovations ε.
+// Shocks is the distribution of the unit-variance innovations ε. In the
+// file, df is null where it does not apply (normal, bootstrap) and skew is 1
+// for the symmetric families and null for the bootstrap, so that scripts
+// always find both keys.
 type Shocks struct {
-	Family string  `json:"family"`
-	DF     float64 `json:"df,omitempty"`   // ν, for "t" and "skew-t"
-	Skew   float64 `json:"skew,omitempty"` // ξ, for "skew-t" (1 = symmetric, < 1 = longer cold tail)
+	Family string
+	DF     float64 // ν, for "t" and "skew-t"
+	Skew   float64 // ξ, for "skew-t" (1 = symmetric, < 1 = longer cold tail)
 	// ByMonth holds the standardized innovations of each calendar month,
 	// for "bootstrap" only.
+	ByMonth [][]float64
+}
+
+type shocksJSON struct {
+	Family  string      `json:"family"`
+	DF      *float64    `json:"df"`
+	Skew    *float64    `json:"skew"`
 	ByMonth [][]float64 `json:"by_month,omitempty"`
+}
+
+// MarshalJSON writes df and skew as described on Shocks.
+func (s Shocks) MarshalJSON() ([]byte, error) {
+	j := shocksJSON{Family: s.Family, ByMonth: s.ByMonth}
+	one := 1.0
+	switch s.Family {
+	case FamilyStudentT:
+		j.DF, j.Skew = &s.DF, &one
+	case FamilySkewT:
+		j.DF, j.Skew = &s.DF, &s.Skew
+	case FamilyNormal:
+		j.Skew = &one
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads df and skew, null meaning not applicable.
+func (s *Shocks) UnmarshalJSON(b []byte) error {
+	var j shocksJSON
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&j); err != nil {
+		return err
+	}
+	*s = Shocks{Family: j.Family, ByMonth: j.ByMonth}
+	if j.DF != nil {
+		s.DF = *j.DF
+	}
+	if j.Skew != nil {
+		s.Skew = *j.Skew
+	}
+	return nil
 }
 
 // Omega returns ω = 2π / period.
