@@ -517,7 +517,7 @@ func thin(a, b []float64) ([]float64, []float64) {
 //
 // where ψ is the AR's impulse response, averaged over the windows.
 func windowSpread(s *Series, f *model.File, x []float64, L int) model.WindowSpread {
-	psi := impulse(f.AR.Phi)
+	psi := model.ImpulseResponse(f.AR.Phi)
 	cum := make([]float64, len(psi))
 	acc := 0.0
 	for j, v := range psi {
@@ -559,23 +559,4 @@ func windowSpread(s *Series, f *model.File, x []float64, L int) model.WindowSpre
 		ws.Model = math.Sqrt(varSum / float64(len(means)))
 	}
 	return ws
-}
-
-// impulse returns the AR's impulse response ψ₀ = 1, ψⱼ = Σᵢ φᵢ ψⱼ₋ᵢ until it
-// falls below 1e-12 (or 5000 lags).
-func impulse(phi []float64) []float64 {
-	psi := []float64{1}
-	for j := 1; j < 5000; j++ {
-		v := 0.0
-		for i, p := range phi {
-			if j-i-1 >= 0 {
-				v += p * psi[j-i-1]
-			}
-		}
-		psi = append(psi, v)
-		if j > len(phi) && math.Abs(v) < 1e-12 && math.Abs(psi[j-1]) < 1e-12 {
-			break
-		}
-	}
-	return psi
 }

@@ -161,6 +161,19 @@ func (f *File) Validate(name string) error {
 			return bad(fmt.Sprintf("volatility.monthly[%d]", m), "σ = %v, must be positive and finite", s)
 		}
 	}
+	if sc := f.Scenario; sc != nil {
+		for m, v := range sc.MonthlyShift {
+			if !finite(v) || math.Abs(v) > 50 {
+				return bad(fmt.Sprintf("scenario.monthly_shift[%d]", m), "%v is not a plausible shift", v)
+			}
+		}
+		for i, e := range sc.Events {
+			key := fmt.Sprintf("scenario.events[%d]", i)
+			if e.Days < 1 || e.Days > 366 || !finite(e.Delta) || math.Abs(e.Delta) > 50 || !(e.Probability > 0 && e.Probability <= 1) {
+				return bad(key, "needs 1..366 days, |delta| ≤ 50 and a probability in (0, 1]")
+			}
+		}
+	}
 	sh := f.Shocks
 	switch sh.Family {
 	case FamilyNormal:

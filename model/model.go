@@ -35,16 +35,39 @@ var Families = []string{FamilyNormal, FamilyStudentT, FamilySkewT, FamilyBootstr
 //	S(t) = a + b·t + Σₖ [cₖ cos(kωt) + sₖ sin(kωt)],  ω = 2π / period_days
 //	X(t) = Σᵢ φᵢ X(t−i) + σ(month of t) ε(t),  ε zero-mean, unit-variance
 type File struct {
-	Schema        string       `json:"schema"`
-	SchemaVersion int          `json:"schema_version"`
-	ToolVersion   string       `json:"tool_version"`
-	Data          Data         `json:"data"`
-	Trend         Trend        `json:"trend"`
-	Seasonal      Seasonal     `json:"seasonal"`
-	AR            AR           `json:"ar"`
-	Volatility    Volatility   `json:"volatility"`
-	Shocks        Shocks       `json:"shocks"`
-	Diagnostics   *Diagnostics `json:"diagnostics,omitempty"`
+	Schema        string     `json:"schema"`
+	SchemaVersion int        `json:"schema_version"`
+	ToolVersion   string     `json:"tool_version"`
+	Data          Data       `json:"data"`
+	Trend         Trend      `json:"trend"`
+	Seasonal      Seasonal   `json:"seasonal"`
+	AR            AR         `json:"ar"`
+	Volatility    Volatility `json:"volatility"`
+	Shocks        Shocks     `json:"shocks"`
+	// Scenario is what a scenario added that the fitted parameters cannot
+	// express; nil for a fitted model.
+	Scenario    *Scenario    `json:"scenario,omitempty"`
+	Diagnostics *Diagnostics `json:"diagnostics,omitempty"`
+}
+
+// Scenario holds the parts of a scenario the simulator applies itself: a
+// level shift by calendar month (added to S) and injected events (added to
+// T on top of the simulated anomaly).
+type Scenario struct {
+	Name         string      `json:"name"`
+	MonthlyShift [12]float64 `json:"monthly_shift"`
+	Events       []Event     `json:"events,omitempty"`
+}
+
+// Event is a spell of Days days whose daily mean is moved by Delta (negative
+// for a cold spell), starting on a day drawn uniformly from Window (a
+// period of the form MM-DD:MM-DD; one that crosses the year end starts in
+// the year before the target year), in a year with probability Probability.
+type Event struct {
+	Days        int     `json:"days"`
+	Delta       float64 `json:"delta"`
+	Window      string  `json:"window"`
+	Probability float64 `json:"probability"`
 }
 
 // Data describes the record the model was fitted to.
@@ -202,4 +225,33 @@ func (s Seasonal) At(t float64) float64 {
 		v += h.Cos*math.Cos(kw) + h.Sin*math.Sin(kw)
 	}
 	return v
+}
+
+// ImpulseResponse returns the AR's response to a unit shock, ψ₀ = 1,
+// ψⱼ = Σᵢ φᵢ ψⱼ₋ᵢ, until it falls below 1e-12 (at most 10 000 lags).
+func ImpulseResponse(phi []float64) []float64 {
+	psi := []float64{1}
+	for j := 1; j < 10000; j++ {
+		v := 0.0
+		for i, p := range phi {
+			if j-i-1 >= 0 {
+				v += p * psi[j-i-1]
+			}
+		}
+		psi = append(psi, v)
+		if j > len(phi) && math.Abs(v) < 1e-12 && math.Abs(psi[j-1]) < 1e-12 {
+			break
+		}
+	}
+	return psi
+}
+
+// StationaryGain is Σψⱼ², the stationary variance of the AR driven by unit
+// innovations (1/(1 − φ²) for an AR(1)).
+func StationaryGain(phi []float64) float64 {
+	sum := 0.0
+	for _, v := range ImpulseResponse(phi) {
+		sum += v * v
+	}
+	return sum
 }

@@ -109,3 +109,17 @@ func TestDecodeRejectsNewerSchemaAndUnknownKeys(t *testing.T) {
 		}
 	}
 }
+
+func TestStationaryGain(t *testing.T) {
+	t.Parallel()
+	// AR(1): 1/(1 − φ²); AR(2): (1 − φ₂)/((1 + φ₂)((1 − φ₂)² − φ₁²)) (standard
+	// results, e.g. Box, Jenkins and Reinsel, ch. 3).
+	if g := StationaryGain([]float64{0.7}); math.Abs(g-1/(1-0.49)) > 1e-9 {
+		t.Errorf("AR(1) gain %v", g)
+	}
+	p1, p2 := 0.6, 0.2
+	want := (1 - p2) / ((1 + p2) * ((1-p2)*(1-p2) - p1*p1))
+	if g := StationaryGain([]float64{p1, p2}); math.Abs(g-want) > 1e-9 {
+		t.Errorf("AR(2) gain %v, want %v", g, want)
+	}
+}

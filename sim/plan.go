@@ -56,6 +56,19 @@ type plan struct {
 	segs    []segment
 	pspan   [][2]int // per period: segments [s0, s1)
 	bases   Bases
+	events  []planEvent
+}
+
+// planEvent is a scenario event resolved to the run's days: its start is
+// drawn from [lo, hi].
+type planEvent struct {
+	lo, hi int
+	days   int
+	delta  float64
+	// threshold is Probability·2⁶⁴ (saturating): the event happens when a
+	// uniform 64-bit draw is below it.
+	threshold uint64
+	always    bool
 }
 
 const maxAR = 5
@@ -98,11 +111,18 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	pl.mean = make([]float64, pl.n)
 	pl.sd = make([]float64, pl.n)
 	months := make([]int, pl.n)
+	var shift [12]float64
+	if m.Scenario != nil {
+		shift = m.Scenario.MonthlyShift
+	}
 	for i := range pl.n {
 		d := pl.first + calendar.Date(i)
 		months[i] = int(d.Month()) - 1
-		pl.mean[i] = m.Mean(d.ModelTime())
+		pl.mean[i] = m.Mean(d.ModelTime()) + shift[months[i]]
 		pl.sd[i] = m.Volatility.Monthly[months[i]]
+	}
+	if err := pl.setEvents(m, cfg.Year); err != nil {
+		return nil, err
 	}
 	if err := pl.setShocks(m.Shocks, months); err != nil {
 		return nil, err
@@ -167,6 +187,30 @@ func (pl *plan) setShocks(s model.Shocks, months []int) error {
 		for i := range pl.sd {
 			pl.sd[i] *= c
 		}
+	}
+	return nil
+}
+
+// setEvents resolves the scenario's events to day indices of the run.
+func (pl *plan) setEvents(m *model.File, year int) error {
+	if m.Scenario == nil {
+		return nil
+	}
+	for i, e := range m.Scenario.Events {
+		w, err := ParsePeriod(e.Window, year)
+		if err != nil {
+			return fmt.Errorf("sim: scenario %s, event %d: %v", m.Scenario.Name, i+1, err)
+		}
+		lo, hi := int(w.From-pl.first), int(w.To-pl.first)
+		if hi < 0 || lo >= pl.n {
+			return fmt.Errorf("sim: scenario %s, event %d: its window %s to %s lies outside the simulated days %s to %s",
+				m.Scenario.Name, i+1, w.From, w.To, pl.first, pl.first+calendar.Date(pl.n-1))
+		}
+		ev := planEvent{lo: max(lo, 0), hi: min(hi, pl.n-1), days: e.Days, delta: e.Delta, always: e.Probability >= 1}
+		if !ev.always {
+			ev.threshold = uint64(e.Probability * (1 << 63) * 2)
+		}
+		pl.events = append(pl.events, ev)
 	}
 	return nil
 }

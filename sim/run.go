@@ -110,12 +110,16 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 			if err := gctx.Err(); err != nil {
 				return err
 			}
-			var rng rand.PCG
+			var rng, erng rand.PCG
 			segs := make([]segStats, len(pl.segs))
 			buf := make([]float64, pl.n)
 			for i := lo; i < hi; i++ {
 				seedPath(&rng, cfg.Seed, i)
 				pl.temps(&rng, buf)
+				if len(pl.events) > 0 {
+					seedPath(&erng, cfg.Seed^eventSalt, i)
+					pl.inject(&erng, buf)
+				}
 				pl.accumulate(buf, segs)
 				pl.collect(segs, out, i)
 			}
@@ -190,6 +194,27 @@ func (pl *plan) temps(rng *rand.PCG, buf []float64) {
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
 		buf[d] = mean[d] + x
+	}
+}
+
+// eventSalt separates the events' random stream from the temperature
+// shocks', so a scenario with events shares the baseline's shocks (common
+// random numbers).
+const eventSalt = 0x5ce7a510e7e47
+
+// inject adds the scenario's events to one path's temperatures.
+func (pl *plan) inject(rng *rand.PCG, buf []float64) {
+	for _, e := range pl.events {
+		occur := rng.Uint64()
+		pick := rng.Uint64()
+		if !e.always && occur >= e.threshold {
+			continue
+		}
+		off, _ := bits.Mul64(pick, uint64(e.hi-e.lo+1))
+		start := e.lo + int(off)
+		for d := start; d < min(start+e.days, len(buf)); d++ {
+			buf[d] += e.delta
+		}
 	}
 }
 

@@ -2,10 +2,12 @@ package sim
 
 import (
 	"fmt"
-
-	"golang.org/x/sync/errgroup"
+	"math"
 	"strconv"
 	"strings"
+
+	"golang.org/x/sync/errgroup"
+	"gonum.org/v1/gonum/stat"
 )
 
 // Row is the tail table of one index of one period.
@@ -81,4 +83,49 @@ func (r *Result) Summarize(units string, thresholds []Threshold) []Row {
 	}
 	g.Wait()
 	return rows
+}
+
+// Change is a scenario's tail statistics minus the baseline's for one index
+// of one period. Both runs use the same seed and paths, so path i of each
+// has the same shocks (common random numbers) and the difference of means
+// has the paired standard error MeanSE = sd(scenarioᵢ − baselineᵢ)/√N,
+// usually far below IndependentSE, what two independent runs would give.
+type Change struct {
+	Mean, MeanSE, IndependentSE float64
+	P50, P95, P99               float64
+	ES95, RL20                  float64
+}
+
+// returnPeriod20 is the position of 20 in ReturnPeriods.
+const returnPeriod20 = 3
+
+// Compare returns the change of every row of scen against base; the results
+// must come from runs of the same configuration (same aggregates in the
+// same order).
+func Compare(base, scen *Result, baseRows, scenRows []Row) []Change {
+	if len(base.Aggregates) != len(scen.Aggregates) || len(baseRows) != len(base.Aggregates) || len(scenRows) != len(scen.Aggregates) {
+		panic("sim: Compare of runs with different aggregates")
+	}
+	out := make([]Change, len(baseRows))
+	for k := range baseRows {
+		b, s := base.Aggregates[k].Values, scen.Aggregates[k].Values
+		if len(b) != len(s) {
+			panic("sim: Compare of runs with different path counts")
+		}
+		d := make([]float64, len(b))
+		for i := range b {
+			d[i] = s[i] - b[i]
+		}
+		n := float64(len(d))
+		_, sd := stat.MeanStdDev(d, nil)
+		bt, st := baseRows[k].Tail, scenRows[k].Tail
+		out[k] = Change{
+			Mean: st.Mean - bt.Mean, MeanSE: sd / math.Sqrt(n),
+			IndependentSE: math.Sqrt((bt.SD*bt.SD + st.SD*st.SD) / n),
+			P50:           st.Quantiles[4] - bt.Quantiles[4], P95: st.Quantiles[7] - bt.Quantiles[7],
+			P99: st.Quantiles[8] - bt.Quantiles[8], ES95: st.ES95 - bt.ES95,
+			RL20: st.ReturnLevels[returnPeriod20] - bt.ReturnLevels[returnPeriod20],
+		}
+	}
+	return out
 }

@@ -14,6 +14,7 @@ import (
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/demo"
+	"wxstress/scenarios"
 	"wxstress/sim"
 )
 
@@ -22,7 +23,9 @@ var demoUsage = helpText{
 	about: `Run the whole job on the built-in, invented record of ` + demo.StationName + `
 (71 years of daily means, ` + demo.StationFile + `): fit the temperature model,
 print its summary, simulate synthetic years for the year after the record ends
-and print the degree-day tail tables. The data are invented for demonstration.`,
+under today's climate and four built-in scenarios (warm-1c, trend-2050,
+volatile-winter, cold-spell-10d), and print the tail tables side by side.
+The data are invented for demonstration.`,
 	examples: `  wxstress demo
   wxstress demo --paths 100000 --seed 7 --model-out kestrel_model.json`,
 }
@@ -69,10 +72,16 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return err
 	}
 	sum := sha256.Sum256(append(b, '\n'))
+	var scens []*scenarios.Scenario
+	for _, name := range demoScenarios {
+		sc, err := scenarios.Lookup(name)
+		if err != nil {
+			return err
+		}
+		scens = append(scens, sc)
+	}
 	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.DefaultBases(m.Data.Units)}
-	stop := attachProgress(&cfg, stderr)
-	out, err := sim.Run(ctx, m, cfg)
-	stop()
+	rep, out, err := simulateAll(ctx, stderr, m, cfg, scens, nil)
 	if err != nil {
 		return err
 	}
@@ -80,7 +89,11 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if name == "" {
 		name = "(demo model, not written)"
 	}
-	rep := &render.SimReport{Manifest: manifest(m, name, hex.EncodeToString(sum[:]), out), Rows: out.Summarize(m.Data.Units, nil)}
-	fmt.Fprintf(stdout, "\n== 2. Simulate ==\n\n")
+	rep.Manifest = manifest(m, name, hex.EncodeToString(sum[:]), out)
+	rep.Manifest.Scenarios = demoScenarios
+	fmt.Fprintf(stdout, "\n== 2. Simulate: baseline and scenarios ==\n\n")
 	return render.SimTables(stdout, rep)
 }
+
+// demoScenarios are the built-in scenarios the demo runs beside the baseline.
+var demoScenarios = []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}

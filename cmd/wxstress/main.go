@@ -36,6 +36,7 @@ func commands() []command {
 		{"demo", "run the whole job on the built-in invented station", runDemoCmd},
 		{"fit", "calibrate a temperature model to a daily CSV", runFitCmd},
 		{"simulate", "draw synthetic years and report degree-day tail tables", runSimulateCmd},
+		{"scenarios", "list the built-in scenarios, or check scenario files", runScenariosCmd},
 		{"version", "print the tool version", runVersionCmd},
 		{"help", "show help for wxstress or a subcommand", runHelpCmd},
 	}

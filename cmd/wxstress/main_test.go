@@ -188,3 +188,58 @@ func TestSimulateOutDirAndInterrupt(t *testing.T) {
 		t.Error("interrupted run left output behind")
 	}
 }
+
+func TestSimulateScenarios(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "400", "--format", "json",
+		"--scenario", "warm-1c", "--scenario", "../../scenarios/cold_spell.toml")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	type row struct {
+		Name, Period string
+		Mean         float64
+		Change       *struct{ Mean, MeanSE float64 } `json:"change_vs_baseline"`
+	}
+	var doc struct {
+		Indices   []row
+		Scenarios []struct {
+			Name    string
+			Indices []row
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Scenarios) != 2 || doc.Scenarios[0].Name != "warm-1c" || doc.Scenarios[1].Name != "harbour-freeze" {
+		t.Fatalf("scenarios %+v", doc.Scenarios)
+	}
+	base := doc.Indices[0]
+	warm, cold := doc.Scenarios[0].Indices[0], doc.Scenarios[1].Indices[0]
+	if base.Name != "HDD" || len(doc.Scenarios[0].Indices) != len(doc.Indices) {
+		t.Fatalf("scenario rows do not match the baseline's")
+	}
+	if !(warm.Mean < base.Mean && cold.Mean > base.Mean) || warm.Change == nil || warm.Change.Mean >= 0 {
+		t.Errorf("annual HDD baseline %.1f, warm %.1f, cold spell %.1f", base.Mean, warm.Mean, cold.Mean)
+	}
+}
+
+func TestSimulateScenarioErrors(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	bad := filepath.Join(t.TempDir(), "bad.toml")
+	os.WriteFile(bad, []byte("name = \"x\"\n[shift]\nuniform = 1\nmonthy = [1]\n"), 0o644)
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "10", "--scenario", bad)
+	if code == 0 || !strings.Contains(stderr, bad+":4: key shift.monthy: unknown key") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+	code, _, stderr = call(t, context.Background(), "simulate", "--model", m, "--paths", "10", "--scenario", "warm-9c")
+	if code == 0 || !strings.Contains(stderr, "warm-1c") {
+		t.Errorf("unknown scenario: exit %d, stderr %q", code, stderr)
+	}
+	code, out, _ := call(t, context.Background(), "scenarios")
+	if code != 0 || !strings.Contains(out, "cold-spell-10d") {
+		t.Errorf("scenarios listing: exit %d\n%s", code, out)
+	}
+}

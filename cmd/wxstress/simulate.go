@@ -17,6 +17,7 @@ import (
 	"wxstress/cmd/wxstress/render"
 	"wxstress/internal/atomicfile"
 	"wxstress/model"
+	"wxstress/scenarios"
 	"wxstress/sim"
 )
 
@@ -33,6 +34,7 @@ ones that end in the target year.`,
 	examples: `  wxstress simulate --model model.json --paths 100000 --seed 7
   wxstress simulate --model model.json --year 2030 --period heating --period jan --period 12-15:01-15
   wxstress simulate --model model.json --start conditional --exceed hdd:heating:2800 --format json
+  wxstress simulate --model model.json --scenario warm-1c --scenario scenarios/cold_spell.toml
   wxstress simulate --model model.json --paths 1000000 --out results/`,
 }
 
@@ -48,11 +50,13 @@ type simulateOptions struct {
 	cddBase   float64
 	coldBelow float64
 	exceed    []string
+	scenarios []string
 	format    string
 	out       string
 
 	fs         *pflag.FlagSet
 	thresholds []sim.Threshold
+	loaded     []*scenarios.Scenario
 }
 
 func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
@@ -68,6 +72,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
 	fs.Float64Var(&o.coldBelow, "cold-below", 0, "a cold day has a mean below this (default 0 °C or 32 °F)")
 	fs.StringArrayVar(&o.exceed, "exceed", nil, "report P(worse than a threshold): INDEX:VALUE or INDEX:PERIOD:VALUE, repeatable")
+	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate a scenario (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
 	o.fs = fs
@@ -96,6 +101,13 @@ func (o *simulateOptions) validate() error {
 		if _, err := sim.ParsePeriod(p, 2001); err != nil {
 			return usagef("simulate: --period: %v", strings.TrimPrefix(err.Error(), "sim: "))
 		}
+	}
+	for _, name := range o.scenarios {
+		sc, err := scenarios.Lookup(name)
+		if err != nil {
+			return err // a bad file is a data error (exit 1), like a bad model file
+		}
+		o.loaded = append(o.loaded, sc)
 	}
 	for _, s := range o.exceed {
 		th, err := sim.ParseThreshold(s)
@@ -135,17 +147,12 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err != nil {
 		return err
 	}
-	cfg := o.config(m)
-	stopBar := attachProgress(&cfg, stderr)
-	res, err := sim.Run(ctx, m, cfg)
-	stopBar()
+	rep, res, err := simulateAll(ctx, stderr, m, o.config(m), o.loaded, o.thresholds)
 	if err != nil {
 		return err
 	}
-	rep := &render.SimReport{
-		Manifest: manifest(m, o.modelPath, sum, res),
-		Rows:     res.Summarize(m.Data.Units, o.thresholds),
-	}
+	rep.Manifest = manifest(m, o.modelPath, sum, res)
+	rep.Manifest.Scenarios = o.scenarios
 	if o.out != "" {
 		if err := writeSimDir(o.out, rep, res); err != nil {
 			return err
@@ -164,6 +171,43 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		fmt.Fprintf(stdout, "\nWrote tails.json, tails.csv and paths.csv to %s\n", o.out)
 	}
 	return nil
+}
+
+// simulateAll runs the baseline and each scenario with the same
+// configuration (common random numbers) and builds the report; the manifest
+// is left for the caller. It returns the baseline's result too.
+func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
+	thresholds []sim.Threshold) (*render.SimReport, *sim.Result, error) {
+	if cfg.Year == 0 {
+		cfg.Year = m.Data.LastDate.Year() + 1
+	}
+	models := []*model.File{m}
+	for _, sc := range scens {
+		sm, err := sc.Apply(m, cfg.Year)
+		if err != nil {
+			return nil, nil, err
+		}
+		models = append(models, sm)
+	}
+	stop := attachProgress(&cfg, stderr, len(models))
+	defer stop()
+	rep := &render.SimReport{}
+	var base *sim.Result
+	for i, mm := range models {
+		res, err := sim.Run(ctx, mm, cfg)
+		if err != nil {
+			return nil, nil, err
+		}
+		rows := res.Summarize(m.Data.Units, thresholds)
+		if i == 0 {
+			base, rep.Rows = res, rows
+			continue
+		}
+		sc := scens[i-1]
+		rep.Scenarios = append(rep.Scenarios, render.ScenarioReport{Name: sc.Name, Description: sc.Description,
+			What: sc.Describe(), Rows: rows, Changes: sim.Compare(base, res, rep.Rows, rows)})
+	}
+	return rep, base, nil
 }
 
 // readModel reads and validates a model file and returns its SHA-256.
@@ -212,14 +256,15 @@ func writeSimDir(dir string, rep *render.SimReport, res *sim.Result) error {
 	return nil
 }
 
-// attachProgress shows a progress bar on stderr for runs of more than about
-// a second, when stderr is a terminal; it returns the function that clears it.
-func attachProgress(cfg *sim.Config, stderr io.Writer) func() {
+// attachProgress shows a progress bar on stderr for work of more than about
+// a second (runs simulations of cfg.Paths), when stderr is a terminal; it
+// returns the function that clears it.
+func attachProgress(cfg *sim.Config, stderr io.Writer, runs int) func() {
 	f, ok := stderr.(*os.File)
-	if !ok || !term.IsTerminal(int(f.Fd())) || cfg.Paths < 200_000 {
+	if !ok || !term.IsTerminal(int(f.Fd())) || cfg.Paths*runs < 200_000 {
 		return func() {}
 	}
-	bar := progressbar.NewOptions(cfg.Paths, progressbar.OptionSetWriter(f), progressbar.OptionSetDescription("simulating"),
+	bar := progressbar.NewOptions(cfg.Paths*runs, progressbar.OptionSetWriter(f), progressbar.OptionSetDescription("simulating"),
 		progressbar.OptionShowCount(), progressbar.OptionThrottle(100_000_000), progressbar.OptionClearOnFinish())
 	cfg.Progress = func(n int) { bar.Add(n) }
 	return func() { bar.Finish() }

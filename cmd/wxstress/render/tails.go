@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"wxstress/sim"
 )
@@ -24,14 +25,15 @@ type Manifest struct {
 	Start       string   `json:"start"`
 	Periods     []string `json:"periods"`
 	// SimulatedDays is the days stepped per path, burn-in included.
-	SimulatedDays int     `json:"simulated_days"`
-	Units         string  `json:"units"`
-	HDDBase       float64 `json:"hdd_base"`
-	CDDBase       float64 `json:"cdd_base"`
-	ColdBelow     float64 `json:"cold_below"`
-	Shocks        string  `json:"shocks"`
-	Quantiles     string  `json:"quantile_convention"`
-	Caution       string  `json:"caution"`
+	SimulatedDays int      `json:"simulated_days"`
+	Units         string   `json:"units"`
+	HDDBase       float64  `json:"hdd_base"`
+	CDDBase       float64  `json:"cdd_base"`
+	ColdBelow     float64  `json:"cold_below"`
+	Shocks        string   `json:"shocks"`
+	Scenarios     []string `json:"scenarios"`
+	Quantiles     string   `json:"quantile_convention"`
+	Caution       string   `json:"caution"`
 }
 
 // QuantileConvention describes how quantiles are computed, for manifests.
@@ -41,8 +43,19 @@ const QuantileConvention = "Hyndman-Fan type 4 (linear interpolation of the empi
 // SimReport is what the simulate renderers show: one result for the table,
 // CSV and JSON forms.
 type SimReport struct {
-	Manifest Manifest
-	Rows     []sim.Row
+	Manifest  Manifest
+	Rows      []sim.Row // the baseline
+	Scenarios []ScenarioReport
+}
+
+// ScenarioReport is one scenario's tail tables and their changes against
+// the baseline (Changes[i] belongs to Rows[i] and to the baseline's Rows[i]).
+type ScenarioReport struct {
+	Name        string
+	Description string
+	What        []string // what the scenario changes, in units
+	Rows        []sim.Row
+	Changes     []sim.Change
 }
 
 // jsonRow is an index row of the JSON output.
@@ -62,6 +75,26 @@ type jsonRow struct {
 	ES99         float64            `json:"es99"`
 	ReturnLevels map[string]float64 `json:"return_levels"`
 	Exceedance   []jsonExceed       `json:"exceedance,omitempty"`
+	Change       *jsonChange        `json:"change_vs_baseline,omitempty"`
+}
+
+// jsonChange is a scenario row's change against the baseline.
+type jsonChange struct {
+	Mean          float64 `json:"mean"`
+	MeanSE        float64 `json:"mean_se"`
+	IndependentSE float64 `json:"independent_se"`
+	P50           float64 `json:"p50"`
+	P95           float64 `json:"p95"`
+	P99           float64 `json:"p99"`
+	ES95          float64 `json:"es95"`
+	RL20          float64 `json:"return_level_20"`
+}
+
+type jsonScenario struct {
+	Name        string    `json:"name"`
+	Description string    `json:"description"`
+	Changes     []string  `json:"changes"`
+	Indices     []jsonRow `json:"indices"`
 }
 
 type jsonExceed struct {
@@ -98,14 +131,23 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 	return out
 }
 
-// SimJSON writes the report as JSON: {"manifest", "indices"}.
+// SimJSON writes the report as JSON: {"manifest", "indices", "scenarios"}.
 func SimJSON(w io.Writer, r *SimReport) error {
+	scen := make([]jsonScenario, len(r.Scenarios))
+	for i, sc := range r.Scenarios {
+		rows := toJSONRows(sc.Rows)
+		for k, c := range sc.Changes {
+			rows[k].Change = &jsonChange{c.Mean, c.MeanSE, c.IndependentSE, c.P50, c.P95, c.P99, c.ES95, c.RL20}
+		}
+		scen[i] = jsonScenario{sc.Name, sc.Description, sc.What, rows}
+	}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(struct {
-		Manifest Manifest  `json:"manifest"`
-		Indices  []jsonRow `json:"indices"`
-	}{r.Manifest, toJSONRows(r.Rows)})
+		Manifest  Manifest       `json:"manifest"`
+		Indices   []jsonRow      `json:"indices"`
+		Scenarios []jsonScenario `json:"scenarios"`
+	}{r.Manifest, toJSONRows(r.Rows), scen})
 }
 
 // statistic is one named number of a tail table, in display order.
@@ -137,25 +179,44 @@ func statistics() []statistic {
 }
 
 // SimCSV writes the report in long form, one number a line:
-// index,period,unit,statistic,value, after "# key: value" manifest lines.
+// scenario,index,period,unit,adverse,statistic,value ("baseline" for the
+// fitted model), after "# key: value" manifest lines. A scenario's changes
+// against the baseline are the statistics named "change_*".
 func SimCSV(w io.Writer, r *SimReport) error {
 	if err := csvManifest(w, r.Manifest); err != nil {
 		return err
 	}
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"index", "period", "unit", "adverse", "statistic", "value"})
+	cw.Write([]string{"scenario", "index", "period", "unit", "adverse", "statistic", "value"})
 	stats := statistics()
-	for _, row := range r.Rows {
-		put := func(stat string, v float64) {
-			cw.Write([]string{row.Info.Key, row.Period, row.Unit, adverseSide(row), stat, strconv.FormatFloat(v, 'g', -1, 64)})
+	write := func(scenario string, rows []sim.Row, changes []sim.Change) {
+		for k, row := range rows {
+			put := func(stat string, v float64) {
+				cw.Write([]string{scenario, row.Info.Key, row.Period, row.Unit, adverseSide(row), stat,
+					strconv.FormatFloat(v, 'g', -1, 64)})
+			}
+			for _, s := range stats {
+				put(s.key, s.value(row.Tail))
+			}
+			put("mean_se", row.Tail.MeanSE)
+			for _, e := range row.Tail.Exceedances {
+				put("exceed:"+strconv.FormatFloat(e.Threshold, 'g', -1, 64), e.Prob)
+			}
+			if changes != nil {
+				c := changes[k]
+				for _, kv := range []struct {
+					k string
+					v float64
+				}{{"change_mean", c.Mean}, {"change_mean_se", c.MeanSE}, {"change_p50", c.P50}, {"change_p95", c.P95},
+					{"change_p99", c.P99}, {"change_es95", c.ES95}, {"change_rl20", c.RL20}} {
+					put(kv.k, kv.v)
+				}
+			}
 		}
-		for _, s := range stats {
-			put(s.key, s.value(row.Tail))
-		}
-		put("mean_se", row.Tail.MeanSE)
-		for _, e := range row.Tail.Exceedances {
-			put("exceed:"+strconv.FormatFloat(e.Threshold, 'g', -1, 64), e.Prob)
-		}
+	}
+	write("baseline", r.Rows, nil)
+	for _, sc := range r.Scenarios {
+		write(sc.Name, sc.Rows, sc.Changes)
 	}
 	cw.Flush()
 	return cw.Error()
@@ -210,6 +271,9 @@ func SimTables(w io.Writer, r *SimReport) error {
 			}
 		}
 	}
+	if len(r.Scenarios) > 0 {
+		writeComparison(e, r)
+	}
 	e.printf("\nVaR and ES are on the adverse side (ES = mean of the worst 5%% or 1%% of years); 1-in-T is the level\n" +
 		"passed on the adverse side once in T years on average. Quantiles: Hyndman–Fan type 4.\n")
 	e.printf("%s\n", Caution)
@@ -250,4 +314,27 @@ func PathsCSV(w io.Writer, res *sim.Result) error {
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// writeComparison writes, for each period and index, the baseline and every
+// scenario side by side with the change of the mean and its paired s.e.
+func writeComparison(e *errWriter, r *SimReport) {
+	e.printf("\nScenarios (same seed and paths as the baseline: common random numbers)\n")
+	for _, sc := range r.Scenarios {
+		e.printf("  %s: %s\n", sc.Name, strings.Join(sc.What, "; "))
+	}
+	for k, base := range r.Rows {
+		e.printf("\n%s, %s (%s)\n", base.Name, base.Period, base.Unit)
+		rows := [][]string{compRow("baseline", base.Tail, "")}
+		for _, sc := range r.Scenarios {
+			c := sc.Changes[k]
+			rows = append(rows, compRow(sc.Name, sc.Rows[k].Tail, fmt.Sprintf("%+.1f ± %.2g", c.Mean, c.MeanSE)))
+		}
+		e.table([]string{"scenario", "mean", "P50", "P95", "P99", "ES 95%", "1-in-20", "change of mean ± s.e."}, rows)
+	}
+}
+
+func compRow(name string, t sim.Tail, change string) []string {
+	return []string{name, num(t.Mean, 1), num(t.Quantiles[4], 1), num(t.Quantiles[7], 1), num(t.Quantiles[8], 1),
+		num(t.ES95, 1), num(t.ReturnLevels[3], 1), change}
 }

@@ -1,0 +1,255 @@
+package scenarios
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+
+	"wxstress/calendar"
+)
+
+// ErrScenario is wrapped by every error about a scenario file's content.
+var ErrScenario = errors.New("bad scenario")
+
+// KeyError is a problem with one key of a scenario file.
+type KeyError struct {
+	File string
+	Line int // 1-based; 0 when the key's line is unknown
+	Key  string
+	Msg  string
+}
+
+func (e *KeyError) Error() string {
+	if e.Key == "" {
+		return fmt.Sprintf("%s:%d: %s", e.File, e.Line, e.Msg)
+	}
+	if e.Line > 0 {
+		return fmt.Sprintf("%s:%d: key %s: %s", e.File, e.Line, e.Key, e.Msg)
+	}
+	return fmt.Sprintf("%s: key %s: %s", e.File, e.Key, e.Msg)
+}
+
+func (e *KeyError) Unwrap() error { return ErrScenario }
+
+// Load reads a scenario file.
+func Load(path string) (*Scenario, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(b, path)
+}
+
+// Parse decodes a scenario from TOML, strictly: unknown keys, wrong types and
+// out-of-range values are errors naming the file, the line and the key. A
+// scenario without a name is named after its file.
+func Parse(src []byte, file string) (*Scenario, error) {
+	var s Scenario
+	md, err := toml.Decode(string(src), &s)
+	if err != nil {
+		var pe toml.ParseError
+		if errors.As(err, &pe) {
+			return nil, &KeyError{file, pe.Position.Line, "", "TOML syntax: " + pe.Message}
+		}
+		// Type mismatches come as plain errors:
+		// `toml: line 2 (last key "shift.uniform"): incompatible types: ...`.
+		if m := typeErr.FindStringSubmatch(err.Error()); m != nil {
+			line, _ := strconv.Atoi(m[1])
+			return nil, &KeyError{file, line, m[2], m[3]}
+		}
+		return nil, fmt.Errorf("%s: %w: %v", file, ErrScenario, err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		k := und[0].String()
+		return nil, &KeyError{file, keyLine(src, und[0]), k, "unknown key; valid keys are " + validKeys(und[0])}
+	}
+	if s.Name == "" {
+		s.Name = strings.TrimSuffix(filepath.Base(file), filepath.Ext(file))
+	}
+	if err := s.check(); err != nil {
+		var ke *KeyError
+		if errors.As(err, &ke) {
+			ke.File = file
+			ke.Line = keyLine(src, toml.Key(strings.Split(ke.Key, ".")))
+		}
+		return nil, err
+	}
+	return &s, nil
+}
+
+var typeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): (.*)$`)
+
+// valid lists the keys of each table, for messages.
+var valid = map[string]string{
+	"":            "name, description, units, [shift], [trend], [volatility], [persistence], [tails], [[event]]",
+	"shift":       "uniform, monthly",
+	"trend":       "target_year, slope_per_decade",
+	"volatility":  "scale, monthly_scale",
+	"persistence": "phi, scale, keep_variance",
+	"tails":       "df, skew",
+	"event":       "kind, days, anomaly, start, window, probability",
+}
+
+func validKeys(k toml.Key) string {
+	if len(k) > 1 {
+		if v, ok := valid[k[0]]; ok {
+			return v
+		}
+	}
+	return valid[""]
+}
+
+// keyLine finds the line that sets key (its table header for a table key),
+// or 0.
+func keyLine(src []byte, key toml.Key) int {
+	table := ""
+	want := strings.Join(key[:len(key)-1], ".")
+	last := key[len(key)-1]
+	header := regexp.MustCompile(`^\s*\[\[?\s*([A-Za-z0-9_.-]+)\s*\]\]?`)
+	assign := regexp.MustCompile(`^\s*"?([A-Za-z0-9_-]+)"?\s*=`)
+	for i, line := range strings.Split(string(src), "\n") {
+		if m := header.FindStringSubmatch(line); m != nil {
+			table = m[1]
+			if len(key) == 1 && table == last {
+				return i + 1
+			}
+			continue
+		}
+		if m := assign.FindStringSubmatch(line); m != nil && m[1] == last && table == want {
+			return i + 1
+		}
+	}
+	return 0
+}
+
+// check validates ranges; its KeyErrors carry the key only.
+func (s *Scenario) check() error {
+	bad := func(key, format string, a ...any) error {
+		return &KeyError{Key: key, Msg: fmt.Sprintf(format, a...)}
+	}
+	switch s.Units {
+	case "", "C", "F":
+	default:
+		return bad("units", "%q: want C or F", s.Units)
+	}
+	degrees := func(key string, v, limit float64) error {
+		if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) > limit {
+			return bad(key, "%v is out of range (|value| ≤ %g degrees)", v, limit)
+		}
+		return nil
+	}
+	if sh := s.Shift; sh != nil {
+		if sh.Uniform != nil {
+			if err := degrees("shift.uniform", *sh.Uniform, 20); err != nil {
+				return err
+			}
+		}
+		if sh.Monthly != nil {
+			if len(sh.Monthly) != 12 {
+				return bad("shift.monthly", "has %d values, want 12 (January to December)", len(sh.Monthly))
+			}
+			for _, v := range sh.Monthly {
+				if err := degrees("shift.monthly", v, 20); err != nil {
+					return err
+				}
+			}
+		}
+	}
+	if t := s.Trend; t != nil {
+		if t.TargetYear != nil && (*t.TargetYear < 1800 || *t.TargetYear > 2300) {
+			return bad("trend.target_year", "%d is outside 1800..2300", *t.TargetYear)
+		}
+		if t.SlopePerDecade != nil {
+			if err := degrees("trend.slope_per_decade", *t.SlopePerDecade, 5); err != nil {
+				return err
+			}
+		}
+	}
+	scale := func(key string, v float64) error {
+		if !(v > 0 && v <= 10) {
+			return bad(key, "%v: a scale must be in (0, 10]", v)
+		}
+		return nil
+	}
+	if v := s.Volatility; v != nil {
+		if v.Scale != nil {
+			if err := scale("volatility.scale", *v.Scale); err != nil {
+				return err
+			}
+		}
+		if v.MonthlyScale != nil {
+			if len(v.MonthlyScale) != 12 {
+				return bad("volatility.monthly_scale", "has %d values, want 12 (January to December)", len(v.MonthlyScale))
+			}
+			for _, x := range v.MonthlyScale {
+				if err := scale("volatility.monthly_scale", x); err != nil {
+					return err
+				}
+			}
+		}
+	}
+	if p := s.Persistence; p != nil {
+		if p.Phi != nil && (len(p.Phi) < 1 || len(p.Phi) > 5) {
+			return bad("persistence.phi", "has %d values, want 1 to 5", len(p.Phi))
+		}
+		for _, v := range p.Phi {
+			if math.IsNaN(v) || math.Abs(v) >= 1.5 {
+				return bad("persistence.phi", "%v is out of range", v)
+			}
+		}
+		if p.Scale != nil {
+			if err := scale("persistence.scale", *p.Scale); err != nil {
+				return err
+			}
+		}
+	}
+	if t := s.Tails; t != nil {
+		if t.DF != nil && !(*t.DF > 2 && *t.DF <= 1000) {
+			return bad("tails.df", "ν = %v: want 2 < ν ≤ 1000 (unit variance needs ν > 2)", *t.DF)
+		}
+		if t.Skew != nil && !(*t.Skew >= 0.2 && *t.Skew <= 5) {
+			return bad("tails.skew", "ξ = %v: want 0.2 ≤ ξ ≤ 5 (1 is symmetric)", *t.Skew)
+		}
+	}
+	for _, e := range s.Events {
+		switch e.Kind {
+		case "", "cold", "hot":
+		default:
+			return bad("event.kind", "%q: want cold or hot", e.Kind)
+		}
+		if e.Days < 1 || e.Days > 120 {
+			return bad("event.days", "%d: want 1..120", e.Days)
+		}
+		if !(e.Anomaly > 0 && e.Anomaly <= 30) {
+			return bad("event.anomaly", "%v: want a size in (0, 30] degrees (kind says the direction)", e.Anomaly)
+		}
+		if (e.Start == "") == (e.Window == "") {
+			return bad("event.start", "give exactly one of start (MM-DD) or window (MM-DD:MM-DD)")
+		}
+		if e.Start != "" && !validMonthDay(e.Start) {
+			return bad("event.start", "%q: want MM-DD, e.g. 01-15", e.Start)
+		}
+		if e.Window != "" {
+			a, b, ok := strings.Cut(e.Window, ":")
+			if !ok || !validMonthDay(a) || !validMonthDay(b) {
+				return bad("event.window", "%q: want MM-DD:MM-DD, e.g. 12-01:02-28", e.Window)
+			}
+		}
+		if e.Probability != nil && !(*e.Probability > 0 && *e.Probability <= 1) {
+			return bad("event.probability", "%v: want a probability in (0, 1]", *e.Probability)
+		}
+	}
+	return nil
+}
+
+func validMonthDay(s string) bool {
+	_, err := calendar.Parse("2000-" + s)
+	return err == nil && len(s) == 5
+}

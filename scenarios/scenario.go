@@ -1,0 +1,303 @@
+package scenarios
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"strings"
+	"time"
+
+	"wxstress/calendar"
+	"wxstress/model"
+)
+
+// Scenario is a set of changes to a fitted model. Nil parts change nothing.
+type Scenario struct {
+	Name        string       `toml:"name"`
+	Description string       `toml:"description"`
+	Units       string       `toml:"units"` // "C" or "F"; "" = the model's units
+	Shift       *Shift       `toml:"shift"`
+	Trend       *Trend       `toml:"trend"`
+	Volatility  *Volatility  `toml:"volatility"`
+	Persistence *Persistence `toml:"persistence"`
+	Tails       *Tails       `toml:"tails"`
+	Events      []Event      `toml:"event"`
+}
+
+// Shift moves the seasonal mean: Uniform on every day, plus Monthly[m] in
+// calendar month m (January first).
+type Shift struct {
+	Uniform *float64  `toml:"uniform"`
+	Monthly []float64 `toml:"monthly"`
+}
+
+// Trend moves the climate along the fitted trend to TargetYear (the
+// simulated calendar stays the same; the level is that of TargetYear), or
+// replaces the slope with SlopePerDecade, keeping the level at the end of
+// the data, so the new slope applies from there on.
+type Trend struct {
+	TargetYear     *int     `toml:"target_year"`
+	SlopePerDecade *float64 `toml:"slope_per_decade"`
+}
+
+// Volatility scales σ: by Scale in every month and by MonthlyScale[m] in
+// month m.
+type Volatility struct {
+	Scale        *float64  `toml:"scale"`
+	MonthlyScale []float64 `toml:"monthly_scale"`
+}
+
+// Persistence sets φ (Phi) or scales every φᵢ (Scale). With KeepVariance
+// the innovation σ is rescaled so the daily anomaly keeps its variance:
+// only the persistence changes.
+type Persistence struct {
+	Phi          []float64 `toml:"phi"`
+	Scale        *float64  `toml:"scale"`
+	KeepVariance bool      `toml:"keep_variance"`
+}
+
+// Tails sets the shocks' ν (a normal model becomes Student-t) and skew ξ
+// (a normal or Student-t model becomes skewed t).
+type Tails struct {
+	DF   *float64 `toml:"df"`
+	Skew *float64 `toml:"skew"`
+}
+
+// Event injects a spell of Days days moved by Anomaly degrees, colder
+// (Kind "cold", the default) or warmer ("hot"), on top of the simulated
+// anomaly, starting on Start (MM-DD) or on a day drawn uniformly from Window
+// (MM-DD:MM-DD; crossing the year end means starting in the year before the
+// target year), in a year with probability Probability (default 1).
+type Event struct {
+	Kind        string   `toml:"kind"`
+	Days        int      `toml:"days"`
+	Anomaly     float64  `toml:"anomaly"`
+	Start       string   `toml:"start"`
+	Window      string   `toml:"window"`
+	Probability *float64 `toml:"probability"`
+}
+
+// Apply returns a copy of m transformed by s for target year year. It
+// refuses results the simulator cannot run (a non-stationary AR, ν ≤ 2,
+// shape changes to a bootstrap model).
+func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
+	out, err := clone(m)
+	if err != nil {
+		return nil, err
+	}
+	fail := func(key, format string, a ...any) error {
+		return fmt.Errorf("scenario %s: %s: %s", s.Name, key, fmt.Sprintf(format, a...))
+	}
+	k := s.factor(m.Data.Units) // converts the scenario's degrees to the model's
+	out.Diagnostics = nil
+	sc := &model.Scenario{Name: s.Name}
+
+	if t := s.Trend; t != nil {
+		b := m.Trend.Slope()
+		if t.SlopePerDecade != nil {
+			nb := k * *t.SlopePerDecade / (10 * calendar.DaysPerYear)
+			end := m.Data.LastDate.ModelTime()
+			out.Trend.Intercept += (b - nb) * end
+			out.Trend.SlopePerYear = nb * calendar.DaysPerYear
+			out.Trend.Kind = "linear"
+			b = nb
+		}
+		if t.TargetYear != nil {
+			if m.Trend.Kind != "linear" && t.SlopePerDecade == nil {
+				return nil, fail("trend.target_year", "the model has no trend to move along (fitted with trend %q); give trend.slope_per_decade too", m.Trend.Kind)
+			}
+			out.Trend.Intercept += b * float64(calendar.YearStart(*t.TargetYear)-calendar.YearStart(year))
+		}
+	}
+	if sh := s.Shift; sh != nil {
+		if sh.Uniform != nil {
+			out.Trend.Intercept += k * *sh.Uniform
+		}
+		for i, v := range sh.Monthly {
+			sc.MonthlyShift[i] += k * v
+		}
+	}
+	if v := s.Volatility; v != nil {
+		for i := range out.Volatility.Monthly {
+			c := 1.0
+			if v.Scale != nil {
+				c *= *v.Scale
+			}
+			if v.MonthlyScale != nil {
+				c *= v.MonthlyScale[i]
+			}
+			out.Volatility.Monthly[i] *= c
+			out.Volatility.Band[i] = [2]float64{} // a band of the fit, not of the scenario
+		}
+	}
+	if p := s.Persistence; p != nil {
+		old := model.StationaryGain(m.AR.Phi)
+		if p.Phi != nil {
+			out.AR.Phi = append([]float64(nil), p.Phi...)
+		}
+		if p.Scale != nil {
+			for i := range out.AR.Phi {
+				out.AR.Phi[i] *= *p.Scale
+			}
+		}
+		if r := model.SpectralRadius(out.AR.Phi); r >= 1 {
+			return nil, fail("persistence", "φ = %v is not stationary (largest root modulus %.3f ≥ 1)", out.AR.Phi, r)
+		}
+		last := make([]float64, len(out.AR.Phi))
+		copy(last, m.AR.Last)
+		out.AR.Last, out.AR.PhiSE = last, nil
+		if p.KeepVariance {
+			c := math.Sqrt(old / model.StationaryGain(out.AR.Phi))
+			for i := range out.Volatility.Monthly {
+				out.Volatility.Monthly[i] *= c
+			}
+		}
+	}
+	if t := s.Tails; t != nil {
+		sh := &out.Shocks
+		if sh.Family == model.FamilyBootstrap {
+			return nil, fail("tails", "the model's shocks are a bootstrap of its innovations, which has no ν or ξ to change")
+		}
+		if t.DF != nil {
+			sh.DF = *t.DF
+			if sh.Family == model.FamilyNormal {
+				sh.Family = model.FamilyStudentT
+			}
+		}
+		if t.Skew != nil {
+			if sh.Family == model.FamilyNormal {
+				return nil, fail("tails.skew", "a normal model needs tails.df too to become a skewed t")
+			}
+			sh.Family, sh.Skew = model.FamilySkewT, *t.Skew
+		}
+		if sh.Family == model.FamilyStudentT {
+			sh.Skew = 0
+		}
+	}
+	for _, e := range s.Events {
+		delta := -k * e.Anomaly
+		if e.Kind == "hot" {
+			delta = -delta
+		}
+		w := e.Window
+		if w == "" {
+			w = e.Start + ":" + e.Start
+		}
+		p := 1.0
+		if e.Probability != nil {
+			p = *e.Probability
+		}
+		sc.Events = append(sc.Events, model.Event{Days: e.Days, Delta: delta, Window: w, Probability: p})
+	}
+	if sc.MonthlyShift != ([12]float64{}) || len(sc.Events) > 0 {
+		out.Scenario = sc
+	}
+	if err := out.Validate("scenario " + s.Name); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// factor converts the scenario's temperature differences to units.
+func (s *Scenario) factor(units string) float64 {
+	switch {
+	case s.Units == "C" && units == "F":
+		return 1.8
+	case s.Units == "F" && units == "C":
+		return 1 / 1.8
+	}
+	return 1
+}
+
+func clone(m *model.File) (*model.File, error) {
+	b, err := json.Marshal(m)
+	if err != nil {
+		return nil, err
+	}
+	var out model.File
+	if err := json.Unmarshal(b, &out); err != nil {
+		return nil, err
+	}
+	return &out, nil
+}
+
+// Describe lists what the scenario changes, one line each, with units
+// (u is "C" or "F", the units the scenario's degrees are shown in).
+func (s *Scenario) Describe() []string {
+	u := "°" + s.Units
+	if s.Units == "" {
+		u = "° (model units)"
+	}
+	var out []string
+	add := func(format string, a ...any) { out = append(out, fmt.Sprintf(format, a...)) }
+	if sh := s.Shift; sh != nil {
+		if sh.Uniform != nil {
+			add("level %+.2f %s every day", *sh.Uniform, u)
+		}
+		if sh.Monthly != nil {
+			add("level by month %s %s", monthList(sh.Monthly, "%+.1f"), u)
+		}
+	}
+	if t := s.Trend; t != nil {
+		if t.SlopePerDecade != nil {
+			add("trend %+.2f %s per decade from the end of the data", *t.SlopePerDecade, u)
+		}
+		if t.TargetYear != nil {
+			add("climate of %d along the trend", *t.TargetYear)
+		}
+	}
+	if v := s.Volatility; v != nil {
+		if v.Scale != nil {
+			add("volatility σ × %.2f", *v.Scale)
+		}
+		if v.MonthlyScale != nil {
+			add("volatility σ by month × %s", monthList(v.MonthlyScale, "%.2f"))
+		}
+	}
+	if p := s.Persistence; p != nil {
+		if p.Phi != nil {
+			add("persistence φ = %v", p.Phi)
+		}
+		if p.Scale != nil {
+			add("persistence φ × %.2f", *p.Scale)
+		}
+		if p.KeepVariance {
+			add("σ rescaled to keep the daily anomaly's variance")
+		}
+	}
+	if t := s.Tails; t != nil {
+		if t.DF != nil {
+			add("shock tails ν = %.1f", *t.DF)
+		}
+		if t.Skew != nil {
+			add("shock skew ξ = %.2f", *t.Skew)
+		}
+	}
+	for _, e := range s.Events {
+		kind, sign := "cold", "−"
+		if e.Kind == "hot" {
+			kind, sign = "hot", "+"
+		}
+		when := "starting " + e.Start
+		if e.Window != "" {
+			when = "starting at random in " + e.Window
+		}
+		p := "every year"
+		if e.Probability != nil && *e.Probability < 1 {
+			p = fmt.Sprintf("with probability %.2f a year", *e.Probability)
+		}
+		add("%s spell: %d days at %s%.1f %s, %s, %s", kind, e.Days, sign, e.Anomaly, u, when, p)
+	}
+	if len(out) == 0 {
+		out = append(out, "no change (the baseline)")
+	}
+	return out
+}
+
+func monthList(v []float64, format string) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = time.Month(i + 1).String()[:3] + " " + fmt.Sprintf(format, x)
+	}
+	return strings.Join(parts, ", ")
+}
