@@ -217,6 +217,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	d.KS = test(diagnose.KolmogorovSmirnov(zc, dist.CDF))
 	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
 	d.Spread = []model.WindowSpread{windowSpread(s, f, x, 30), windowSpread(s, f, x, 151)}
+	d.Climatology = climatology(s)
 	return res, nil
 }
 
@@ -559,4 +560,24 @@ func windowSpread(s *Series, f *model.File, x []float64, L int) model.WindowSpre
 		ws.Model = math.Sqrt(varSum / float64(len(means)))
 	}
 	return ws
+}
+
+// climatology returns the mean observed temperature by day of year.
+func climatology(s *Series) []float64 {
+	sum, n := make([]float64, 366), make([]int, 366)
+	for i, v := range s.Temps {
+		if !math.IsNaN(v) {
+			d := s.Date(i).DayOfYear() - 1
+			sum[d] += v
+			n[d]++
+		}
+	}
+	for d := range sum {
+		if n[d] > 0 {
+			sum[d] /= float64(n[d])
+		} else if d > 0 {
+			sum[d] = sum[d-1] // day 366 of a record without a leap year
+		}
+	}
+	return sum
 }

@@ -36,6 +36,11 @@ type Diagnostics struct {
 	// means of X in the data with what the fitted model implies.
 	Spread []WindowSpread `json:"window_spread"`
 
+	// Climatology is the mean observed temperature of each day of the year
+	// (index 0 is 1 January, 365 is 31 December of leap years) over the whole
+	// record, trend included.
+	Climatology []float64 `json:"climatology_by_day_of_year,omitempty"`
+
 	// QQ holds quantile pairs of z against the chosen family, thinned for plots.
 	QQTheoretical []float64 `json:"qq_theoretical,omitempty"`
 	QQSample      []float64 `json:"qq_sample,omitempty"`
