@@ -42,3 +42,19 @@ func BenchmarkRun(b *testing.B) {
 	}
 	b.ReportMetric(float64(days)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mdays/s")
 }
+
+// BenchmarkRunDemand is BenchmarkRun with a demand model and a capacity:
+// one more draw and the demand aggregates per day.
+func BenchmarkRunDemand(b *testing.B) {
+	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
+	var days int
+	for b.Loop() {
+		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: DefaultBases("C"),
+			Demand: testDemand(), Capacity: 90000})
+		if err != nil {
+			b.Fatal(err)
+		}
+		days = res.SimulatedDays * 100_000
+	}
+	b.ReportMetric(float64(days)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mdays/s")
+}

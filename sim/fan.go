@@ -38,7 +38,7 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 	for d := range days {
 		days[d] = make([]float64, paths)
 	}
-	var rng, erng rand.PCG
+	var rng rand.PCG
 	buf := make([]float64, pl.n)
 	for i := range paths {
 		if i%1024 == 0 {
@@ -46,12 +46,7 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 				return nil, err
 			}
 		}
-		seedPath(&rng, cfg.Seed, i)
-		pl.temps(&rng, buf)
-		if len(pl.events) > 0 {
-			seedPath(&erng, cfg.Seed^eventSalt, i)
-			pl.inject(&erng, buf)
-		}
+		pl.path(&rng, cfg.Seed, i, buf, nil)
 		for d := range n {
 			days[d][i] = buf[off+d]
 		}

@@ -1,5 +1,7 @@
 package sim
 
+import "strings"
+
 // Index is a per-path aggregate of a period: what a tail table has a row for.
 type Index int
 
@@ -11,6 +13,15 @@ const (
 	ColdDays               // days with a mean below the cold threshold
 	ColdSpell              // longest run of such days
 	numTempIndices
+)
+
+// Demand indices, present when a run has a demand model.
+const (
+	Energy       Index = numTempIndices + iota // total demand over the period
+	PeakDemand                                 // highest daily demand
+	PeakDay                                    // day of the year of that peak
+	OverCapacity                               // days with demand above the capacity
+	numIndices
 )
 
 // Info describes an index for reports.
@@ -30,18 +41,32 @@ var indexInfo = [...]Info{
 	Hottest:   {"hottest", "hottest day", true, "deg"},
 	ColdDays:  {"cold-days", "cold days", true, "days"},
 	ColdSpell: {"cold-spell", "longest cold spell", true, "days"},
+
+	Energy:       {"energy", "demand energy", true, "energy"},
+	PeakDemand:   {"peak", "peak-day demand", true, "demand"},
+	PeakDay:      {"peak-day", "day of the peak", true, "day of year"},
+	OverCapacity: {"over-capacity", "days over capacity", true, "days"},
 }
 
 // Info returns the description of the index.
 func (x Index) Info() Info { return indexInfo[x] }
 
-// Unit returns the index's unit for temperatures in units ("C" or "F").
-func (i Info) Unit(units string) string {
+// Unit returns the index's unit for temperatures in units ("C" or "F") and
+// demand in demandUnit (e.g. "GJ/day"; the energy of a period is then in
+// GJ).
+func (i Info) Unit(units, demandUnit string) string {
 	switch i.unit {
 	case "dd":
 		return "°" + units + "·day"
 	case "deg":
 		return "°" + units
+	case "demand":
+		return demandUnit
+	case "energy":
+		if u, ok := strings.CutSuffix(demandUnit, "/day"); ok {
+			return u
+		}
+		return demandUnit + "·day"
 	}
 	return i.unit
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"time"
 
 	"wxstress/calendar"
 	"wxstress/model"
@@ -57,6 +58,16 @@ type plan struct {
 	pspan   [][2]int // per period: segments [s0, s1)
 	bases   Bases
 	events  []planEvent
+	indices []Index // per period, in output order
+
+	// Demand (nil without a demand model).
+	demand    *model.Demand
+	normal    *shocks.Table // unit normal, for the demand noise
+	u0        float64       // demand noise before the first day
+	weekday   []time.Weekday
+	holiday   []bool
+	dayOfYear []int
+	capacity  float64
 }
 
 // planEvent is a scenario event resolved to the run's days: its start is
@@ -123,6 +134,12 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	}
 	if err := pl.setEvents(m, cfg.Year); err != nil {
 		return nil, err
+	}
+	for x := range numTempIndices {
+		pl.indices = append(pl.indices, x)
+	}
+	if cfg.Demand != nil {
+		pl.setDemand(cfg)
 	}
 	if err := pl.setShocks(m.Shocks, months); err != nil {
 		return nil, err
@@ -213,4 +230,30 @@ func (pl *plan) setEvents(m *model.File, year int) error {
 		pl.events = append(pl.events, ev)
 	}
 	return nil
+}
+
+// setDemand precomputes the demand model's per-day calendar.
+func (pl *plan) setDemand(cfg *Config) {
+	pl.demand = cfg.Demand
+	pl.normal = shocks.NewTable(shocks.Normal{})
+	if cfg.Start == StartConditional {
+		pl.u0 = cfg.Demand.Noise.Last
+	}
+	hol := map[calendar.Date]bool{}
+	for _, d := range cfg.Holidays {
+		hol[d] = true
+	}
+	pl.weekday = make([]time.Weekday, pl.n)
+	pl.holiday = make([]bool, pl.n)
+	pl.dayOfYear = make([]int, pl.n)
+	for i := range pl.n {
+		d := pl.first + calendar.Date(i)
+		pl.weekday[i], pl.holiday[i], pl.dayOfYear[i] = d.Weekday(), hol[d], d.DayOfYear()
+	}
+	pl.indices = append(pl.indices, Energy, PeakDemand, PeakDay)
+	pl.capacity = math.Inf(1)
+	if cfg.Capacity > 0 {
+		pl.capacity = cfg.Capacity
+		pl.indices = append(pl.indices, OverCapacity)
+	}
 }

@@ -10,6 +10,7 @@ import (
 
 	"golang.org/x/sync/errgroup"
 
+	"wxstress/calendar"
 	"wxstress/model"
 )
 
@@ -24,6 +25,14 @@ type Config struct {
 	// DefaultPeriods.
 	Periods []string
 	Bases   Bases
+	// Demand, when set, adds daily demand D = Expected(T, weekday,
+	// holiday) + u, u an AR(1), and the demand indices of each period.
+	Demand *model.Demand
+	// Holidays are the days simulated as holidays (demand only).
+	Holidays []calendar.Date
+	// Capacity, when positive, adds the index "days over capacity" (demand
+	// above Capacity, in the demand's unit).
+	Capacity float64
 	// Progress, when set, is called after each batch with the number of
 	// paths that batch finished; it is called from several goroutines.
 	Progress func(paths int)
@@ -76,6 +85,14 @@ func (c *Config) Validate(m *model.File) error {
 	if len(c.Periods) == 0 {
 		c.Periods = DefaultPeriods
 	}
+	if c.Demand != nil {
+		if err := c.Demand.CheckUnits(m.Data.Units); err != nil {
+			return err
+		}
+	}
+	if c.Capacity < 0 || math.IsNaN(c.Capacity) || math.IsInf(c.Capacity, 0) || c.Capacity > 0 && c.Demand == nil {
+		return fmt.Errorf("sim: a capacity must be positive and needs a demand model")
+	}
 	for _, v := range []float64{c.Bases.HDD, c.Bases.CDD, c.Bases.ColdBelow} {
 		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return fmt.Errorf("sim: degree-day bases and the cold threshold must be finite")
@@ -93,7 +110,7 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 	}
 	res := &Result{Config: cfg, Periods: periods, SimulatedDays: pl.n}
 	for _, p := range periods {
-		for x := range numTempIndices {
+		for _, x := range pl.indices {
 			res.Aggregates = append(res.Aggregates, Aggregate{Index: x, Period: p, Values: make([]float64, cfg.Paths)})
 		}
 	}
@@ -110,17 +127,19 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 			if err := gctx.Err(); err != nil {
 				return err
 			}
-			var rng, erng rand.PCG
+			var rng rand.PCG
 			segs := make([]segStats, len(pl.segs))
 			buf := make([]float64, pl.n)
+			var dbuf []float64
+			if pl.demand != nil {
+				dbuf = make([]float64, pl.n)
+			}
 			for i := lo; i < hi; i++ {
-				seedPath(&rng, cfg.Seed, i)
-				pl.temps(&rng, buf)
-				if len(pl.events) > 0 {
-					seedPath(&erng, cfg.Seed^eventSalt, i)
-					pl.inject(&erng, buf)
-				}
+				pl.path(&rng, cfg.Seed, i, buf, dbuf)
 				pl.accumulate(buf, segs)
+				if dbuf != nil {
+					pl.accumulateDemand(dbuf, segs)
+				}
 				pl.collect(segs, out, i)
 			}
 			if cfg.Progress != nil {
@@ -165,6 +184,12 @@ type segStats struct {
 	prefix   int     // cold days at the segment's start
 	suffix   int     // cold days at its end
 	length   int
+
+	// Demand; accumulateDemand fills these after accumulate.
+	energy float64 // total
+	peak   float64 // highest day
+	peakAt int     // index of that day
+	over   int     // days above capacity
 }
 
 // temps fills buf (pl.n days) with one path's daily temperatures: the AR
@@ -194,6 +219,55 @@ func (pl *plan) temps(rng *rand.PCG, buf []float64) {
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
 		buf[d] = mean[d] + x
+	}
+}
+
+// path simulates path i of a run with the given seed: temperatures into
+// buf, and demand into dbuf when the run has a demand model.
+func (pl *plan) path(rng *rand.PCG, seed uint64, i int, buf, dbuf []float64) {
+	seedPath(rng, seed, i)
+	pl.temps(rng, buf)
+	if len(pl.events) > 0 {
+		seedPath(rng, seed^eventSalt, i)
+		pl.inject(rng, buf)
+	}
+	if dbuf != nil {
+		seedPath(rng, seed^demandSalt, i)
+		pl.demandPath(rng, buf, dbuf)
+	}
+}
+
+// demandSalt separates the demand noise's random stream from the others.
+const demandSalt = 0xde3a2d5a17
+
+// demandPath fills dbuf with one path's daily demand for temperatures buf.
+func (pl *plan) demandPath(rng *rand.PCG, buf, dbuf []float64) {
+	d := pl.demand
+	phi, sigma, tab := d.Noise.Phi, d.Noise.Sigma, pl.normal
+	u := pl.u0
+	wd, hol := pl.weekday[:len(buf)], pl.holiday[:len(buf)]
+	for i, t := range buf {
+		u = phi*u + sigma*tab.Draw(rng.Uint64())
+		dbuf[i] = d.Expected(t, wd[i], hol[i]) + u
+	}
+}
+
+// accumulateDemand adds one path's demand statistics to its segments.
+func (pl *plan) accumulateDemand(dbuf []float64, segs []segStats) {
+	capacity := pl.capacity
+	for s, sg := range pl.segs {
+		st := &segs[s]
+		sum, peak, at, over := 0.0, math.Inf(-1), sg.lo, 0
+		for i, v := range dbuf[sg.lo:sg.hi] {
+			sum += v
+			if v > peak {
+				peak, at = v, sg.lo+i
+			}
+			if v > capacity {
+				over++
+			}
+		}
+		st.energy, st.peak, st.peakAt, st.over = sum, peak, at, over
 	}
 }
 
@@ -270,15 +344,22 @@ func (pl *plan) accumulate(buf []float64, segs []segStats) {
 // collect merges a path's segments into its period aggregates, written at
 // position i of each output column.
 func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
+	nx := len(pl.indices)
 	for k, span := range pl.pspan {
 		hdd, cdd := 0.0, 0.0
 		lo, hi := math.Inf(1), math.Inf(-1)
 		cold, best, run := 0, 0, 0
+		energy, peak, peakAt, over := 0.0, math.Inf(-1), 0, 0
 		for _, st := range segs[span[0]:span[1]] {
 			hdd += st.hdd
 			cdd += st.cdd
 			lo, hi = min(lo, st.lo), max(hi, st.hi)
 			cold += st.cold
+			energy += st.energy
+			over += st.over
+			if st.peak > peak {
+				peak, peakAt = st.peak, st.peakAt
+			}
 			if st.prefix == st.length { // all cold: the run goes on
 				run += st.length
 				best = max(best, run)
@@ -288,10 +369,17 @@ func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
 			run = st.suffix
 		}
 		best = max(best, run)
-		o := out[k*int(numTempIndices):]
+		o := out[k*nx:]
 		o[HDD][i], o[CDD][i] = hdd, cdd
 		o[Coldest][i], o[Hottest][i] = lo, hi
 		o[ColdDays][i], o[ColdSpell][i] = float64(cold), float64(best)
+		if nx > int(numTempIndices) {
+			o[Energy][i], o[PeakDemand][i] = energy, peak
+			o[PeakDay][i] = float64(pl.dayOfYear[peakAt])
+			if nx > int(OverCapacity) {
+				o[OverCapacity][i] = float64(over)
+			}
+		}
 	}
 }
 

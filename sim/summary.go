@@ -67,6 +67,10 @@ func (r *Result) Summarize(units string, thresholds []Threshold) []Row {
 	rows := make([]Row, len(r.Aggregates))
 	var g errgroup.Group
 	g.SetLimit(max(r.Config.Workers, 1))
+	demandUnit := ""
+	if r.Config.Demand != nil {
+		demandUnit = r.Config.Demand.Unit
+	}
 	for i, a := range r.Aggregates {
 		in := a.Index.Info()
 		var ths []float64
@@ -76,7 +80,7 @@ func (r *Result) Summarize(units string, thresholds []Threshold) []Row {
 			}
 		}
 		g.Go(func() error {
-			rows[i] = Row{Index: a.Index, Period: a.Period.Name, Name: in.Name, Unit: in.Unit(units), Info: in,
+			rows[i] = Row{Index: a.Index, Period: a.Period.Name, Name: in.Name, Unit: in.Unit(units, demandUnit), Info: in,
 				Tail: Summarize(a.Values, in.HighIsAdverse, ths)}
 			return nil
 		})

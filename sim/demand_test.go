@@ -1,0 +1,134 @@
+package sim
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+	"testing"
+	"time"
+
+	"gonum.org/v1/gonum/stat"
+
+	"wxstress/calendar"
+	"wxstress/model"
+)
+
+// testDemand is a 5-parameter change-point load model in GJ/day.
+func testDemand() *model.Demand {
+	d := &model.Demand{
+		Schema: model.DemandSchema, SchemaVersion: model.DemandSchemaVersion, Unit: "GJ/day", TemperatureUnits: "C",
+		Form: model.Form5P, Intercept: 38000, Holiday: -4000,
+		Heating: model.ChangePoint{Present: true, BalancePoint: 15.5, Slope: 3100},
+		Cooling: model.ChangePoint{Present: true, BalancePoint: 22, Slope: 450},
+		Noise:   model.DemandNoise{Phi: 0.5, Sigma: 1400, Last: 2000},
+	}
+	d.Weekday[5], d.Weekday[6] = -2600, -3800 // Saturday, Sunday
+	return d
+}
+
+// TestDemandAggregatesMatchBruteForce recomputes energy, peak, the day of
+// the peak and the days over capacity from the simulated days.
+func TestDemandAggregatesMatchBruteForce(t *testing.T) {
+	t.Parallel()
+	m := seasonalModel([]float64{0.72})
+	cfg := Config{Paths: 1, Year: 2024, Periods: []string{"year", "heating", "jan", "07-01:07-31"},
+		Bases: DefaultBases("C"), Demand: testDemand(), Capacity: 95000,
+		Holidays: []calendar.Date{calendar.FromYMD(2024, time.January, 1), calendar.FromYMD(2023, time.December, 25)}}
+	pl, ps, err := prepare(m, &cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nx := len(pl.indices)
+	if nx != int(numIndices) {
+		t.Fatalf("%d indices per period, want %d", nx, numIndices)
+	}
+	segs := make([]segStats, len(pl.segs))
+	buf, dbuf := make([]float64, pl.n), make([]float64, pl.n)
+	out := make([][]float64, len(ps)*nx)
+	for i := range out {
+		out[i] = make([]float64, 1)
+	}
+	var rng rand.PCG
+	for path := range 100 {
+		pl.path(&rng, 3, path, buf, dbuf)
+		pl.accumulate(buf, segs)
+		pl.accumulateDemand(dbuf, segs)
+		pl.collect(segs, out, 0)
+		for k, p := range ps {
+			lo, hi := int(p.From-pl.first), int(p.To-pl.first)+1
+			sum, peak, at, over := 0.0, math.Inf(-1), 0, 0.0
+			for d := lo; d < hi; d++ {
+				sum += dbuf[d]
+				if dbuf[d] > peak {
+					peak, at = dbuf[d], d
+				}
+				if dbuf[d] > cfg.Capacity {
+					over++
+				}
+			}
+			want := map[Index]float64{Energy: sum, PeakDemand: peak,
+				PeakDay: float64((pl.first + calendar.Date(at)).DayOfYear()), OverCapacity: over}
+			for x, w := range want {
+				if got := out[k*nx+int(x)][0]; math.Abs(got-w) > 1e-9*math.Max(1, math.Abs(w)) {
+					t.Fatalf("path %d %s %s = %v, brute force %v", path, p.Name, x.Info().Name, got, w)
+				}
+			}
+		}
+	}
+}
+
+// In a climate always below the heating balance point with no weekday or
+// holiday effects, a period's energy is n·β0 + βH·HDD(base TbH) + Σu, and
+// the AR(1) noise u has mean zero: the identity holds path by path up to Σu,
+// whose mean over paths is within Monte Carlo error of 0.
+func TestDemandEnergyIsLinearInHDD(t *testing.T) {
+	t.Parallel()
+	d := testDemand()
+	d.Form, d.Cooling, d.Holiday, d.Weekday = model.Form3PHeating, model.ChangePoint{}, 0, [7]float64{}
+	d.Noise.Last = 0
+	m := flatModel(2, 0.7, 2, model.FamilyNormal, 0)
+	const paths = 4000
+	res, err := Run(context.Background(), m, Config{Paths: paths, Seed: 4, Year: 2023, Periods: []string{"year"},
+		Bases: Bases{HDD: d.Heating.BalancePoint, CDD: 30, ColdBelow: 0}, Demand: d})
+	if err != nil {
+		t.Fatal(err)
+	}
+	resid := make([]float64, paths)
+	for i := range paths {
+		hdd := res.Aggregates[HDD].Values[i]
+		resid[i] = res.Aggregates[Energy].Values[i] - 365*d.Intercept - d.Heating.Slope*hdd
+	}
+	mean, sd := stat.MeanStdDev(resid, nil)
+	// Σu over 365 days of an AR(1) with φ = 0.5, σ = 1400 has sd about
+	// 1400·√365/(1 − 0.5) ≈ 53 500.
+	if want := 1400 * math.Sqrt(365) / 0.5; math.Abs(sd/want-1) > 0.1 {
+		t.Errorf("sd of the noise sum %.0f, want about %.0f", sd, want)
+	}
+	if math.Abs(mean) > 4*sd/math.Sqrt(paths) {
+		t.Errorf("mean of energy − (n·β0 + βH·HDD) is %.0f, want 0 within %.0f", mean, 4*sd/math.Sqrt(paths))
+	}
+}
+
+func TestDemandKeepsTemperatureStreams(t *testing.T) {
+	t.Parallel()
+	// Adding a demand model must not change the temperatures (their random
+	// stream is separate), so temperature indices are identical.
+	m := seasonalModel([]float64{0.72})
+	a := run(t, m, Config{Paths: 300, Seed: 8})
+	b := run(t, m, Config{Paths: 300, Seed: 8, Demand: testDemand()})
+	for k := range numTempIndices {
+		for i, v := range a.Aggregates[k].Values {
+			if b.Aggregates[k].Values[i] != v {
+				t.Fatalf("%s changed when demand was added", k.Info().Name)
+			}
+		}
+	}
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Capacity: 5, Bases: DefaultBases("C")}); err == nil {
+		t.Error("a capacity without a demand model was accepted")
+	}
+	d := testDemand()
+	d.TemperatureUnits = "F"
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: DefaultBases("C")}); err == nil {
+		t.Error("a °F demand model on a °C temperature model was accepted")
+	}
+}
