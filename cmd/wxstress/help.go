@@ -39,6 +39,8 @@ func runHelpCmd(_ context.Context, args []string, stdout, _ io.Writer) error {
 		writeUsage(stdout, fitUsage, newFitFlags(&fitOptions{}))
 	case "simulate":
 		writeUsage(stdout, simulateUsage, newSimulateFlags(&simulateOptions{}))
+	case "fit-demand":
+		writeUsage(stdout, fitDemandUsage, newFitDemandFlags(&fitDemandOptions{}))
 	case "scenarios":
 		writeUsage(stdout, scenariosUsage, newScenariosFlags())
 	case "demo":

@@ -35,6 +35,7 @@ func commands() []command {
 	return []command{
 		{"demo", "run the whole job on the built-in invented station", runDemoCmd},
 		{"fit", "calibrate a temperature model to a daily CSV", runFitCmd},
+		{"fit-demand", "fit a change-point demand model to daily load and temperature", runFitDemandCmd},
 		{"simulate", "draw synthetic years and report degree-day tail tables", runSimulateCmd},
 		{"scenarios", "list the built-in scenarios, or check scenario files", runScenariosCmd},
 		{"version", "print the tool version", runVersionCmd},

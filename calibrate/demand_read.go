@@ -1,0 +1,404 @@
+package calibrate
+
+import (
+	"bufio"
+	"crypto/sha256"
+	"encoding/csv"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"slices"
+	"sort"
+	"strconv"
+	"strings"
+
+	"wxstress/calendar"
+)
+
+// DemandReadOptions controls how ReadDemand interprets a file. The zero value
+// reads the file's own holiday column, if any, and nothing else.
+type DemandReadOptions struct {
+	// Holidays are holiday dates from a separate list (see ReadHolidays),
+	// merged with the file's holiday column: a day is a holiday when either
+	// says so. Dates outside the demand record are ignored.
+	Holidays []calendar.Date
+	// HolidaysName names the list in messages and in the model file.
+	HolidaysName string
+}
+
+// DemandSeries is a daily demand history as read: one entry per data row, in
+// strictly increasing date order. Days without a row are not in it.
+type DemandSeries struct {
+	Name    string          // the file name, for messages and the manifest
+	Dates   []calendar.Date // one per row, strictly increasing
+	Load    []float64       // the row's load; NaN = missing (a gap, not an error)
+	Holiday []bool          // from the holiday column and the holiday list
+	// Line and Column locate each row's date field in the input, so that
+	// later checks (the join with temperatures) can point at the row.
+	Line   []int32
+	Column []int32
+
+	DateColumn    string // header name of the date column
+	LoadColumn    string // header name of the load column
+	HolidayColumn string // header name of the holiday column, "" without one
+	HolidaysFile  string // DemandReadOptions.HolidaysName, when a list was merged
+	Missing       int    // rows whose load is missing
+	Absent        int    // days between the first and last row that have no row
+	Holidays      int    // rows marked as holidays (column or list)
+	Warnings      []string
+	SHA256        string // hex SHA-256 of the input bytes
+}
+
+// DaysWithLoad returns the number of rows with a load.
+func (d *DemandSeries) DaysWithLoad() int { return len(d.Dates) - d.Missing }
+
+// Accepted column names of a demand file, compared case-insensitively.
+var (
+	loadNames    = []string{"load", "demand", "consumption", "value"}
+	holidayNames = []string{"holiday", "is_holiday", "holidays"}
+)
+
+// MinDemandDays is the fewest days with a load ReadDemand accepts (and the
+// fewest joined days FitDemand fits): a full year, so that the record holds a
+// heating and a cooling season.
+const MinDemandDays = 365
+
+// ReadDemandFile opens path and reads it with ReadDemand, using path as the
+// name.
+func ReadDemandFile(path string, opt DemandReadOptions) (*DemandSeries, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("calibrate: %w", err)
+	}
+	defer f.Close()
+	return ReadDemand(f, path, opt)
+}
+
+// ReadDemand reads a daily demand history from r; name is used in messages
+// and stored in DemandSeries.Name.
+//
+// The input is CSV with a header row. Columns are found by name, ignoring
+// case and surrounding spaces: the date (date or day, as YYYY-MM-DD), the
+// load (load, demand, consumption or value; a number ≥ 0 in the unit the user
+// states) and, optionally, a holiday flag (holiday, is_holiday or holidays:
+// 1/0, true/false, yes/no, or empty for 0). Other columns are ignored. A
+// UTF-8 byte order mark, CRLF line ends and blank lines are tolerated.
+//
+// Empty loads, NA, NaN, null and -9999 are missing: such a row is a gap,
+// counted in Missing, not an error. Rows must be in date order without
+// repeats, and at least MinDemandDays rows must have a load.
+//
+// Bad data is reported as an ErrorList of *PosError holding every problem
+// found, each with its line and column; the list wraps ErrBadInput. A
+// failure of r itself is returned wrapped, without ErrBadInput.
+func ReadDemand(r io.Reader, name string, opt DemandReadOptions) (*DemandSeries, error) {
+	hash := sha256.New()
+	br := bufio.NewReader(io.TeeReader(r, hash))
+	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.ReuseRecord = true
+	cr.TrimLeadingSpace = true
+
+	p := &demandParser{parser: parser{name: name, cr: cr}, opt: opt}
+	if err := p.readHeader(); err != nil {
+		return nil, err
+	}
+	if err := p.readRows(); err != nil {
+		return nil, err
+	}
+	d, err := p.series()
+	if err != nil {
+		return nil, err
+	}
+	if _, err := io.Copy(io.Discard, br); err != nil {
+		return nil, fmt.Errorf("calibrate: reading %s: %w", name, err)
+	}
+	d.SHA256 = hex.EncodeToString(hash.Sum(nil))
+	return d, nil
+}
+
+// demandParser holds the state of one ReadDemand call. It shares the
+// temperature reader's error handling and column search.
+type demandParser struct {
+	parser
+	opt     DemandReadOptions
+	load    int // column index of the load
+	holiday int // column index of the holiday flag, or -1
+	d       DemandSeries
+}
+
+func (p *demandParser) readHeader() error {
+	record, err := p.cr.Read()
+	if err == io.EOF {
+		p.errorf(0, 0, "", "empty file: no header row")
+		return p.errs
+	}
+	if err != nil {
+		if fatal := p.csvError(err, record); fatal != nil {
+			return fatal
+		}
+		return p.errs
+	}
+	p.headerLine, _ = p.cr.FieldPos(0)
+	p.header = make([]string, len(record))
+	for i, h := range record {
+		p.header[i] = strings.TrimSpace(h)
+	}
+	p.date = p.find(dateNames, "the date", true)
+	p.load = p.find(loadNames, "the load", true)
+	p.holiday = p.find(holidayNames, "the holiday flag", true)
+	if p.date < 0 {
+		p.errorf(p.headerLine, 0, "", "no date column (accepted names: %s); columns found: %s",
+			strings.Join(dateNames, ", "), p.listColumns())
+	}
+	if p.load < 0 {
+		p.errorf(p.headerLine, 0, "", "no load column (accepted names: %s); columns found: %s",
+			strings.Join(loadNames, ", "), p.listColumns())
+	}
+	if len(p.errs) > 0 {
+		return p.errs
+	}
+	p.d.DateColumn = p.header[p.date]
+	p.d.LoadColumn = p.header[p.load]
+	if p.holiday >= 0 {
+		p.d.HolidayColumn = p.header[p.holiday]
+	}
+	return nil
+}
+
+func (p *demandParser) readRows() error {
+	for {
+		record, err := p.cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if (err == nil || errors.Is(err, csv.ErrFieldCount)) && blank(record) {
+			continue
+		}
+		if err != nil {
+			if fatal := p.csvError(err, record); fatal != nil {
+				return fatal
+			}
+			continue
+		}
+		p.readRow(record)
+	}
+	if len(p.errs) > 0 {
+		return p.errs
+	}
+	return nil
+}
+
+// readRow checks one data row and, when its date is usable, appends it.
+func (p *demandParser) readRow(record []string) {
+	before := len(p.errs)
+	defer func() { sortByColumn(p.errs[before:]) }()
+
+	load := p.loadValue(record)
+	hol := false
+	if p.holiday >= 0 {
+		hol = p.holidayValue(record)
+	}
+	raw := strings.TrimSpace(record[p.date])
+	line, col := p.cr.FieldPos(p.date)
+	field := p.header[p.date]
+	d, err := calendar.Parse(raw)
+	if err != nil {
+		if raw == "" {
+			p.errorf(line, col, field, "missing date")
+		} else {
+			p.errorf(line, col, field, "not a date of the form YYYY-MM-DD: %s", quote(raw))
+		}
+		return
+	}
+	dates := p.d.Dates
+	if n := len(dates); n > 0 && d <= dates[n-1] {
+		if i := sort.Search(n, func(i int) bool { return dates[i] >= d }); dates[i] == d {
+			p.errorf(line, col, field, "duplicate date %s, first on line %d", quote(raw), p.d.Line[i])
+		} else {
+			p.errorf(line, col, field, "date %s is out of order: it follows %s on line %d",
+				quote(raw), dates[n-1], p.d.Line[n-1])
+		}
+		return
+	}
+	p.d.Dates = append(p.d.Dates, d)
+	p.d.Load = append(p.d.Load, load)
+	p.d.Holiday = append(p.d.Holiday, hol)
+	p.d.Line = append(p.d.Line, int32(min(line, math.MaxInt32)))
+	p.d.Column = append(p.d.Column, int32(min(col, math.MaxInt32)))
+}
+
+// loadValue parses the load field: NaN for a missing value, and NaN with an
+// error recorded for a bad one.
+func (p *demandParser) loadValue(record []string) float64 {
+	raw := strings.TrimSpace(record[p.load])
+	if isMissing(raw) {
+		return math.NaN()
+	}
+	line, col := p.cr.FieldPos(p.load)
+	field := p.header[p.load]
+	v, err := strconv.ParseFloat(raw, 64)
+	switch {
+	case err == nil && !math.IsInf(v, 0) && !math.IsNaN(v) && !strings.ContainsAny(raw, "_xX"):
+	case errors.Is(err, strconv.ErrRange) || (err == nil && (math.IsInf(v, 0) || math.IsNaN(v))):
+		p.errorf(line, col, field, "not a finite number: %s", quote(raw))
+		return math.NaN()
+	default:
+		p.errorf(line, col, field, "not a number: %s", quote(raw))
+		return math.NaN()
+	}
+	if v == missingCode {
+		return math.NaN()
+	}
+	if v < 0 {
+		p.errorf(line, col, field, "negative load %s: a load must be zero or more (leave it empty if it is missing)", quote(raw))
+		return math.NaN()
+	}
+	return v
+}
+
+// holidayValue parses the holiday flag; a bad value is recorded and read as
+// false.
+func (p *demandParser) holidayValue(record []string) bool {
+	raw := strings.TrimSpace(record[p.holiday])
+	switch strings.ToLower(raw) {
+	case "", "0", "false", "no":
+		return false
+	case "1", "true", "yes":
+		return true
+	}
+	line, col := p.cr.FieldPos(p.holiday)
+	p.errorf(line, col, p.header[p.holiday], "not a holiday flag: %s (want 1/0, true/false, yes/no or empty)", quote(raw))
+	return false
+}
+
+// series merges the holiday list and checks what needs the whole record.
+func (p *demandParser) series() (*DemandSeries, error) {
+	d := &p.d
+	d.Name = p.name
+	d.Warnings = p.warnings
+	if len(d.Dates) == 0 {
+		p.errorf(0, 0, "", "no data rows after the header")
+		return nil, p.errs
+	}
+	for _, v := range d.Load {
+		if math.IsNaN(v) {
+			d.Missing++
+		}
+	}
+	if n := d.DaysWithLoad(); n < MinDemandDays {
+		p.errorf(0, 0, "", "only %d days have a load: at least %d are needed (a full year, to see both heating and cooling seasons)",
+			n, MinDemandDays)
+		return nil, p.errs
+	}
+	d.Absent = int(d.Dates[len(d.Dates)-1]-d.Dates[0]) + 1 - len(d.Dates)
+	if len(p.opt.Holidays) > 0 {
+		d.HolidaysFile = p.opt.HolidaysName
+		matched := 0
+		for _, h := range p.opt.Holidays {
+			if i, ok := slices.BinarySearch(d.Dates, h); ok {
+				d.Holiday[i] = true
+				matched++
+			}
+		}
+		if matched == 0 {
+			d.Warnings = append(d.Warnings, fmt.Sprintf("none of the %d dates in the holiday list %s falls on a day of the demand record (%s to %s)",
+				len(p.opt.Holidays), p.opt.HolidaysName, d.Dates[0], d.Dates[len(d.Dates)-1]))
+		}
+	}
+	for _, h := range d.Holiday {
+		if h {
+			d.Holidays++
+		}
+	}
+	return d, nil
+}
+
+// ReadHolidaysFile opens path and reads it with ReadHolidays.
+func ReadHolidaysFile(path string) ([]calendar.Date, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("calibrate: %w", err)
+	}
+	defer f.Close()
+	return ReadHolidays(f, path)
+}
+
+// ReadHolidays reads a list of holiday dates: either one ISO date
+// (YYYY-MM-DD) per line, or CSV whose header has a date column (date or
+// day; other columns, such as a name, are ignored). Lines starting with #
+// are comments; blank lines are skipped; the order of the dates does not
+// matter and repeats are harmless. It returns the dates sorted, without
+// repeats. Bad dates are reported as an ErrorList of *PosError, like
+// ReadCSV's.
+func ReadHolidays(r io.Reader, name string) ([]calendar.Date, error) {
+	br := bufio.NewReader(r)
+	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
+		br.Discard(3)
+	}
+	cr := csv.NewReader(br)
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	cr.Comment = '#'
+	p := &parser{name: name, cr: cr}
+	col := -1 // the date column; -1 until the first record decides
+	var dates []calendar.Date
+	for {
+		record, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			if fatal := p.csvError(err, record); fatal != nil {
+				return nil, fatal
+			}
+			continue
+		}
+		if blank(record) {
+			continue
+		}
+		if col < 0 {
+			for i, f := range record {
+				if slicesIndexFold(dateNames, strings.TrimSpace(f)) >= 0 {
+					col = i
+					break
+				}
+			}
+			if col >= 0 {
+				continue // a header row
+			}
+			col = 0 // a plain list: the date is the first field
+		}
+		if col >= len(record) {
+			line, _ := cr.FieldPos(0)
+			p.errorf(line, 0, "", "no date: the row has %d fields, the date is field %d", len(record), col+1)
+			continue
+		}
+		raw := strings.TrimSpace(record[col])
+		line, c := cr.FieldPos(col)
+		d, err := calendar.Parse(raw)
+		if err != nil {
+			if raw == "" {
+				p.errorf(line, c, "", "missing date")
+			} else {
+				p.errorf(line, c, "", "not a date of the form YYYY-MM-DD: %s", quote(raw))
+			}
+			continue
+		}
+		dates = append(dates, d)
+	}
+	if len(p.errs) > 0 {
+		return nil, p.errs
+	}
+	if len(dates) == 0 {
+		p.errorf(0, 0, "", "no holiday dates")
+		return nil, p.errs
+	}
+	slices.Sort(dates)
+	return slices.Compact(dates), nil
+}

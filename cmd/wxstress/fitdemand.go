@@ -1,0 +1,158 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"slices"
+	"strings"
+
+	"github.com/spf13/pflag"
+
+	"wxstress/calibrate"
+	"wxstress/cmd/wxstress/render"
+	"wxstress/model"
+)
+
+var fitDemandUsage = helpText{
+	usage: "wxstress fit-demand --temps FILE.csv --demand FILE.csv --unit UNIT [--out demand.json] [flags]",
+	about: `Fit a change-point model of daily demand to the daily mean temperature:
+
+  D = β0 + weekday terms + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0) + u
+
+with Monday the reference day and u an AR(1). The forms are the inverse
+change-point models of ASHRAE Guideline 14: 3p-heating, 3p-cooling, 4p (one
+balance point, a slope on either side) and 5p (TbH ≤ TbC, flat between).
+Balance points are searched in 0.1° steps between the 5th and 95th
+percentiles of temperature; the form is chosen by BIC unless --form fixes it.
+The summary shows the BIC of every form, the coefficients with standard
+errors, R², CV(RMSE) and NMBE beside the guideline's calibration levels, and
+residual diagnostics.
+
+The demand CSV needs a header with a date column (YYYY-MM-DD) and a load
+column (load, demand, consumption or value), and may have a holiday column
+(1/0, true/false, yes/no). Empty, NA and -9999 loads are gaps. --holidays adds
+a list of holiday dates: one YYYY-MM-DD per line, or CSV with a date column.
+The temperature CSV is read as by 'wxstress fit'; every demand day must lie
+within it, and days without a temperature are left out.`,
+	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --out demand.json
+  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --holidays holidays.txt --form 5p
+  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --units F --format json`,
+}
+
+type fitDemandOptions struct {
+	temps, demand, holidays string
+	unit, form, units       string
+	out, format             string
+	settings                calibrate.DemandSettings
+	readOpts                calibrate.ReadOptions
+}
+
+func newFitDemandFlags(o *fitDemandOptions) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("fit-demand", pflag.ContinueOnError)
+	o.addFlags(fs)
+	return fs
+}
+
+func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
+	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
+	fs.StringVar(&o.demand, "demand", "", "daily demand CSV: date, load and an optional holiday column (required)")
+	fs.StringVar(&o.unit, "unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
+	fs.StringVar(&o.holidays, "holidays", "", "holiday dates: one YYYY-MM-DD per line, or CSV with a date column")
+	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandForms, ", "))
+	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
+	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
+	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
+}
+
+func (o *fitDemandOptions) validate() error {
+	switch {
+	case o.temps == "":
+		return usagef("fit-demand: --temps is required")
+	case o.demand == "":
+		return usagef("fit-demand: --demand is required")
+	case strings.TrimSpace(o.unit) == "":
+		return usagef("fit-demand: --unit is required: the unit of the loads, e.g. GJ/day or MWh/day")
+	}
+	if o.format != "table" && o.format != "json" {
+		return usagef("fit-demand: --format %q: want table or json", o.format)
+	}
+	if o.form != "auto" && !slices.Contains(model.DemandForms, o.form) {
+		return usagef("fit-demand: --form %q: want auto, %s", o.form, strings.Join(model.DemandForms, ", "))
+	}
+	if o.units != "" {
+		u, err := calibrate.ParseUnits(o.units)
+		if err != nil {
+			return usagef("fit-demand: --units: %v", err)
+		}
+		o.readOpts.Units = u
+	}
+	o.settings = calibrate.DemandSettings{Form: o.form, Unit: strings.TrimSpace(o.unit)}
+	return nil
+}
+
+func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	var o fitDemandOptions
+	if err := parseFlags(newFitDemandFlags(&o), fitDemandUsage, args, stdout); err != nil {
+		return err
+	}
+	if err := o.validate(); err != nil {
+		return err
+	}
+	temps, err := calibrate.ReadFile(o.temps, o.readOpts)
+	if err != nil {
+		return err
+	}
+	var dopt calibrate.DemandReadOptions
+	if o.holidays != "" {
+		if dopt.Holidays, err = calibrate.ReadHolidaysFile(o.holidays); err != nil {
+			return err
+		}
+		dopt.HolidaysName = o.holidays
+	}
+	demand, err := calibrate.ReadDemandFile(o.demand, dopt)
+	if err != nil {
+		return err
+	}
+	days, err := calibrate.JoinDemand(demand, temps)
+	if err != nil {
+		return err
+	}
+	res, err := calibrate.FitDemand(days, &o.settings)
+	if err != nil {
+		return err
+	}
+	m := res.Model
+	m.ToolVersion = version
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	return emitDemand(stdout, stderr, m, o.format, o.out)
+}
+
+// emitDemand prints the demand summary or JSON and writes the model file.
+func emitDemand(stdout, stderr io.Writer, m *model.Demand, format, out string) error {
+	for _, w := range m.Warnings {
+		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+	}
+	if out != "" {
+		if err := m.Write(out); err != nil {
+			return err
+		}
+	}
+	if format == "json" {
+		b, err := m.MarshalIndent()
+		if err != nil {
+			return err
+		}
+		_, err = stdout.Write(b)
+		return err
+	}
+	if err := render.DemandSummary(stdout, m); err != nil {
+		return err
+	}
+	if out != "" {
+		fmt.Fprintf(stdout, "\nDemand model written to %s\n", out)
+	}
+	return nil
+}

@@ -1,0 +1,185 @@
+package render
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"wxstress/model"
+)
+
+// DemandSummary writes the readable summary of a fitted demand model.
+func DemandSummary(w io.Writer, m *model.Demand) error {
+	e := &errWriter{w: w}
+	u := "°" + m.TemperatureUnits
+	d := m.Data
+	dec := demandLoadDecimals(m.Fit.MeanLoad)
+	e.printf("Demand record  %s, with temperatures from %s (%s)\n", d.DemandFile, d.TemperatureFile, u)
+	e.printf("  %s to %s: %d rows, %d days fitted; %d without a load, %d without a temperature; %d holidays",
+		d.FirstDate, d.LastDate, d.Rows, d.Days, d.MissingLoad, d.MissingTemperature, d.Holidays)
+	if d.HolidaysFile != "" {
+		e.printf(" (column and %s)", d.HolidaysFile)
+	}
+	e.printf("; loads in %s\n", m.Unit)
+
+	writeDemandForms(e, m, u)
+
+	e.printf("\nCoefficients (%s; standard errors by OLS, conditional on the balance points)\n", m.Unit)
+	rows := [][]string{demandCoefRow("base load β0 (a Monday, not a holiday)", m.Intercept, m.SE.Intercept, dec)}
+	for i := 1; i < 7; i++ {
+		rows = append(rows, demandCoefRow(demandWeekdays[i]+" (vs Monday)", m.Weekday[i], m.SE.Weekday[i], dec))
+	}
+	rows = append(rows, demandCoefRow("holiday", m.Holiday, m.SE.Holiday, dec))
+	if m.Heating.Present {
+		rows = append(rows, demandCoefRow(fmt.Sprintf("heating slope βH, per %s below %.1f %s", u, m.Heating.BalancePoint, u),
+			m.Heating.Slope, m.Heating.SlopeSE, dec+1))
+	}
+	if m.Cooling.Present {
+		rows = append(rows, demandCoefRow(fmt.Sprintf("cooling slope βC, per %s above %.1f %s", u, m.Cooling.BalancePoint, u),
+			m.Cooling.Slope, m.Cooling.SlopeSE, dec+1))
+	}
+	e.table([]string{"term", "estimate", "s.e.", "t"}, rows)
+	e.printf("  balance points: %s\n", demandBalanceText(m, u))
+	if dg := m.Diagnostics; dg != nil {
+		e.printf("  the standard errors assume independent residuals; the residuals' lag-1 autocorrelation is %.2f, "+
+			"so they understate the uncertainty\n", dg.ACF1)
+	}
+
+	f := m.Fit
+	e.printf("\nFit  R² = %.4f; RMSE = %s %s (n = %d, p = %d); mean load %s %s\n",
+		f.R2, num(f.RMSE, dec), m.Unit, f.N, f.Parameters, num(f.MeanLoad, dec), m.Unit)
+	e.printf("CV(RMSE) and NMBE beside the calibration levels of ASHRAE Guideline 14-2014 (from memory)\n")
+	rows = rows[:0]
+	for _, c := range f.Checks {
+		result := "meets the level"
+		if !c.Pass {
+			result = "FAILS the level"
+		}
+		rows = append(rows, []string{c.Data, fmt.Sprint(c.N), fmt.Sprint(c.P), num(c.CVRMSE, 2), demandPct(c.NMBE),
+			fmt.Sprintf("%s: ≤ %.0f %%, ±%.0f %%", c.Level, c.CVRMSEMax, c.NMBEMax), result})
+	}
+	e.table([]string{"compared", "n", "p", "CV(RMSE) %", "NMBE %", "guideline level", ""}, rows)
+	e.printf("  CV(RMSE) = 100·√(Σ(y − ŷ)²/(n − p))/ȳ and NMBE = 100·Σ(y − ŷ)/((n − p)·ȳ), p the model's parameters\n")
+	e.printf("  (coefficients and balance points). The guideline's levels are for monthly (CV(RMSE) ≤ 15 %%, |NMBE| ≤ 5 %%)\n")
+	e.printf("  and hourly (≤ 30 %%, ±10 %%) data; daily values are held to the hourly levels, the daily fit's\n")
+	e.printf("  sums over the calendar months it covers fully to the monthly ones. In sample, NMBE of a least-squares\n")
+	e.printf("  fit is 0 by construction; the held-out last year, predicted by a refit (grid search included) to the\n")
+	e.printf("  days before it, is the informative check (p = 0 where the model was not fitted to the values).\n")
+
+	n := m.Noise
+	e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d pairs of consecutive days\n",
+		n.Phi, n.PhiSE, num(n.Sigma, dec), m.Unit, n.Pairs)
+	if dg := m.Diagnostics; dg != nil {
+		rows = [][]string{
+			{"lag-1 autocorrelation of the residuals", num(dg.ACF1, 3), "", "", ""},
+			lbRow("Ljung–Box Q(10) on the residuals", dg.LjungBoxResiduals),
+			lbRow("Ljung–Box Q(10) on the AR(1) innovations", dg.LjungBoxInnovations),
+			lbRow("Jarque–Bera on the innovations", dg.JarqueBera),
+			{"skewness of the innovations", num(dg.Skewness, 3), "", "", ""},
+			{"excess kurtosis of the innovations", num(dg.ExcessKurtosis, 3), "", "", ""},
+		}
+		e.table([]string{"test", "statistic", "df", "p-value", "at 5 %"}, rows)
+		if dg.LjungBoxInnovations.P < 0.05 {
+			e.printf("  the AR(1) innovations are still autocorrelated: some day-to-day structure (for example weekday\n" +
+				"  effects that change with the season) is not in the model\n")
+		}
+	}
+
+	if len(m.Warnings) > 0 {
+		e.printf("\nWarnings\n")
+		for _, w := range m.Warnings {
+			e.printf("  - %s\n", w)
+		}
+	}
+	e.printf("\n%s\n", Caution)
+	return e.err
+}
+
+var demandWeekdays = [7]string{"Monday", "Tuesday", "Wednesday", "Thursday", "Friday", "Saturday", "Sunday"}
+
+func writeDemandForms(e *errWriter, m *model.Demand, u string) {
+	if len(m.Forms) == 0 {
+		return
+	}
+	e.printf("\nChange-point form: %s\n  %s\n", m.Form, m.FormRule)
+	if dg := m.Diagnostics; dg != nil {
+		e.printf("  balance points searched from %.1f to %.1f %s (5th to 95th percentile of temperature) in %.1f° steps;\n",
+			dg.SearchRange[0], dg.SearchRange[1], u, dg.SearchStep)
+	}
+	e.printf("  each form at its best grid point; BIC counts each balance point as a parameter (lower is better)\n")
+	best := math.Inf(1)
+	for _, s := range m.Forms {
+		if s.BIC < best && s.RSS > 0 {
+			best = s.BIC
+		}
+	}
+	var rows [][]string
+	for _, s := range m.Forms {
+		bp := make([]string, len(s.BalancePoints))
+		for i, v := range s.BalancePoints {
+			bp[i] = fmt.Sprintf("%.1f", v)
+		}
+		sl := make([]string, len(s.Slopes))
+		for i, v := range s.Slopes {
+			sl[i] = fmt.Sprintf("%.4g", v)
+		}
+		var note []string
+		if s.Chosen {
+			note = append(note, "chosen")
+		}
+		if s.BIC == best {
+			note = append(note, "lowest")
+		}
+		if s.Note != "" {
+			note = append(note, s.Note)
+		}
+		bic, delta := "—", "—"
+		if s.RSS > 0 {
+			bic, delta = num(s.BIC, 1), num(s.BIC-best, 1)
+		}
+		rows = append(rows, []string{s.Form, strings.Join(bp, ", "), strings.Join(sl, ", "), fmt.Sprint(s.Parameters),
+			bic, delta, strings.Join(note, "; ")})
+	}
+	e.table([]string{"form", "balance points " + u, "slopes " + m.Unit + " per " + u, "parameters", "BIC", "ΔBIC", ""}, rows)
+}
+
+func demandBalanceText(m *model.Demand, u string) string {
+	switch {
+	case m.Form == model.Form4P:
+		return fmt.Sprintf("one, Tb = %.1f %s (heating below, cooling above)", m.Heating.BalancePoint, u)
+	case m.Heating.Present && m.Cooling.Present:
+		return fmt.Sprintf("heating TbH = %.1f %s, cooling TbC = %.1f %s (flat between)", m.Heating.BalancePoint, u,
+			m.Cooling.BalancePoint, u)
+	case m.Heating.Present:
+		return fmt.Sprintf("heating TbH = %.1f %s (no cooling term)", m.Heating.BalancePoint, u)
+	}
+	return fmt.Sprintf("cooling TbC = %.1f %s (no heating term)", m.Cooling.BalancePoint, u)
+}
+
+// demandCoefRow formats a coefficient with its standard error and t ratio; a zero
+// standard error means the term was not estimated.
+func demandCoefRow(name string, v, se float64, dec int) []string {
+	if se == 0 {
+		return []string{name, num(v, dec), "—", "—"}
+	}
+	return []string{name, num(v, dec), num(se, dec), num(v/se, 1)}
+}
+
+// demandPct formats a percentage to two decimals, without a sign on a value that
+// rounds to zero.
+func demandPct(v float64) string {
+	if math.Abs(v) < 0.005 {
+		return "0.00"
+	}
+	return num(v, 2)
+}
+
+// demandLoadDecimals picks decimals for loads of this size: four significant
+// digits at the mean, at least none.
+func demandLoadDecimals(mean float64) int {
+	if !(mean > 0) {
+		return 2
+	}
+	return max(0, 3-int(math.Floor(math.Log10(mean))))
+}

@@ -1,0 +1,469 @@
+package model
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"slices"
+	"strings"
+	"time"
+
+	"wxstress/calendar"
+	"wxstress/internal/atomicfile"
+)
+
+// DemandSchema identifies the demand model file; DemandSchemaVersion is
+// bumped on any change a version-1 reader could misread. A reader accepts
+// files whose schema_version is at most its own.
+const (
+	DemandSchema        = "wxstress-demand"
+	DemandSchemaVersion = 1
+)
+
+// Change-point forms of the demand model (ASHRAE Guideline 14 inverse
+// models), named by their parameter count.
+const (
+	Form3PHeating = "3p-heating" // β0 + βH·max(TbH − T, 0)
+	Form3PCooling = "3p-cooling" // β0 + βC·max(T − TbC, 0)
+	Form4P        = "4p"         // β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)
+	Form5P        = "5p"         // β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC
+)
+
+// DemandForms lists the change-point forms in the order reports show them.
+var DemandForms = []string{Form3PHeating, Form3PCooling, Form4P, Form5P}
+
+// HasHeating reports whether form has a heating slope.
+func HasHeating(form string) bool { return form == Form3PHeating || form == Form4P || form == Form5P }
+
+// HasCooling reports whether form has a cooling slope.
+func HasCooling(form string) bool { return form == Form3PCooling || form == Form4P || form == Form5P }
+
+// Demand is the demand model file: daily demand as a function of the day's
+// mean temperature T (in TemperatureUnits, the units of the temperature
+// model it goes with), the weekday and public holidays, in Unit (for
+// example GJ/day):
+//
+//	D(t) = β0 + w(weekday) + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0) + u(t)
+//	u(t) = φ·u(t−1) + σ·z(t),  z ~ N(0, 1)
+//
+// β0 is the load of a Monday that is not a holiday with T between the
+// balance points; w(Monday) = 0. Heating terms are absent from the
+// 3p-cooling form and cooling terms from the 3p-heating form; in the 4p
+// form TbH = TbC.
+//
+// Values of Demand are plain data, safe to share between goroutines for
+// reading.
+type Demand struct {
+	Schema           string `json:"schema"`
+	SchemaVersion    int    `json:"schema_version"`
+	ToolVersion      string `json:"tool_version"`
+	Unit             string `json:"unit"`              // demand unit as the user stated it, e.g. "GJ/day"
+	TemperatureUnits string `json:"temperature_units"` // "C" or "F"
+	Form             string `json:"form"`              // one of DemandForms
+	FormRule         string `json:"form_rule"`         // how the form was chosen
+
+	Intercept float64     `json:"intercept"` // β0, Unit
+	Weekday   [7]float64  `json:"weekday"`   // added to β0, Monday (0) .. Sunday (6), Unit
+	Holiday   float64     `json:"holiday"`   // βhol, Unit; 0 when the data had no holidays
+	Heating   ChangePoint `json:"heating"`
+	Cooling   ChangePoint `json:"cooling"`
+	Noise     DemandNoise `json:"noise"`
+
+	// SE holds the standard errors of the coefficients other than the
+	// slopes (those are in Heating and Cooling).
+	SE DemandSE `json:"standard_errors"`
+
+	Fit      DemandFit  `json:"fit"`
+	Data     DemandData `json:"data"`
+	Warnings []string   `json:"warnings"` // never null: [] when there are none
+
+	// Forms compares the constant model and every change-point form by
+	// BIC; Profile is the grid search's residual sum of squares, left out
+	// when the grid has more than 1000 points.
+	Forms       []FormScore        `json:"forms,omitempty"`
+	Profile     []DemandProfile    `json:"profile,omitempty"`
+	Diagnostics *DemandDiagnostics `json:"diagnostics,omitempty"`
+}
+
+// ChangePoint is one side of the change-point model: a balance point and
+// the slope beyond it, in Unit per degree. In the file, all three values
+// are null when the form has no such side.
+type ChangePoint struct {
+	Present      bool    // the form has this side; not stored, implied by the nulls
+	BalancePoint float64 // TbH or TbC, in TemperatureUnits
+	Slope        float64 // βH or βC: extra demand per degree beyond the balance point
+	// SlopeSE is the ordinary least-squares standard error of Slope,
+	// conditional on the balance points (which were chosen by grid search
+	// and are treated as known).
+	SlopeSE float64
+}
+
+type changePointJSON struct {
+	BalancePoint *float64 `json:"balance_point"`
+	Slope        *float64 `json:"slope"`
+	SlopeSE      *float64 `json:"slope_se"`
+}
+
+// MarshalJSON writes null values for an absent side.
+func (c ChangePoint) MarshalJSON() ([]byte, error) {
+	var j changePointJSON
+	if c.Present {
+		j = changePointJSON{&c.BalancePoint, &c.Slope, &c.SlopeSE}
+	}
+	return json.Marshal(j)
+}
+
+// UnmarshalJSON reads a side; a null balance point means absent.
+func (c *ChangePoint) UnmarshalJSON(b []byte) error {
+	var j changePointJSON
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&j); err != nil {
+		return err
+	}
+	*c = ChangePoint{Present: j.BalancePoint != nil}
+	if j.BalancePoint != nil {
+		c.BalancePoint = *j.BalancePoint
+	}
+	if j.Slope != nil {
+		c.Slope = *j.Slope
+	}
+	if j.SlopeSE != nil {
+		c.SlopeSE = *j.SlopeSE
+	}
+	return nil
+}
+
+// DemandNoise is the AR(1) residual u(t) = φ·u(t−1) + σ·z(t), z ~ N(0, 1).
+type DemandNoise struct {
+	Phi   float64 `json:"phi"`
+	PhiSE float64 `json:"phi_se"`
+	Sigma float64 `json:"sigma"` // innovation standard deviation, Unit
+	// Last is u on Data.LastDate (0 when that day has no residual), for
+	// simulations that start from the end of the record.
+	Last float64 `json:"last_residual"`
+	// Pairs is the number of consecutive-day residual pairs behind φ.
+	Pairs int `json:"pairs"`
+}
+
+// DemandSE holds ordinary least-squares standard errors, conditional on
+// the balance points. Weekday[0] (Monday, the reference) is 0; Holiday is 0
+// when no holiday was in the data.
+type DemandSE struct {
+	Intercept float64    `json:"intercept"`
+	Weekday   [7]float64 `json:"weekday"`
+	Holiday   float64    `json:"holiday"`
+}
+
+// DemandFit describes how well the model reproduces the data it was fitted
+// to. CV(RMSE) and NMBE are in percent, as ASHRAE Guideline 14 states them:
+//
+//	CV(RMSE) = 100 · √(Σ(yᵢ − ŷᵢ)² / (n − p)) / ȳ
+//	NMBE     = 100 · Σ(yᵢ − ŷᵢ) / ((n − p) · ȳ)
+//
+// with n days and p the model's parameters (coefficients and balance
+// points).
+type DemandFit struct {
+	N          int     `json:"n"`          // days in the fit
+	Parameters int     `json:"parameters"` // p: coefficients + balance points
+	R2         float64 `json:"r2"`
+	RMSE       float64 `json:"rmse"`      // √(RSS/(n − p)), Unit
+	MeanLoad   float64 `json:"mean_load"` // ȳ, Unit
+	CVRMSE     float64 `json:"cv_rmse"`   // percent
+	NMBE       float64 `json:"nmbe"`      // percent
+	BIC        float64 `json:"bic"`
+	Guideline  string  `json:"guideline"` // the edition and levels used
+	// Checks compare CV(RMSE) and NMBE with the guideline's calibration
+	// levels: the daily fit, its monthly sums, and a held-out final year.
+	Checks []GuidelineCheck `json:"checks"`
+}
+
+// GuidelineCheck is one comparison of CV(RMSE) and NMBE (percent) with an
+// acceptance level of ASHRAE Guideline 14.
+type GuidelineCheck struct {
+	// Data says what was compared: "daily, in sample", "monthly sums, in
+	// sample" (calendar months every day of which was fitted) or "daily,
+	// held out: FIRST to LAST" (the last year, predicted by a refit to the
+	// days before it).
+	Data      string  `json:"data"`
+	N         int     `json:"n"`     // values compared
+	P         int     `json:"p"`     // parameters subtracted in the denominators
+	Level     string  `json:"level"` // "hourly" or "monthly": which of the guideline's levels
+	CVRMSE    float64 `json:"cv_rmse"`
+	NMBE      float64 `json:"nmbe"`
+	CVRMSEMax float64 `json:"cv_rmse_max"`
+	NMBEMax   float64 `json:"nmbe_max"` // |NMBE| at most this
+	Pass      bool    `json:"pass"`
+}
+
+// DemandData describes the records the model was fitted to.
+type DemandData struct {
+	DemandFile        string        `json:"demand_file"`
+	DemandSHA256      string        `json:"demand_sha256"`
+	TemperatureFile   string        `json:"temperature_file"`
+	TemperatureSHA256 string        `json:"temperature_sha256"`
+	HolidaysFile      string        `json:"holidays_file,omitempty"`
+	FirstDate         calendar.Date `json:"first_date"` // first day used
+	LastDate          calendar.Date `json:"last_date"`  // last day used
+	Rows              int           `json:"rows"`       // data rows of the demand file
+	Days              int           `json:"days"`       // days used in the fit
+	MissingLoad       int           `json:"missing_load"`
+	// MissingTemperature counts days with a load but no temperature,
+	// dropped from the fit.
+	MissingTemperature int `json:"missing_temperature"`
+	Holidays           int `json:"holidays"` // holiday days among those used
+}
+
+// FormScore is one row of the form table: the best fit of a form over the
+// balance-point grid. Form "constant" is the model without temperature.
+type FormScore struct {
+	Form          string    `json:"form"`
+	BalancePoints []float64 `json:"balance_points"` // TbH and/or TbC; one value for 4p
+	Slopes        []float64 `json:"slopes"`         // βH and/or βC
+	RSS           float64   `json:"rss"`
+	Parameters    int       `json:"parameters"` // coefficients + balance points
+	BIC           float64   `json:"bic"`
+	// Valid is false when a slope is not positive; such a form is never
+	// chosen automatically.
+	Valid  bool   `json:"valid"`
+	Note   string `json:"note,omitempty"`
+	Chosen bool   `json:"chosen"`
+}
+
+// DemandProfile is the grid search's minimum residual sum of squares at each
+// balance point from Start in steps of Step: for a 3p form over its balance
+// point (Side "heating" or "cooling"), for the 4p form over its one balance
+// point (Side "both"), for the 5p form over one balance point, minimised over
+// the other (one profile with Side "heating", one with "cooling").
+type DemandProfile struct {
+	Form  string    `json:"form"`
+	Side  string    `json:"side"`
+	Start float64   `json:"start"`
+	Step  float64   `json:"step"`
+	RSS   []float64 `json:"rss"` // NaN-free; a grid point without a fit holds the largest value
+}
+
+// DemandDiagnostics describe the residuals of the fit.
+type DemandDiagnostics struct {
+	ACF1 float64 `json:"acf1"` // lag-1 autocorrelation of the residuals
+	// LjungBoxResiduals tests the residuals u (lag 10); LjungBoxInnovations
+	// the AR(1) innovations z·σ (lag 10, one fitted coefficient).
+	LjungBoxResiduals   Test    `json:"ljung_box_residuals_10"`
+	LjungBoxInnovations Test    `json:"ljung_box_innovations_10"`
+	JarqueBera          Test    `json:"jarque_bera_innovations"`
+	Skewness            float64 `json:"skewness_innovations"`
+	ExcessKurtosis      float64 `json:"excess_kurtosis_innovations"`
+	// SearchRange is the balance-point grid: the 5th and 95th percentiles
+	// of the fitted days' temperatures, rounded inwards to the step.
+	SearchRange [2]float64 `json:"search_range"`
+	SearchStep  float64    `json:"search_step"`
+}
+
+// Expected returns the deterministic part of the demand,
+// β0 + w(weekday) + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0),
+// for a day of mean temperature t (in TemperatureUnits). It does not
+// allocate. It panics if weekday is not in time.Sunday..time.Saturday.
+func (d *Demand) Expected(t float64, weekday time.Weekday, holiday bool) float64 {
+	if uint(weekday) > uint(time.Saturday) {
+		panic("model: weekday out of range")
+	}
+	v := d.Intercept + d.Weekday[(weekday+6)%7]
+	if holiday {
+		v += d.Holiday
+	}
+	if d.Heating.Present && t < d.Heating.BalancePoint {
+		v += d.Heating.Slope * (d.Heating.BalancePoint - t)
+	}
+	if d.Cooling.Present && t > d.Cooling.BalancePoint {
+		v += d.Cooling.Slope * (t - d.Cooling.BalancePoint)
+	}
+	return v
+}
+
+// CheckUnits returns an error unless units ("C" or "F", a temperature
+// model's data.units) are the demand model's temperature units.
+func (d *Demand) CheckUnits(units string) error {
+	if units != d.TemperatureUnits {
+		return fmt.Errorf("model: the demand model's balance points are in °%s but the temperatures are in °%s: refit one of them in the other's units",
+			d.TemperatureUnits, units)
+	}
+	return nil
+}
+
+// demandRequired are the dotted paths every demand file must carry (the
+// heating and cooling keys are checked against the form in Validate).
+var demandRequired = []string{
+	"schema", "schema_version", "unit", "temperature_units", "form",
+	"intercept", "weekday", "holiday", "heating", "cooling",
+	"noise.phi", "noise.sigma", "fit.cv_rmse", "fit.nmbe",
+}
+
+// ReadDemand reads and validates a demand model file.
+func ReadDemand(path string) (*Demand, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return DecodeDemand(b, path)
+}
+
+// DecodeDemand parses and validates demand-model JSON; name is used in
+// messages. Errors about the content are *KeyError naming the key and wrap
+// ErrInvalid.
+func DecodeDemand(b []byte, name string) (*Demand, error) {
+	var raw map[string]any
+	if err := json.Unmarshal(b, &raw); err != nil {
+		return nil, fmt.Errorf("%s: not a demand model file (JSON): %w", name, err)
+	}
+	if s, _ := raw["schema"].(string); s != DemandSchema {
+		hint := ""
+		if s == Schema {
+			hint = " (this is a temperature model file)"
+		}
+		return nil, &KeyError{name, "schema", fmt.Sprintf("is %q, want %q: not a wxstress demand model file%s", raw["schema"], DemandSchema, hint)}
+	}
+	if v, ok := raw["schema_version"].(float64); !ok || v != math.Trunc(v) || v < 1 {
+		return nil, &KeyError{name, "schema_version", "missing or not a positive whole number"}
+	} else if v > DemandSchemaVersion {
+		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, DemandSchemaVersion)}
+	}
+	for _, k := range demandRequired {
+		if !hasKey(raw, k) {
+			return nil, &KeyError{name, k, "missing"}
+		}
+	}
+	if w, ok := raw["weekday"].([]any); !ok || len(w) != 7 {
+		return nil, &KeyError{name, "weekday", "want 7 values, Monday first"}
+	}
+	form, _ := raw["form"].(string)
+	if !slices.Contains(DemandForms, form) {
+		return nil, &KeyError{name, "form", fmt.Sprintf("is %q, want one of %s", raw["form"], strings.Join(DemandForms, ", "))}
+	}
+	for _, sd := range []struct {
+		side string
+		has  bool
+	}{{"heating", HasHeating(form)}, {"cooling", HasCooling(form)}} {
+		side, has := sd.side, sd.has
+		sub, _ := raw[side].(map[string]any)
+		for _, k := range []string{"balance_point", "slope"} {
+			v, ok := sub[k]
+			switch {
+			case !ok:
+				return nil, &KeyError{name, side + "." + k, "missing (null when the form has no " + side + " side)"}
+			case has && v == nil:
+				return nil, &KeyError{name, side + "." + k, fmt.Sprintf("is null, but form %q has a %s side", form, side)}
+			case !has && v != nil:
+				return nil, &KeyError{name, side + "." + k, fmt.Sprintf("must be null: form %q has no %s side", form, side)}
+			}
+		}
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	var d Demand
+	if err := dec.Decode(&d); err != nil {
+		return nil, fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+	}
+	if d.Warnings == nil {
+		d.Warnings = []string{}
+	}
+	if err := d.Validate(name); err != nil {
+		return nil, err
+	}
+	return &d, nil
+}
+
+// Validate checks that the parameters describe a model the simulator can
+// run: a known form with the sides it implies, finite coefficients,
+// TbH ≤ TbC (equal for 4p), |φ| < 1 and σ > 0. name is used in messages.
+func (d *Demand) Validate(name string) error {
+	bad := func(key, format string, a ...any) error {
+		return &KeyError{name, key, fmt.Sprintf(format, a...)}
+	}
+	if strings.TrimSpace(d.Unit) == "" {
+		return bad("unit", "empty: state the demand unit, e.g. \"GJ/day\"")
+	}
+	if d.TemperatureUnits != "C" && d.TemperatureUnits != "F" {
+		return bad("temperature_units", "is %q, want \"C\" or \"F\"", d.TemperatureUnits)
+	}
+	if !slices.Contains(DemandForms, d.Form) {
+		return bad("form", "is %q, want one of %s", d.Form, strings.Join(DemandForms, ", "))
+	}
+	if d.Heating.Present != HasHeating(d.Form) {
+		return bad("heating.balance_point", "does not match form %q", d.Form)
+	}
+	if d.Cooling.Present != HasCooling(d.Form) {
+		return bad("cooling.balance_point", "does not match form %q", d.Form)
+	}
+	if !finite(d.Intercept) {
+		return bad("intercept", "not a finite number")
+	}
+	for i, v := range d.Weekday {
+		if !finite(v) {
+			return bad(fmt.Sprintf("weekday[%d]", i), "not a finite number")
+		}
+	}
+	if !finite(d.Holiday) {
+		return bad("holiday", "not a finite number")
+	}
+	for _, side := range []struct {
+		key string
+		c   ChangePoint
+	}{{"heating", d.Heating}, {"cooling", d.Cooling}} {
+		if !side.c.Present {
+			continue
+		}
+		if !finite(side.c.BalancePoint) || math.Abs(side.c.BalancePoint) > 200 {
+			return bad(side.key+".balance_point", "%v is not a plausible temperature", side.c.BalancePoint)
+		}
+		if !finite(side.c.Slope) {
+			return bad(side.key+".slope", "not a finite number")
+		}
+	}
+	switch d.Form {
+	case Form4P:
+		if d.Heating.BalancePoint != d.Cooling.BalancePoint {
+			return bad("cooling.balance_point", "%v differs from heating.balance_point %v: the 4p form has one balance point",
+				d.Cooling.BalancePoint, d.Heating.BalancePoint)
+		}
+	case Form5P:
+		if d.Heating.BalancePoint > d.Cooling.BalancePoint {
+			return bad("cooling.balance_point", "%v is below heating.balance_point %v: the 5p form needs TbH ≤ TbC",
+				d.Cooling.BalancePoint, d.Heating.BalancePoint)
+		}
+	}
+	if !finite(d.Noise.Phi) || math.Abs(d.Noise.Phi) >= 1 {
+		return bad("noise.phi", "φ = %v, must be in (−1, 1) for a stationary AR(1)", d.Noise.Phi)
+	}
+	if !(d.Noise.Sigma > 0) || !finite(d.Noise.Sigma) {
+		return bad("noise.sigma", "σ = %v, must be positive and finite", d.Noise.Sigma)
+	}
+	if !finite(d.Noise.Last) {
+		return bad("noise.last_residual", "not a finite number")
+	}
+	return nil
+}
+
+// Write writes the demand model file atomically (a temporary file renamed
+// into place).
+func (d *Demand) Write(path string) error {
+	b, err := d.MarshalIndent()
+	if err != nil {
+		return err
+	}
+	return atomicfile.WriteFile(path, b)
+}
+
+// MarshalIndent returns the file's JSON, indented, with a final newline.
+func (d *Demand) MarshalIndent() ([]byte, error) {
+	c := *d
+	if c.Warnings == nil {
+		c.Warnings = []string{}
+	}
+	b, err := json.MarshalIndent(&c, "", "  ")
+	if err != nil {
+		return nil, fmt.Errorf("model: encoding the demand model: %w", err)
+	}
+	return append(b, '\n'), nil
+}
