@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 	"time"
 
@@ -131,4 +132,75 @@ func TestDemandKeepsTemperatureStreams(t *testing.T) {
 	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: DefaultBases("C")}); err == nil {
 		t.Error("a °F demand model on a °C temperature model was accepted")
 	}
+}
+
+// A year 3 °C colder than normal, in a climate always below the heating
+// balance point, used βH·3 more per day than normal weather would have; the
+// normalized demand takes exactly that out (up to the Monte Carlo error of
+// the normal-weather mean).
+func TestWeatherNormalize(t *testing.T) {
+	t.Parallel()
+	d := testDemand()
+	m := flatModel(2, 0.7, 0.01, model.FamilyNormal, 0)
+	var hist []HistoryDay
+	start := calendar.YearStart(2022)
+	for i := range 365 {
+		day := start + calendar.Date(i)
+		temp := m.Mean(day.ModelTime()) - 3
+		hist = append(hist, HistoryDay{Date: day, Temp: temp, Load: d.Expected(temp, day.Weekday(), false) + 500})
+	}
+	const paths = 500
+	out, err := WeatherNormalize(context.Background(), m, d, Config{Seed: 2, Bases: DefaultBases("C")}, hist, paths)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(out) != 1 || out[0].Year != 2022 || out[0].Days != 365 {
+		t.Fatalf("got %+v", out)
+	}
+	y := out[0]
+	if math.Abs(y.Actual-y.AtActualWeather-365*500) > 1e-6 {
+		t.Errorf("actual − modelled at actual weather = %.1f, want 365·500", y.Actual-y.AtActualWeather)
+	}
+	want := y.Actual - 365*3*d.Heating.Slope
+	// Σ of AR(1) noise over a year has sd ≈ 53 500 (see above); its mean
+	// over 500 paths ≈ 2 400.
+	if tol := 4 * 53500 / math.Sqrt(paths); math.Abs(y.Normalized-want) > tol {
+		t.Errorf("normalized %.0f, want %.0f ± %.0f", y.Normalized, want, tol)
+	}
+}
+
+// The load-duration curve's first rank is the year's peak day, so its
+// quantiles across paths equal those of the peak-day index of a Run with
+// the same seed and paths (the same years, path by path).
+func TestLoadDurationFirstRankIsThePeak(t *testing.T) {
+	t.Parallel()
+	m := seasonalModel([]float64{0.72})
+	cfg := Config{Seed: 6, Year: 2027, Bases: DefaultBases("C"), Demand: testDemand()}
+	fan, err := RunFan(context.Background(), m, cfg, 600)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cfg.Paths, cfg.Periods = 600, []string{"year"}
+	res := run(t, m, cfg)
+	tail := Summarize(res.Aggregates[PeakDemand].Values, true, nil)
+	for k, p := range FanProbs {
+		want := stat.Quantile(p, stat.LinInterp, sortedCopy(res.Aggregates[PeakDemand].Values), nil)
+		if got := fan.LoadDuration[k][0]; math.Abs(got-want) > 1e-9*want {
+			t.Errorf("load-duration rank 1, P%.0f = %.3f; peak-day index %.3f", 100*p, got, want)
+		}
+	}
+	if fan.LoadDuration[2][0] != tail.Quantiles[4] {
+		t.Errorf("median of the highest day %v, P50 of the peak %v", fan.LoadDuration[2][0], tail.Quantiles[4])
+	}
+	for r := 1; r < len(fan.LoadDuration[2]); r++ {
+		if fan.LoadDuration[2][r] > fan.LoadDuration[2][r-1]+1e-9 {
+			t.Fatalf("median load-duration curve rises at rank %d", r+1)
+		}
+	}
+}
+
+func sortedCopy(x []float64) []float64 {
+	y := slices.Clone(x)
+	slices.Sort(y)
+	return y
 }
