@@ -68,7 +68,7 @@ func TestDemandAggregatesMatchBruteForce(t *testing.T) {
 				}
 			}
 			want := map[Index]float64{Energy: sum, PeakDemand: peak,
-				PeakDay: float64((pl.first + calendar.Date(at)).DayOfYear()), OverCapacity: over}
+				PeakDay: float64(at - lo + 1), OverCapacity: over}
 			for x, w := range want {
 				if got := out[k*nx+int(x)][0]; math.Abs(got-w) > 1e-9*math.Max(1, math.Abs(w)) {
 					t.Fatalf("path %d %s %s = %v, brute force %v", path, p.Name, x.Info().Name, got, w)
@@ -203,4 +203,20 @@ func sortedCopy(x []float64) []float64 {
 	y := slices.Clone(x)
 	slices.Sort(y)
 	return y
+}
+
+func TestFixedDateHolidays(t *testing.T) {
+	t.Parallel()
+	in := []calendar.Date{calendar.FromYMD(2021, time.December, 25), calendar.FromYMD(2022, time.December, 25),
+		calendar.FromYMD(2020, time.February, 29)}
+	got := FixedDateHolidays(in, 2025)
+	want := []string{"2024-12-25", "2025-12-25", "2024-02-29"}
+	if len(got) != len(want) {
+		t.Fatalf("got %v", got)
+	}
+	for i, d := range got {
+		if d.String() != want[i] {
+			t.Errorf("holiday %d = %s, want %s", i, d, want[i])
+		}
+	}
 }

@@ -19,7 +19,7 @@ const (
 const (
 	Energy       Index = numTempIndices + iota // total demand over the period
 	PeakDemand                                 // highest daily demand
-	PeakDay                                    // day of the year of that peak
+	PeakDay                                    // day of that peak, counted from the period's first day (1)
 	OverCapacity                               // days with demand above the capacity
 	numIndices
 )
@@ -44,7 +44,7 @@ var indexInfo = [...]Info{
 
 	Energy:       {"energy", "demand energy", true, "energy"},
 	PeakDemand:   {"peak", "peak-day demand", true, "demand"},
-	PeakDay:      {"peak-day", "day of the peak", true, "day of year"},
+	PeakDay:      {"peak-day", "day of the peak", true, "day of period"},
 	OverCapacity: {"over-capacity", "days over capacity", true, "days"},
 }
 

@@ -71,3 +71,24 @@ func WeatherNormalize(ctx context.Context, m *model.File, d *model.Demand, cfg C
 	}
 	return out, nil
 }
+
+// FixedDateHolidays repeats the month and day of each listed date in the
+// target year and the year before it (the years a run can span): holidays
+// treated as fixed-date, as most public holidays are; movable ones are only
+// approximated. A 29 February is kept only in leap years.
+func FixedDateHolidays(dates []calendar.Date, year int) []calendar.Date {
+	seen := map[calendar.Date]bool{}
+	var out []calendar.Date
+	for _, d := range dates {
+		_, m, day := d.YMD()
+		for _, y := range []int{year - 1, year} {
+			h := calendar.FromYMD(y, m, day)
+			if _, hm, _ := h.YMD(); hm != m || seen[h] {
+				continue // 29 February of a common year
+			}
+			seen[h] = true
+			out = append(out, h)
+		}
+	}
+	return out
+}

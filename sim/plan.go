@@ -61,13 +61,12 @@ type plan struct {
 	indices []Index // per period, in output order
 
 	// Demand (nil without a demand model).
-	demand    *model.Demand
-	normal    *shocks.Table // unit normal, for the demand noise
-	u0        float64       // demand noise before the first day
-	weekday   []time.Weekday
-	holiday   []bool
-	dayOfYear []int
-	capacity  float64
+	demand   *model.Demand
+	normal   *shocks.Table // unit normal, for the demand noise
+	u0       float64       // demand noise before the first day
+	weekday  []time.Weekday
+	holiday  []bool
+	capacity float64
 }
 
 // planEvent is a scenario event resolved to the run's days: its start is
@@ -245,10 +244,9 @@ func (pl *plan) setDemand(cfg *Config) {
 	}
 	pl.weekday = make([]time.Weekday, pl.n)
 	pl.holiday = make([]bool, pl.n)
-	pl.dayOfYear = make([]int, pl.n)
 	for i := range pl.n {
 		d := pl.first + calendar.Date(i)
-		pl.weekday[i], pl.holiday[i], pl.dayOfYear[i] = d.Weekday(), hol[d], d.DayOfYear()
+		pl.weekday[i], pl.holiday[i] = d.Weekday(), hol[d]
 	}
 	pl.indices = append(pl.indices, Energy, PeakDemand, PeakDay)
 	pl.capacity = math.Inf(1)

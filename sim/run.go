@@ -375,7 +375,7 @@ func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
 		o[ColdDays][i], o[ColdSpell][i] = float64(cold), float64(best)
 		if nx > int(numTempIndices) {
 			o[Energy][i], o[PeakDemand][i] = energy, peak
-			o[PeakDay][i] = float64(pl.dayOfYear[peakAt])
+			o[PeakDay][i] = float64(peakAt - pl.segs[span[0]].lo + 1)
 			if nx > int(OverCapacity) {
 				o[OverCapacity][i] = float64(over)
 			}

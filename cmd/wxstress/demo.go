@@ -5,40 +5,53 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
 
 	"github.com/spf13/pflag"
 
+	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/demo"
+	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
 )
 
 var demoUsage = helpText{
-	usage: "wxstress demo [flags]",
-	about: `Run the whole job on the built-in, invented record of ` + demo.StationName + `
-(71 years of daily means, ` + demo.StationFile + `): fit the temperature model,
-print its summary, simulate synthetic years for the year after the record ends
-under today's climate and four built-in scenarios (warm-1c, trend-2050,
-volatile-winter, cold-spell-10d), and print the tail tables side by side.
-The data are invented for demonstration.`,
+	usage: "wxstress demo [--dir DIR] [--force] [--paths N] [--seed S]",
+	about: `Run the whole job on built-in, invented data: the 71-year daily record of
+` + demo.StationName + ` and five years of ` + demo.Retailer + `'s daily gas send-out.
+It fits the temperature model, fits the demand model, simulates the year after
+the record under today's climate and four built-in scenarios (warm-1c,
+trend-2050, volatile-winter, cold-spell-10d) with demand, and prints the fit
+summaries, the tail tables, the planning tables, the scenario comparison and
+the weather-normalized history. Its outputs (model.json, demand.json,
+tails.json, tails.csv, paths.csv) go to a directory it names, which it never
+overwrites without --force. The data are invented for demonstration.`,
 	examples: `  wxstress demo
-  wxstress demo --paths 100000 --seed 7 --model-out kestrel_model.json`,
+  wxstress demo --dir /tmp/kestrel --force --paths 100000 --seed 7`,
 }
 
 type demoOptions struct {
-	modelOut string
-	paths    int
-	seed     uint64
+	dir   string
+	force bool
+	paths int
+	seed  uint64
 }
+
+// demoCapacity is the invented retailer's contracted daily capacity, GJ/day.
+const demoCapacity = 120000
 
 func newDemoFlags(o *demoOptions) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("demo", pflag.ContinueOnError)
-	fs.StringVar(&o.modelOut, "model-out", "", "also write the fitted model file here")
+	fs.StringVar(&o.dir, "dir", "wxstress-demo", "directory for the outputs")
+	fs.BoolVar(&o.force, "force", false, "replace the outputs in an existing directory")
 	fs.IntVar(&o.paths, "paths", 10000, "number of synthetic years")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
 	return fs
@@ -52,26 +65,46 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if o.paths <= 0 {
 		return usagef("demo: --paths must be a positive number, got %d", o.paths)
 	}
+	if err := claimDir(o.dir, o.force); err != nil {
+		return err
+	}
 	series, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
 	if err != nil {
 		return fmt.Errorf("demo data: %w", err)
 	}
-	fmt.Fprintf(stdout, "wxstress demo: %s (invented data)\n\n== 1. Fit ==\n\n", demo.StationName)
+	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
+		demo.StationName, demo.Retailer)
 	res, err := fitSeries(series, nil)
 	if err != nil {
 		return err
 	}
 	m := res.Model
 	m.Data.Description = demo.StationName + " (invented demonstration data)"
-	if err := emitFit(stdout, stderr, m, "table", o.modelOut); err != nil {
+	modelPath := filepath.Join(o.dir, "model.json")
+	if err := emitFit(stdout, stderr, m, "table", modelPath); err != nil {
 		return err
 	}
 
-	b, err := json.MarshalIndent(m, "", "  ")
+	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
+	dem, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
+	if err != nil {
+		return fmt.Errorf("demo data: %w", err)
+	}
+	days, err := calibrate.JoinDemand(dem, series)
 	if err != nil {
 		return err
 	}
-	sum := sha256.Sum256(append(b, '\n'))
+	dres, err := calibrate.FitDemand(days, &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit})
+	if err != nil {
+		return err
+	}
+	d := dres.Model
+	d.ToolVersion = version
+	demandPath := filepath.Join(o.dir, "demand.json")
+	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
+		return err
+	}
+
 	var scens []*scenarios.Scenario
 	for _, name := range demoScenarios {
 		sc, err := scenarios.Lookup(name)
@@ -80,20 +113,78 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		}
 		scens = append(scens, sc)
 	}
-	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.DefaultBases(m.Data.Units)}
+	year := targetYear(m, 0)
+	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Year: year, Bases: sim.DefaultBases(m.Data.Units),
+		Demand: d, Capacity: demoCapacity, Holidays: sim.FixedDateHolidays(holidayDates(days), year)}
 	rep, out, err := simulateAll(ctx, stderr, m, cfg, scens, nil)
 	if err != nil {
 		return err
 	}
-	name := o.modelOut
-	if name == "" {
-		name = "(demo model, not written)"
+	if rep.Planning.Normals, err = weatherNormals(ctx, m, d, days, o.seed); err != nil {
+		return err
 	}
-	rep.Manifest = manifest(m, name, hex.EncodeToString(sum[:]), out)
+	rep.Manifest = manifest(m, modelPath, fileSHA(modelPath), out)
 	rep.Manifest.Scenarios = demoScenarios
-	fmt.Fprintf(stdout, "\n== 2. Simulate: baseline and scenarios ==\n\n")
-	return render.SimTables(stdout, rep)
+	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, fileSHA(demandPath)
+	fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
+	if err := render.SimTables(stdout, rep); err != nil {
+		return err
+	}
+	if err := writeSimDir(o.dir, rep, out); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv\n", o.dir)
+	return nil
 }
 
 // demoScenarios are the built-in scenarios the demo runs beside the baseline.
 var demoScenarios = []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}
+
+// claimDir makes dir for a run's outputs; an existing, non-empty dir is
+// refused unless force is set.
+func claimDir(dir string, force bool) error {
+	entries, err := os.ReadDir(dir)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return os.MkdirAll(dir, 0o755)
+	case err != nil:
+		return err
+	case len(entries) > 0 && !force:
+		return fmt.Errorf("%s already exists and is not empty: choose another --dir, or --force to replace its outputs", dir)
+	}
+	return nil
+}
+
+func fileSHA(path string) string {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return ""
+	}
+	h := sha256.Sum256(b)
+	return hex.EncodeToString(h[:])
+}
+
+// holidayDates lists the holidays of the demand history.
+func holidayDates(days *calibrate.DemandDays) []calendar.Date {
+	var out []calendar.Date
+	for i, h := range days.Holiday {
+		if h {
+			out = append(out, days.Dates[i])
+		}
+	}
+	return out
+}
+
+// normalPaths is how many climatological years weather normalization
+// simulates for each historical year.
+const normalPaths = 1000
+
+// weatherNormals compares each historical year's demand with the same year
+// under normal weather.
+func weatherNormals(ctx context.Context, m *model.File, d *model.Demand, days *calibrate.DemandDays, seed uint64) ([]sim.YearNormal, error) {
+	hist := make([]sim.HistoryDay, len(days.Dates))
+	for i := range hist {
+		hist[i] = sim.HistoryDay{Date: days.Dates[i], Temp: days.Temp[i], Load: days.Load[i], Holiday: days.Holiday[i]}
+	}
+	return sim.WeatherNormalize(ctx, m, d, sim.Config{Seed: seed, Bases: sim.DefaultBases(m.Data.Units)}, hist, normalPaths)
+}

@@ -32,8 +32,8 @@ func demoModel(t *testing.T) string {
 		if err != nil {
 			t.Fatal(err)
 		}
-		demoModelPath = filepath.Join(dir, "kestrel.json")
-		if code, _, stderr := call(t, context.Background(), "demo", "--paths", "200", "--model-out", demoModelPath); code != 0 {
+		demoModelPath = filepath.Join(dir, "demo", "model.json")
+		if code, _, stderr := call(t, context.Background(), "demo", "--paths", "200", "--dir", filepath.Join(dir, "demo")); code != 0 {
 			t.Fatalf("demo failed (%d): %s", code, stderr)
 		}
 	})
@@ -241,5 +241,19 @@ func TestSimulateScenarioErrors(t *testing.T) {
 	code, out, _ := call(t, context.Background(), "scenarios")
 	if code != 0 || !strings.Contains(out, "cold-spell-10d") {
 		t.Errorf("scenarios listing: exit %d\n%s", code, out)
+	}
+}
+
+func TestDemoRefusesToOverwrite(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	code, _, stderr := call(t, context.Background(), "demo", "--paths", "50", "--dir", dir)
+	if code != exitFailure || !strings.Contains(stderr, "--force") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+	for _, f := range []string{"model.json", "demand.json", "tails.json", "tails.csv", "paths.csv"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("demo output missing: %v", err)
+		}
 	}
 }

@@ -14,6 +14,7 @@ import (
 	"github.com/spf13/pflag"
 	"golang.org/x/term"
 
+	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/internal/atomicfile"
 	"wxstress/model"
@@ -35,6 +36,7 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --year 2030 --period heating --period jan --period 12-15:01-15
   wxstress simulate --model model.json --start conditional --exceed hdd:heating:2800 --format json
   wxstress simulate --model model.json --scenario warm-1c --scenario scenarios/cold_spell.toml
+  wxstress simulate --model model.json --demand demand.json --capacity 95000 --holidays holidays.txt
   wxstress simulate --model model.json --paths 1000000 --out results/`,
 }
 
@@ -51,6 +53,9 @@ type simulateOptions struct {
 	coldBelow float64
 	exceed    []string
 	scenarios []string
+	demand    string
+	capacity  float64
+	holidays  string
 	format    string
 	out       string
 
@@ -73,6 +78,9 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.Float64Var(&o.coldBelow, "cold-below", 0, "a cold day has a mean below this (default 0 °C or 32 °F)")
 	fs.StringArrayVar(&o.exceed, "exceed", nil, "report P(worse than a threshold): INDEX:VALUE or INDEX:PERIOD:VALUE, repeatable")
 	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate a scenario (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
+	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
+	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
+	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday dates (YYYY-MM-DD lines or CSV with a date column), repeated every year by month and day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
 	o.fs = fs
@@ -88,6 +96,12 @@ func (o *simulateOptions) validate() error {
 	}
 	if o.workers < 0 {
 		return usagef("simulate: --workers must be positive, got %d", o.workers)
+	}
+	if o.capacity < 0 || o.capacity > 0 && o.demand == "" {
+		return usagef("simulate: --capacity needs --demand and a positive value")
+	}
+	if o.holidays != "" && o.demand == "" {
+		return usagef("simulate: --holidays needs --demand")
 	}
 	if o.start != sim.StartClimate && o.start != sim.StartConditional {
 		return usagef("simulate: --start %q: want climate or conditional", o.start)
@@ -147,12 +161,30 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err != nil {
 		return err
 	}
-	rep, res, err := simulateAll(ctx, stderr, m, o.config(m), o.loaded, o.thresholds)
+	cfg := o.config(m)
+	var demandSum string
+	if o.demand != "" {
+		if cfg.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
+			return err
+		}
+		cfg.Capacity = o.capacity
+		if o.holidays != "" {
+			dates, err := calibrate.ReadHolidaysFile(o.holidays)
+			if err != nil {
+				return err
+			}
+			cfg.Holidays = sim.FixedDateHolidays(dates, targetYear(m, cfg.Year))
+		}
+	}
+	rep, res, err := simulateAll(ctx, stderr, m, cfg, o.loaded, o.thresholds)
 	if err != nil {
 		return err
 	}
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	rep.Manifest.Scenarios = o.scenarios
+	if o.demand != "" {
+		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(o.demand), demandSum
+	}
 	if o.out != "" {
 		if err := writeSimDir(o.out, rep, res); err != nil {
 			return err
@@ -178,9 +210,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 // is left for the caller. It returns the baseline's result too.
 func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
 	thresholds []sim.Threshold) (*render.SimReport, *sim.Result, error) {
-	if cfg.Year == 0 {
-		cfg.Year = m.Data.LastDate.Year() + 1
-	}
+	cfg.Year = targetYear(m, cfg.Year)
 	models := []*model.File{m}
 	for _, sc := range scens {
 		sm, err := sc.Apply(m, cfg.Year)
@@ -207,7 +237,40 @@ func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.C
 		rep.Scenarios = append(rep.Scenarios, render.ScenarioReport{Name: sc.Name, Description: sc.Description,
 			What: sc.Describe(), Rows: rows, Changes: sim.Compare(base, res, rep.Rows, rows)})
 	}
+	if cfg.Demand != nil {
+		paths := min(cfg.Paths, loadDurationPaths)
+		fan, err := sim.RunFan(ctx, m, cfg, paths)
+		if err != nil {
+			return nil, nil, err
+		}
+		rep.Planning = &render.Planning{Unit: cfg.Demand.Unit, LoadDurationPaths: paths, LoadDuration: fan.LoadDuration}
+	}
 	return rep, base, nil
+}
+
+// loadDurationPaths is how many paths the load-duration curve keeps whole.
+const loadDurationPaths = 2000
+
+// targetYear is the simulated year: year, or the year after the data end.
+func targetYear(m *model.File, year int) int {
+	if year == 0 {
+		return m.Data.LastDate.Year() + 1
+	}
+	return year
+}
+
+// readDemandModel reads a demand model file and returns its SHA-256.
+func readDemandModel(path string) (*model.Demand, string, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, "", err
+	}
+	d, err := model.DecodeDemand(b, path)
+	if err != nil {
+		return nil, "", err
+	}
+	h := sha256.Sum256(b)
+	return d, hex.EncodeToString(h[:]), nil
 }
 
 // readModel reads and validates a model file and returns its SHA-256.
@@ -230,7 +293,7 @@ func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Mani
 		Tool: "wxstress", ToolVersion: version, ModelFile: filepath.Base(modelPath), ModelSHA256: sum,
 		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
 		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,
-		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution,
+		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution, Capacity: c.Capacity,
 	}
 }
 

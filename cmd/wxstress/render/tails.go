@@ -32,6 +32,9 @@ type Manifest struct {
 	ColdBelow     float64  `json:"cold_below"`
 	Shocks        string   `json:"shocks"`
 	Scenarios     []string `json:"scenarios"`
+	DemandModel   string   `json:"demand_model,omitempty"`
+	DemandSHA256  string   `json:"demand_sha256,omitempty"`
+	Capacity      float64  `json:"capacity,omitempty"`
 	Quantiles     string   `json:"quantile_convention"`
 	Caution       string   `json:"caution"`
 }
@@ -46,6 +49,7 @@ type SimReport struct {
 	Manifest  Manifest
 	Rows      []sim.Row // the baseline
 	Scenarios []ScenarioReport
+	Planning  *Planning // with a demand model
 }
 
 // ScenarioReport is one scenario's tail tables and their changes against
@@ -147,7 +151,8 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		Manifest  Manifest       `json:"manifest"`
 		Indices   []jsonRow      `json:"indices"`
 		Scenarios []jsonScenario `json:"scenarios"`
-	}{r.Manifest, toJSONRows(r.Rows), scen})
+		Planning  *jsonPlanning  `json:"planning,omitempty"`
+	}{r.Manifest, toJSONRows(r.Rows), scen, toJSONPlanning(r)})
 }
 
 // statistic is one named number of a tail table, in display order.
@@ -218,6 +223,24 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	for _, sc := range r.Scenarios {
 		write(sc.Name, sc.Rows, sc.Changes)
 	}
+	if p := r.Planning; p != nil {
+		f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+		for rank := 1; p.LoadDuration != nil && rank <= len(p.LoadDuration[0]); rank++ {
+			for k, q := range sim.FanProbs {
+				cw.Write([]string{"baseline", "load-duration", "year", p.Unit, "high",
+					fmt.Sprintf("rank%d:p%02.0f", rank, 100*q), f(p.LoadDuration[k][rank-1])})
+			}
+		}
+		for _, y := range p.Normals {
+			for _, kv := range []struct {
+				k string
+				v float64
+			}{{"actual", y.Actual}, {"model_at_actual_weather", y.AtActualWeather},
+				{"model_at_normal_weather", y.AtNormalWeather}, {"weather_normalized", y.Normalized}} {
+				cw.Write([]string{"baseline", "history", strconv.Itoa(y.Year), energyUnit(p.Unit), "", kv.k, f(kv.v)})
+			}
+		}
+	}
 	cw.Flush()
 	return cw.Error()
 }
@@ -246,24 +269,11 @@ func SimTables(w io.Writer, r *SimReport) error {
 		m.Paths, m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
 	for _, group := range byPeriod(r.Rows) {
 		e.printf("\nPeriod: %s\n", group[0].Period)
-		header := []string{"statistic"}
-		for _, row := range group {
-			header = append(header, fmt.Sprintf("%s (%s)", row.Name, row.Unit))
+		weather, demand := splitDemand(group)
+		writeTailTable(e, weather)
+		if len(demand) > 0 {
+			writeTailTable(e, demand)
 		}
-		var rows [][]string
-		for _, s := range statistics() {
-			line := []string{s.label}
-			for _, row := range group {
-				line = append(line, num(s.value(row.Tail), 1))
-			}
-			rows = append(rows, line)
-		}
-		adverse := []string{"adverse side"}
-		for _, row := range group {
-			adverse = append(adverse, adverseSide(row))
-		}
-		rows = append(rows, adverse)
-		e.table(header, rows)
 		for _, row := range group {
 			for _, x := range row.Tail.Exceedances {
 				e.printf("  P(%s %s %g) = %.4f ± %.4f\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
@@ -271,6 +281,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 			}
 		}
 	}
+	writePlanning(e, r)
 	if len(r.Scenarios) > 0 {
 		writeComparison(e, r)
 	}
@@ -278,6 +289,40 @@ func SimTables(w io.Writer, r *SimReport) error {
 		"passed on the adverse side once in T years on average. Quantiles: Hyndman–Fan type 4.\n")
 	e.printf("%s\n", Caution)
 	return e.err
+}
+
+// writeTailTable writes one table: statistics down, the rows' indices across.
+func writeTailTable(e *errWriter, group []sim.Row) {
+	header := []string{"statistic"}
+	for _, row := range group {
+		header = append(header, fmt.Sprintf("%s (%s)", row.Name, row.Unit))
+	}
+	var rows [][]string
+	for _, s := range statistics() {
+		line := []string{s.label}
+		for _, row := range group {
+			line = append(line, num(s.value(row.Tail), 1))
+		}
+		rows = append(rows, line)
+	}
+	adverse := []string{"adverse side"}
+	for _, row := range group {
+		adverse = append(adverse, adverseSide(row))
+	}
+	e.table(header, append(rows, adverse))
+}
+
+// splitDemand separates the weather indices of a period from its demand
+// indices.
+func splitDemand(group []sim.Row) (weather, demand []sim.Row) {
+	for _, r := range group {
+		if r.Index >= sim.Energy {
+			demand = append(demand, r)
+		} else {
+			weather = append(weather, r)
+		}
+	}
+	return weather, demand
 }
 
 // byPeriod groups rows by period, keeping their order.
