@@ -37,13 +37,15 @@ The temperature CSV is read as by 'wxstress fit'; every demand day must lie
 within it, and days without a temperature are left out.`,
 	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --out demand.json
   wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --holidays holidays.txt --form 5p
-  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --units F --format json`,
+  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --units F --format json
+  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --model model.json`,
 }
 
 type fitDemandOptions struct {
 	temps, demand, holidays string
 	unit, form, units       string
 	out, format             string
+	modelPath               string
 	settings                calibrate.DemandSettings
 	readOpts                calibrate.ReadOptions
 }
@@ -63,6 +65,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
 	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
+	fs.StringVar(&o.modelPath, "model", "", "temperature model of the same station (from 'wxstress fit'): adds each year's weather-normalized demand")
 }
 
 func (o *fitDemandOptions) validate() error {
@@ -127,7 +130,24 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err := ctx.Err(); err != nil {
 		return err
 	}
-	return emitDemand(stdout, stderr, m, o.format, o.out)
+	if err := emitDemand(stdout, stderr, m, o.format, o.out); err != nil {
+		return err
+	}
+	if o.modelPath == "" || o.format == "json" {
+		return nil
+	}
+	tm, _, err := readModel(o.modelPath)
+	if err != nil {
+		return err
+	}
+	if err := m.CheckUnits(tm.Data.Units); err != nil {
+		return err
+	}
+	normals, err := weatherNormals(ctx, tm, m, days, 1)
+	if err != nil {
+		return err
+	}
+	return render.NormalsTable(stdout, normals, m.Unit)
 }
 
 // emitDemand prints the demand summary or JSON and writes the model file.

@@ -257,3 +257,60 @@ func TestDemoRefusesToOverwrite(t *testing.T) {
 		}
 	}
 }
+
+func TestFitDemandWithModelNormalizes(t *testing.T) {
+	t.Parallel()
+	code, out, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
+		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--model", demoModel(t))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, y := range []string{"│ 2021 │", "│ 2025 │", "weather-normalized"} {
+		if !strings.Contains(out, y) {
+			t.Errorf("output lacks %q", y)
+		}
+	}
+}
+
+func TestSimulateWithDemand(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	dem := filepath.Join(dir, "demand.json")
+	if code, _, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
+		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--out", dem); code != 0 {
+		t.Fatalf("fit-demand: %s", stderr)
+	}
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", demoModel(t), "--demand", dem,
+		"--capacity", "100000", "--paths", "300", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Indices []struct {
+			Name, Period string
+			ReturnLevels map[string]float64 `json:"return_levels"`
+		}
+		Planning struct {
+			PeakDay      []struct{ P50, P90 float64 } `json:"peak_day"`
+			LoadDuration []struct{ Rank int }          `json:"load_duration"`
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for _, r := range doc.Indices {
+		if strings.Contains(r.Name, "peak") && r.Period == "year" && r.ReturnLevels["20"] > r.ReturnLevels["2"] {
+			found = true
+		}
+	}
+	if !found {
+		t.Error(`no "peak" row with rising return levels for the year`)
+	}
+	if len(doc.Planning.PeakDay) != 3 || doc.Planning.PeakDay[0].P90 <= doc.Planning.PeakDay[0].P50 || len(doc.Planning.LoadDuration) != 365 {
+		t.Errorf("planning section: %+v", doc.Planning.PeakDay)
+	}
+	if code, _, _ := call(t, context.Background(), "simulate", "--model", demoModel(t), "--capacity", "5"); code != exitUsage {
+		t.Errorf("--capacity without --demand: exit %d", code)
+	}
+}

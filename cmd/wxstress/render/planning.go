@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"io"
 
 	"wxstress/sim"
 )
@@ -77,6 +78,13 @@ func writePlanning(e *errWriter, r *SimReport) {
 		e.table(header, rows)
 	}
 	writeNormals(e, p.Normals, p.Unit)
+}
+
+// NormalsTable writes the weather-normalized history as a terminal table.
+func NormalsTable(w io.Writer, normals []sim.YearNormal, unit string) error {
+	e := &errWriter{w: w}
+	writeNormals(e, normals, unit)
+	return e.err
 }
 
 // writeNormals writes the weather-normalized history.
