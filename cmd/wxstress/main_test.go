@@ -292,7 +292,7 @@ func TestSimulateWithDemand(t *testing.T) {
 		}
 		Planning struct {
 			PeakDay      []struct{ P50, P90 float64 } `json:"peak_day"`
-			LoadDuration []struct{ Rank int }          `json:"load_duration"`
+			LoadDuration []struct{ Rank int }         `json:"load_duration"`
 		}
 	}
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
