@@ -2,14 +2,11 @@ package calibrate
 
 import (
 	"bufio"
-	"crypto/sha256"
 	"encoding/csv"
-	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"slices"
 	"sort"
 	"strconv"
@@ -69,12 +66,7 @@ const MinDemandDays = 365
 // ReadDemandFile opens path and reads it with ReadDemand, using path as the
 // name.
 func ReadDemandFile(path string, opt DemandReadOptions) (*DemandSeries, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("calibrate: %w", err)
-	}
-	defer f.Close()
-	return ReadDemand(f, path, opt)
+	return readPath(path, func(r io.Reader) (*DemandSeries, error) { return ReadDemand(r, path, opt) })
 }
 
 // ReadDemand reads a daily demand history from r; name is used in messages
@@ -95,16 +87,8 @@ func ReadDemandFile(path string, opt DemandReadOptions) (*DemandSeries, error) {
 // found, each with its line and column; the list wraps ErrBadInput. A
 // failure of r itself is returned wrapped, without ErrBadInput.
 func ReadDemand(r io.Reader, name string, opt DemandReadOptions) (*DemandSeries, error) {
-	hash := sha256.New()
-	br := bufio.NewReader(io.TeeReader(r, hash))
-	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
-		br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.ReuseRecord = true
-	cr.TrimLeadingSpace = true
-
-	p := &demandParser{parser: parser{name: name, cr: cr}, opt: opt}
+	in := newCSVInput(r)
+	p := &demandParser{parser: parser{name: name, cr: in.cr}, opt: opt}
 	if err := p.readHeader(); err != nil {
 		return nil, err
 	}
@@ -115,10 +99,9 @@ func ReadDemand(r io.Reader, name string, opt DemandReadOptions) (*DemandSeries,
 	if err != nil {
 		return nil, err
 	}
-	if _, err := io.Copy(io.Discard, br); err != nil {
-		return nil, fmt.Errorf("calibrate: reading %s: %w", name, err)
+	if d.SHA256, err = in.finish(name); err != nil {
+		return nil, err
 	}
-	d.SHA256 = hex.EncodeToString(hash.Sum(nil))
 	return d, nil
 }
 
@@ -321,12 +304,7 @@ func (p *demandParser) series() (*DemandSeries, error) {
 
 // ReadHolidaysFile opens path and reads it with ReadHolidays.
 func ReadHolidaysFile(path string) ([]calendar.Date, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, fmt.Errorf("calibrate: %w", err)
-	}
-	defer f.Close()
-	return ReadHolidays(f, path)
+	return readPath(path, func(r io.Reader) ([]calendar.Date, error) { return ReadHolidays(r, path) })
 }
 
 // ReadHolidays reads a list of holiday dates: either one ISO date

@@ -7,6 +7,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"hash"
 	"io"
 	"math"
 	"os"
@@ -79,12 +80,47 @@ func ParseUnits(s string) (Units, error) {
 
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
 func ReadFile(path string, opt ReadOptions) (*Series, error) {
+	return readPath(path, func(r io.Reader) (*Series, error) { return ReadCSV(r, path, opt) })
+}
+
+// readPath opens path and hands it to read.
+func readPath[T any](path string, read func(io.Reader) (T, error)) (T, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("calibrate: %w", err)
+		var zero T
+		return zero, fmt.Errorf("calibrate: %w", err)
 	}
 	defer f.Close()
-	return ReadCSV(f, path, opt)
+	return read(f)
+}
+
+// csvInput is a CSV reader over an input that skips a UTF-8 byte order mark
+// and hashes every byte it reads.
+type csvInput struct {
+	hash hash.Hash
+	br   *bufio.Reader
+	cr   *csv.Reader
+}
+
+func newCSVInput(r io.Reader) *csvInput {
+	in := &csvInput{hash: sha256.New()}
+	in.br = bufio.NewReader(io.TeeReader(r, in.hash))
+	if b, err := in.br.Peek(3); err == nil && string(b) == "\uFEFF" {
+		in.br.Discard(3)
+	}
+	in.cr = csv.NewReader(in.br)
+	in.cr.ReuseRecord = true
+	in.cr.TrimLeadingSpace = true
+	return in
+}
+
+// finish drains what the CSV reader left unread, so that the hash covers
+// every byte, and returns the input's hex SHA-256.
+func (in *csvInput) finish(name string) (string, error) {
+	if _, err := io.Copy(io.Discard, in.br); err != nil {
+		return "", fmt.Errorf("calibrate: reading %s: %w", name, err)
+	}
+	return hex.EncodeToString(in.hash.Sum(nil)), nil
 }
 
 // ReadCSV reads a daily temperature record from r; name is used in messages
@@ -112,16 +148,8 @@ func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
 	default:
 		return nil, fmt.Errorf("calibrate: unknown units %q in read options: valid choices are %q and %q", string(opt.Units), string(Celsius), string(Fahrenheit))
 	}
-	hash := sha256.New()
-	br := bufio.NewReader(io.TeeReader(r, hash))
-	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
-		br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.ReuseRecord = true
-	cr.TrimLeadingSpace = true
-
-	p := &parser{name: name, opt: opt, cr: cr}
+	in := newCSVInput(r)
+	p := &parser{name: name, opt: opt, cr: in.cr}
 	if err := p.readHeader(); err != nil {
 		return nil, err
 	}
@@ -132,11 +160,9 @@ func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
 	if err != nil {
 		return nil, err
 	}
-	// Drain what the CSV reader left unread, so the hash covers every byte.
-	if _, err := io.Copy(io.Discard, br); err != nil {
-		return nil, fmt.Errorf("calibrate: reading %s: %w", name, err)
+	if s.SHA256, err = in.finish(name); err != nil {
+		return nil, err
 	}
-	s.SHA256 = hex.EncodeToString(hash.Sum(nil))
 	return s, nil
 }
 
