@@ -32,8 +32,9 @@ the record under today's climate and four built-in scenarios (warm-1c,
 trend-2050, volatile-winter, cold-spell-10d) with demand, and prints the fit
 summaries, the tail tables, the planning tables, the scenario comparison and
 the weather-normalized history. Its outputs (model.json, demand.json,
-tails.json, tails.csv, paths.csv) go to a directory it names, which it never
-overwrites without --force. The data are invented for demonstration.`,
+tails.json, tails.csv, paths.csv) go to a new directory (wxstress-demo, or
+wxstress-demo-2, ... if that exists) or to --dir, which it never overwrites
+without --force. The data are invented for demonstration.`,
 	examples: `  wxstress demo
   wxstress demo --dir /tmp/kestrel --force --paths 100000 --seed 7`,
 }
@@ -50,7 +51,7 @@ const demoCapacity = 120000
 
 func newDemoFlags(o *demoOptions) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("demo", pflag.ContinueOnError)
-	fs.StringVar(&o.dir, "dir", "wxstress-demo", "directory for the outputs")
+	fs.StringVar(&o.dir, "dir", "", "directory for the outputs (default: the first free of wxstress-demo, wxstress-demo-2, ...)")
 	fs.BoolVar(&o.force, "force", false, "replace the outputs in an existing directory")
 	fs.IntVar(&o.paths, "paths", 10000, "number of synthetic years")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
@@ -64,6 +65,9 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	}
 	if o.paths <= 0 {
 		return usagef("demo: --paths must be a positive number, got %d", o.paths)
+	}
+	if o.dir == "" {
+		o.dir = freeDir("wxstress-demo")
 	}
 	if err := claimDir(o.dir, o.force); err != nil {
 		return err
@@ -139,6 +143,18 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 
 // demoScenarios are the built-in scenarios the demo runs beside the baseline.
 var demoScenarios = []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}
+
+// freeDir returns base, or base-2, base-3, ..., the first that does not
+// exist yet.
+func freeDir(base string) string {
+	dir := base
+	for i := 2; ; i++ {
+		if _, err := os.Stat(dir); errors.Is(err, fs.ErrNotExist) {
+			return dir
+		}
+		dir = fmt.Sprintf("%s-%d", base, i)
+	}
+}
 
 // claimDir makes dir for a run's outputs; an existing, non-empty dir is
 // refused unless force is set.

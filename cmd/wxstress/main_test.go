@@ -314,3 +314,16 @@ func TestSimulateWithDemand(t *testing.T) {
 		t.Errorf("--capacity without --demand: exit %d", code)
 	}
 }
+
+func TestFreeDirNeverReusesAnExistingOne(t *testing.T) {
+	t.Parallel()
+	base := filepath.Join(t.TempDir(), "wxstress-demo")
+	if got := freeDir(base); got != base {
+		t.Errorf("freeDir = %s, want %s", got, base)
+	}
+	os.Mkdir(base, 0o755)
+	os.Mkdir(base+"-2", 0o755)
+	if got := freeDir(base); got != base+"-3" {
+		t.Errorf("freeDir = %s, want %s-3", got, base)
+	}
+}
