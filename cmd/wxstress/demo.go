@@ -11,6 +11,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -72,6 +73,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := claimDir(o.dir, o.force); err != nil {
 		return err
 	}
+	start := time.Now()
 	series, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
 	if err != nil {
 		return fmt.Errorf("demo data: %w", err)
@@ -120,10 +122,11 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	year := targetYear(m, 0)
 	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Year: year, Bases: sim.DefaultBases(m.Data.Units),
 		Demand: d, Capacity: demoCapacity, Holidays: sim.FixedDateHolidays(holidayDates(days), year)}
-	rep, out, err := simulateAll(ctx, stderr, m, cfg, scens, nil)
+	runs, err := simulateAll(ctx, stderr, m, cfg, scens, nil, true)
 	if err != nil {
 		return err
 	}
+	rep, out := runs.rep, runs.base
 	if rep.Planning.Normals, err = weatherNormals(ctx, m, d, days, o.seed); err != nil {
 		return err
 	}
@@ -137,7 +140,24 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := writeSimDir(o.dir, rep, out); err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv\n", o.dir)
+	report := filepath.Join(o.dir, "report.html")
+	in := &render.ReportInput{
+		Title:   fmt.Sprintf("%s and %s: %d synthetic years of %d (invented data)", demo.StationName, demo.Retailer, o.paths, year),
+		Created: time.Now(), RunTime: time.Since(start),
+		Inputs: []render.InputFile{
+			{Role: "temperatures", Name: demo.StationFile, SHA256: series.SHA256},
+			{Role: "demand history", Name: demo.DemandFile, SHA256: dem.SHA256},
+			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
+			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
+		},
+		Model: m, Series: seriesView(res), Sim: rep, Base: out, Scenarios: runs.scenarios, Fan: runs.fan,
+		Demand: render.NewDemandView(demo.Retailer, d, days.Temp, days.Load),
+	}
+	if err := writeReport(report, in); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)
+	fmt.Fprintf(stdout, "Report: %s\n", report)
 	return nil
 }
 

@@ -5,7 +5,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"path/filepath"
 	"strconv"
+	"time"
 
 	"github.com/spf13/pflag"
 
@@ -25,14 +27,15 @@ either a daily mean column (tavg, tmean, temp, ...) or max and min columns
 NaN, -9999) are gaps.`,
 	examples: `  wxstress fit --temps station.csv --out model.json
   wxstress fit --temps station.csv --units F --harmonics 2 --ar 2 --shocks t
-  wxstress fit --temps station.csv --format json > model.json`,
+  wxstress fit --temps station.csv --format json > model.json
+  wxstress fit --temps station.csv --out model.json --report fit.html`,
 }
 
 type fitOptions struct {
 	temps, out, format   string
 	units, meanColumn    string
 	harmonics, ar, trend string
-	shocks               string
+	shocks, report       string
 	settings             calibrate.Settings
 	readOpts             calibrate.ReadOptions
 }
@@ -53,6 +56,7 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.ar, "ar", "1", "AR order of the anomaly: 1..5")
 	fs.StringVar(&o.trend, "trend", "auto", "trend: auto (linear from 15 years of data), linear or none")
 	fs.StringVar(&o.shocks, "shocks", "auto", "shock family: auto (by AIC), normal, t, skew-t or bootstrap")
+	fs.StringVar(&o.report, "report", "", "also write an HTML report of the data and the fit here")
 }
 
 func (o *fitOptions) validate() error {
@@ -98,6 +102,7 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
+	start := time.Now()
 	series, err := calibrate.ReadFile(o.temps, o.readOpts)
 	if err != nil {
 		return err
@@ -106,7 +111,24 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	return emitFit(stdout, stderr, res.Model, o.format, o.out)
+	if err := emitFit(stdout, stderr, res.Model, o.format, o.out); err != nil {
+		return err
+	}
+	if o.report == "" {
+		return nil
+	}
+	in := &render.ReportInput{
+		Title: "Temperature model of " + filepath.Base(o.temps), Created: time.Now(), RunTime: time.Since(start),
+		Inputs: []render.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
+		Model:  res.Model, Series: seriesView(res),
+	}
+	if err := writeReport(o.report, in); err != nil {
+		return err
+	}
+	if o.format != "json" {
+		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
+	}
+	return nil
 }
 
 func fitSeries(s *calibrate.Series, set *calibrate.Settings) (*calibrate.Result, error) {

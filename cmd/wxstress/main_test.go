@@ -327,3 +327,38 @@ func TestFreeDirNeverReusesAnExistingOne(t *testing.T) {
 		t.Errorf("freeDir = %s, want %s-3", got, base)
 	}
 }
+
+// What scripts rely on: demo writes the report as one .html file with at
+// least ten inline SVG plots, no external src or href, and the cautions.
+func TestDemoWritesTheReport(t *testing.T) {
+	t.Parallel()
+	b, err := os.ReadFile(filepath.Join(filepath.Dir(demoModel(t)), "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	html := string(b)
+	if n := strings.Count(html, "<svg"); n < 10 {
+		t.Errorf("%d inline SVG plots, want at least 10", n)
+	}
+	for _, bad := range []string{`src="http`, `href="http`, `src='http`, `href='http`, "<script"} {
+		if strings.Contains(html, bad) {
+			t.Errorf("report contains %q", bad)
+		}
+	}
+	if !strings.Contains(html, "not forecasts") || !strings.Contains(html, "licensed professional judgement") {
+		t.Error("report lacks the cautions")
+	}
+}
+
+func TestFitWritesAReport(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "fit.html")
+	code, _, stderr := call(t, context.Background(), "fit", "--temps", "../../testdata/noaa/seattle.csv", "--report", p)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	b, err := os.ReadFile(p)
+	if err != nil || !strings.Contains(string(b), "<svg") || strings.Contains(string(b), "Scenarios</h2>") {
+		t.Errorf("fit report: %v, %d bytes", err, len(b))
+	}
+}

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
@@ -37,7 +38,8 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --start conditional --exceed hdd:heating:2800 --format json
   wxstress simulate --model model.json --scenario warm-1c --scenario scenarios/cold_spell.toml
   wxstress simulate --model model.json --demand demand.json --capacity 95000 --holidays holidays.txt
-  wxstress simulate --model model.json --paths 1000000 --out results/`,
+  wxstress simulate --model model.json --paths 1000000 --out results/
+  wxstress simulate --model model.json --scenario warm-2c --report stress.html`,
 }
 
 type simulateOptions struct {
@@ -58,6 +60,7 @@ type simulateOptions struct {
 	holidays  string
 	format    string
 	out       string
+	report    string
 
 	fs         *pflag.FlagSet
 	thresholds []sim.Threshold
@@ -82,6 +85,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday dates (YYYY-MM-DD lines or CSV with a date column), repeated every year by month and day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
+	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
 	o.fs = fs
 	return fs
@@ -176,10 +180,12 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 			cfg.Holidays = sim.FixedDateHolidays(dates, targetYear(m, cfg.Year))
 		}
 	}
-	rep, res, err := simulateAll(ctx, stderr, m, cfg, o.loaded, o.thresholds)
+	start := time.Now()
+	runs, err := simulateAll(ctx, stderr, m, cfg, o.loaded, o.thresholds, o.report != "")
 	if err != nil {
 		return err
 	}
+	rep, res := runs.rep, runs.base
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {
@@ -187,6 +193,24 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	if o.out != "" {
 		if err := writeSimDir(o.out, rep, res); err != nil {
+			return err
+		}
+	}
+	if o.report != "" {
+		in := &render.ReportInput{
+			Title: "Synthetic years of " + filepath.Base(o.modelPath), Created: time.Now(), RunTime: time.Since(start),
+			Inputs: []render.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
+			Model:  m, Sim: rep, Base: res, Scenarios: runs.scenarios, Fan: runs.fan,
+		}
+		if o.demand != "" {
+			in.Inputs = append(in.Inputs, render.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
+		}
+		for _, f := range o.scenarios {
+			if sum := fileSHA(f); sum != "" {
+				in.Inputs = append(in.Inputs, render.InputFile{Role: "scenario", Name: f, SHA256: sum})
+			}
+		}
+		if err := writeReport(o.report, in); err != nil {
 			return err
 		}
 	}
@@ -202,54 +226,71 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if o.out != "" {
 		fmt.Fprintf(stdout, "\nWrote tails.json, tails.csv and paths.csv to %s\n", o.out)
 	}
+	if o.report != "" {
+		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
+	}
 	return nil
 }
 
+// runSet is a baseline run with its scenarios, as simulateAll leaves them.
+type runSet struct {
+	rep       *render.SimReport // the manifest is left for the caller
+	base      *sim.Result
+	scenarios []*sim.Result // in rep.Scenarios order
+	fan       *sim.Fan      // the first detailPaths years in full; nil unless asked for or with demand
+}
+
 // simulateAll runs the baseline and each scenario with the same
-// configuration (common random numbers) and builds the report; the manifest
-// is left for the caller. It returns the baseline's result too.
+// configuration (common random numbers) and builds the report; with detail
+// (or a demand model) it also keeps the first detailPaths years whole for
+// the fan chart and the load-duration curve.
 func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
-	thresholds []sim.Threshold) (*render.SimReport, *sim.Result, error) {
+	thresholds []sim.Threshold, detail bool) (*runSet, error) {
 	cfg.Year = targetYear(m, cfg.Year)
 	models := []*model.File{m}
 	for _, sc := range scens {
 		sm, err := sc.Apply(m, cfg.Year)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		models = append(models, sm)
 	}
 	stop := attachProgress(&cfg, stderr, len(models))
 	defer stop()
-	rep := &render.SimReport{}
-	var base *sim.Result
+	out := &runSet{rep: &render.SimReport{}}
+	rep := out.rep
 	for i, mm := range models {
 		res, err := sim.Run(ctx, mm, cfg)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		rows := res.Summarize(m.Data.Units, thresholds)
 		if i == 0 {
-			base, rep.Rows = res, rows
+			out.base, rep.Rows = res, rows
 			continue
 		}
 		sc := scens[i-1]
+		out.scenarios = append(out.scenarios, res)
 		rep.Scenarios = append(rep.Scenarios, render.ScenarioReport{Name: sc.Name, Description: sc.Description,
-			What: sc.Describe(), Rows: rows, Changes: sim.Compare(base, res, rep.Rows, rows)})
+			What: sc.Describe(), Rows: rows, Changes: sim.Compare(out.base, res, rep.Rows, rows)})
 	}
-	if cfg.Demand != nil {
-		paths := min(cfg.Paths, loadDurationPaths)
+	if detail || cfg.Demand != nil {
+		paths := min(cfg.Paths, detailPaths)
 		fan, err := sim.RunFan(ctx, m, cfg, paths)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
-		rep.Planning = &render.Planning{Unit: cfg.Demand.Unit, LoadDurationPaths: paths, LoadDuration: fan.LoadDuration}
+		out.fan = fan
+		if cfg.Demand != nil {
+			rep.Planning = &render.Planning{Unit: cfg.Demand.Unit, LoadDurationPaths: paths, LoadDuration: fan.LoadDuration}
+		}
 	}
-	return rep, base, nil
+	return out, nil
 }
 
-// loadDurationPaths is how many paths the load-duration curve keeps whole.
-const loadDurationPaths = 2000
+// detailPaths is how many paths the fan chart and the load-duration curve
+// keep whole.
+const detailPaths = 2000
 
 // targetYear is the simulated year: year, or the year after the data end.
 func targetYear(m *model.File, year int) int {
