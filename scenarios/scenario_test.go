@@ -328,3 +328,47 @@ func TestBadScenarioFiles(t *testing.T) {
 		}
 	}
 }
+
+// An event with probability p happens in a fraction p of the years: in a
+// climate that never reaches the heating base, the paths whose HDD rose by
+// exactly D × Δ are the years with the event.
+func TestEventProbability(t *testing.T) {
+	t.Parallel()
+	m := coldModel()
+	base := simulate(t, m)
+	s := &Scenario{Name: "half", Events: []Event{{Days: 5, Anomaly: 2, Window: "03-01:09-30", Probability: ptr(0.3)}}}
+	scen := simulate(t, apply(t, s, m))
+	hit := 0
+	for i, d := range pathDiff(base, scen, int(sim.HDD)) {
+		switch {
+		case math.Abs(d-10) <= exact*base.Aggregates[sim.HDD].Values[i]:
+			hit++
+		case math.Abs(d) > exact*base.Aggregates[sim.HDD].Values[i]:
+			t.Fatalf("path %d changed by %v: neither 0 nor the whole event", i, d)
+		}
+	}
+	// Binomial(2000, 0.3): sd ≈ 20.5; allow four.
+	if n := float64(len(base.Aggregates[sim.HDD].Values)); math.Abs(float64(hit)-0.3*n) > 4*math.Sqrt(n*0.3*0.7) {
+		t.Errorf("the event happened in %d of %.0f years, want about %.0f", hit, n, 0.3*n)
+	}
+}
+
+// A monthly volatility scale changes only its month: with (almost) no
+// persistence, scaling January's σ by c scales the spread of January's HDD
+// by c (same shocks, a climate below the base) and leaves July's alone.
+func TestMonthlyVolatilityScale(t *testing.T) {
+	t.Parallel()
+	m := coldModel()
+	m.AR.Phi = []float64{0.0001} // no carry-over between days: January alone is scaled
+	ms := []float64{1.5, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1}
+	base := simulate(t, m, "jan", "jul")
+	scen := simulate(t, apply(t, &Scenario{Name: "jan", Volatility: &Volatility{MonthlyScale: ms}}, m), "jan", "jul")
+	sd := func(r *sim.Result, k int) float64 { return stat.StdDev(r.Aggregates[k].Values, nil) }
+	jan, jul := int(sim.HDD), len(base.Aggregates)/2+int(sim.HDD)
+	if r := sd(scen, jan) / sd(base, jan); math.Abs(r-1.5) > 1e-3 {
+		t.Errorf("January HDD sd ratio %.4f, want 1.5", r)
+	}
+	if r := sd(scen, jul) / sd(base, jul); math.Abs(r-1) > 1e-3 {
+		t.Errorf("July HDD sd ratio %.4f, want 1", r)
+	}
+}
