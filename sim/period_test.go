@@ -49,3 +49,30 @@ func TestParsePeriodErrorsListValidForms(t *testing.T) {
 		}
 	}
 }
+
+func TestParseThreshold(t *testing.T) {
+	t.Parallel()
+	cases := []struct {
+		in     string
+		x      Index
+		period string
+		v      float64
+	}{
+		{"hdd:2800", HDD, "", 2800},
+		{"HDD:heating:2800.5", HDD, "heating", 2800.5},
+		{"coldest:-15", Coldest, "", -15},
+		{"hdd:12-01:02-28:1500", HDD, "12-01:02-28", 1500},
+		{"peak:year:130000", PeakDemand, "year", 130000},
+	}
+	for _, c := range cases {
+		th, err := ParseThreshold(c.in)
+		if err != nil || th.Index != c.x || th.Period != c.period || th.Value != c.v {
+			t.Errorf("%q: %+v, %v", c.in, th, err)
+		}
+	}
+	for _, bad := range []string{"hdd", "hdd:", "frost:3", "hdd:heating:warm", ":5", "hdd::5"} {
+		if _, err := ParseThreshold(bad); err == nil {
+			t.Errorf("%q accepted", bad)
+		}
+	}
+}

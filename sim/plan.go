@@ -108,7 +108,8 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	case StartConditional:
 		if from <= m.Data.LastDate {
 			return nil, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
-				"choose a later --year or --start climate", m.Data.LastDate, periodStarting(periods, from), from)
+				"choose periods that start later (e.g. --period year), a later --year, or --start climate",
+				m.Data.LastDate, periodStarting(periods, from), from)
 		}
 		pl.first = m.Data.LastDate + 1
 		copy(pl.x0[:], m.AR.Last)

@@ -28,27 +28,28 @@ type Threshold struct {
 	Value  float64
 }
 
-// ParseThreshold reads KEY:VALUE or KEY:PERIOD:VALUE, e.g. "hdd:heating:2800"
-// or "coldest:-15".
+// ParseThreshold reads KEY:VALUE or KEY:PERIOD:VALUE, e.g. "hdd:heating:2800",
+// "coldest:-15" or "hdd:12-01:02-28:1500" (a window period keeps its colon).
 func ParseThreshold(s string) (Threshold, error) {
-	parts := strings.Split(s, ":")
 	var th Threshold
-	if len(parts) < 2 || len(parts) > 3 {
+	key, rest, ok1 := strings.Cut(s, ":")
+	i := strings.LastIndex(rest, ":")
+	period, value := "", rest
+	if i >= 0 {
+		period, value = rest[:i], rest[i+1:]
+	}
+	if !ok1 || value == "" || i == 0 {
 		return th, fmt.Errorf("sim: threshold %q: want INDEX:VALUE or INDEX:PERIOD:VALUE, e.g. hdd:heating:2800", s)
 	}
-	x, ok := IndexByKey(strings.ToLower(parts[0]))
+	x, ok := IndexByKey(strings.ToLower(key))
 	if !ok {
-		return th, fmt.Errorf("sim: threshold %q: unknown index %q: want one of %s", s, parts[0], strings.Join(IndexKeys(), ", "))
+		return th, fmt.Errorf("sim: threshold %q: unknown index %q: want one of %s", s, key, strings.Join(IndexKeys(), ", "))
 	}
-	v, err := strconv.ParseFloat(parts[len(parts)-1], 64)
+	v, err := strconv.ParseFloat(value, 64)
 	if err != nil {
-		return th, fmt.Errorf("sim: threshold %q: %q is not a number", s, parts[len(parts)-1])
+		return th, fmt.Errorf("sim: threshold %q: %q is not a number", s, value)
 	}
-	th = Threshold{Index: x, Value: v}
-	if len(parts) == 3 {
-		th.Period = strings.ToLower(parts[1])
-	}
-	return th, nil
+	return Threshold{Index: x, Period: strings.ToLower(period), Value: v}, nil
 }
 
 // IndexKeys lists the keys of all indices.

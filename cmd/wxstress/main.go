@@ -33,10 +33,10 @@ type command struct {
 
 func commands() []command {
 	return []command{
-		{"demo", "run the whole job on the built-in invented station", runDemoCmd},
+		{"demo", "run the whole job on built-in invented data", runDemoCmd},
 		{"fit", "calibrate a temperature model to a daily CSV", runFitCmd},
 		{"fit-demand", "fit a change-point demand model to daily load and temperature", runFitDemandCmd},
-		{"simulate", "draw synthetic years and report degree-day tail tables", runSimulateCmd},
+		{"simulate", "draw synthetic years and report degree-day and demand tail tables", runSimulateCmd},
 		{"scenarios", "list the built-in scenarios, or check scenario files", runScenariosCmd},
 		{"version", "print the tool version", runVersionCmd},
 		{"help", "show help for wxstress or a subcommand", runHelpCmd},

@@ -35,7 +35,7 @@ Default periods: year, heating, cooling. Periods that cross the year end are the
 ones that end in the target year.`,
 	examples: `  wxstress simulate --model model.json --paths 100000 --seed 7
   wxstress simulate --model model.json --year 2030 --period heating --period jan --period 12-15:01-15
-  wxstress simulate --model model.json --start conditional --exceed hdd:heating:2800 --format json
+  wxstress simulate --model model.json --start conditional --period jan --period 01-01:03-31 --exceed hdd:01-01:03-31:1500 --format json
   wxstress simulate --model model.json --scenario warm-1c --scenario scenarios/cold_spell.toml
   wxstress simulate --model model.json --demand demand.json --capacity 95000 --holidays holidays.txt
   wxstress simulate --model model.json --paths 1000000 --out results/
