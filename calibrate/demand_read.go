@@ -116,21 +116,8 @@ type demandParser struct {
 }
 
 func (p *demandParser) readHeader() error {
-	record, err := p.cr.Read()
-	if err == io.EOF {
-		p.errorf(0, 0, "", "empty file: no header row")
-		return p.errs
-	}
-	if err != nil {
-		if fatal := p.csvError(err, record); fatal != nil {
-			return fatal
-		}
-		return p.errs
-	}
-	p.headerLine, _ = p.cr.FieldPos(0)
-	p.header = make([]string, len(record))
-	for i, h := range record {
-		p.header[i] = strings.TrimSpace(h)
+	if ok, err := p.headerRow(); !ok {
+		return err
 	}
 	p.date = p.find(dateNames, "the date", true)
 	p.load = p.find(loadNames, "the load", true)

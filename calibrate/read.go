@@ -212,22 +212,32 @@ func (p *parser) csvError(err error, record []string) (fatal error) {
 	return nil
 }
 
-func (p *parser) readHeader() error {
+// headerRow reads the header record into p.header and p.headerLine. It
+// returns false when there is no usable header, with the error to return:
+// the error list, or a failure of the input itself.
+func (p *parser) headerRow() (bool, error) {
 	record, err := p.cr.Read()
 	if err == io.EOF {
 		p.errorf(0, 0, "", "empty file: no header row")
-		return p.errs
+		return false, p.errs
 	}
 	if err != nil {
 		if fatal := p.csvError(err, record); fatal != nil {
-			return fatal
+			return false, fatal
 		}
-		return p.errs
+		return false, p.errs
 	}
 	p.headerLine, _ = p.cr.FieldPos(0)
 	p.header = make([]string, len(record))
 	for i, h := range record {
 		p.header[i] = strings.TrimSpace(h)
+	}
+	return true, nil
+}
+
+func (p *parser) readHeader() error {
+	if ok, err := p.headerRow(); !ok {
+		return err
 	}
 
 	p.date = p.find(dateNames, "the date", true)

@@ -28,8 +28,8 @@ import (
 // HTMLReport builds the page in memory and writes it with one Write, so a
 // plotting error leaves w untouched. It panics if in is nil.
 func HTMLReport(w io.Writer, in *ReportInput) error {
-	if in == nil {
-		panic("render: HTMLReport of a nil input")
+	if in == nil || in.Model == nil {
+		panic("render: HTMLReport needs an input with a model")
 	}
 	r := newReport(in)
 	if err := r.build(); err != nil {
@@ -381,23 +381,7 @@ func (r *report) dataRows() [][2]string {
 		}
 		return append(rows, [2]string{"warnings", warn})
 	}
-	s := in.Series
-	missing, run, longest := 0, 0, 0
-	for _, v := range s.Temps {
-		if math.IsNaN(v) {
-			missing++
-			run++
-			longest = max(longest, run)
-		} else {
-			run = 0
-		}
-	}
-	return [][2]string{
-		{"span", fmt.Sprintf("%s to %s", s.Dates[0], s.Dates[len(s.Dates)-1])},
-		{"days in the span", strconv.Itoa(len(s.Dates))},
-		{"missing days", strconv.Itoa(missing)},
-		{"longest gap", fmt.Sprintf("%d days", longest)},
-	}
+	return nil
 }
 
 // paramRows is the compact table of a model's parameters.
