@@ -313,26 +313,9 @@ func ReadDemand(path string) (*Demand, error) {
 // messages. Errors about the content are *KeyError naming the key and wrap
 // ErrInvalid.
 func DecodeDemand(b []byte, name string) (*Demand, error) {
-	var raw map[string]any
-	if err := json.Unmarshal(b, &raw); err != nil {
-		return nil, fmt.Errorf("%s: not a demand model file (JSON): %w", name, err)
-	}
-	if s, _ := raw["schema"].(string); s != DemandSchema {
-		hint := ""
-		if s == Schema {
-			hint = " (this is a temperature model file)"
-		}
-		return nil, &KeyError{name, "schema", fmt.Sprintf("is %q, want %q: not a wxstress demand model file%s", raw["schema"], DemandSchema, hint)}
-	}
-	if v, ok := raw["schema_version"].(float64); !ok || v != math.Trunc(v) || v < 1 {
-		return nil, &KeyError{name, "schema_version", "missing or not a positive whole number"}
-	} else if v > DemandSchemaVersion {
-		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, DemandSchemaVersion)}
-	}
-	for _, k := range demandRequired {
-		if !hasKey(raw, k) {
-			return nil, &KeyError{name, k, "missing"}
-		}
+	raw, err := decodeHeader(b, name, DemandSchema, DemandSchemaVersion, demandRequired, "demand model file")
+	if err != nil {
+		return nil, err
 	}
 	if w, ok := raw["weekday"].([]any); !ok || len(w) != 7 {
 		return nil, &KeyError{name, "weekday", "want 7 values, Monday first"}
@@ -359,11 +342,9 @@ func DecodeDemand(b []byte, name string) (*Demand, error) {
 			}
 		}
 	}
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
 	var d Demand
-	if err := dec.Decode(&d); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+	if err := decodeStrict(b, name, &d); err != nil {
+		return nil, err
 	}
 	if d.Warnings == nil {
 		d.Warnings = []string{}

@@ -53,33 +53,55 @@ func Read(path string) (*File, error) {
 
 // Decode parses and validates model JSON; name is used in messages.
 func Decode(b []byte, name string) (*File, error) {
-	var raw map[string]any
-	if err := json.Unmarshal(b, &raw); err != nil {
-		return nil, fmt.Errorf("%s: not a model file (JSON): %w", name, err)
+	if _, err := decodeHeader(b, name, Schema, SchemaVersion, requiredKeys, "model file"); err != nil {
+		return nil, err
 	}
-	if s, _ := raw["schema"].(string); s != Schema {
-		return nil, &KeyError{name, "schema", fmt.Sprintf("is %q, want %q: not a wxstress model file", raw["schema"], Schema)}
-	}
-	if v, ok := raw["schema_version"].(float64); !ok || v != math.Trunc(v) || v < 1 {
-		return nil, &KeyError{name, "schema_version", "missing or not a positive whole number"}
-	} else if v > SchemaVersion {
-		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, SchemaVersion)}
-	}
-	for _, k := range requiredKeys {
-		if !hasKey(raw, k) {
-			return nil, &KeyError{name, k, "missing"}
-		}
-	}
-	dec := json.NewDecoder(bytes.NewReader(b))
-	dec.DisallowUnknownFields()
 	var f File
-	if err := dec.Decode(&f); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+	if err := decodeStrict(b, name, &f); err != nil {
+		return nil, err
 	}
 	if err := f.Validate(name); err != nil {
 		return nil, err
 	}
 	return &f, nil
+}
+
+// decodeHeader parses JSON into a generic map and checks what every file of
+// a kind must have: its schema name, a schema_version this tool reads, and
+// the required keys (dotted paths). what names the kind in messages.
+func decodeHeader(b []byte, name, schema string, version int, required []string, what string) (map[string]any, error) {
+	var raw map[string]any
+	if err := json.Unmarshal(b, &raw); err != nil {
+		return nil, fmt.Errorf("%s: not a %s (JSON): %w", name, what, err)
+	}
+	if s, _ := raw["schema"].(string); s != schema {
+		hint := ""
+		if s == Schema || s == DemandSchema {
+			hint = fmt.Sprintf(" (this is a %q file)", s)
+		}
+		return nil, &KeyError{name, "schema", fmt.Sprintf("is %q, want %q: not a wxstress %s%s", raw["schema"], schema, what, hint)}
+	}
+	if v, ok := raw["schema_version"].(float64); !ok || v != math.Trunc(v) || v < 1 {
+		return nil, &KeyError{name, "schema_version", "missing or not a positive whole number"}
+	} else if v > float64(version) {
+		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, version)}
+	}
+	for _, k := range required {
+		if !hasKey(raw, k) {
+			return nil, &KeyError{name, k, "missing"}
+		}
+	}
+	return raw, nil
+}
+
+// decodeStrict decodes JSON into v, refusing unknown keys.
+func decodeStrict(b []byte, name string, v any) error {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(v); err != nil {
+		return fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+	}
+	return nil
 }
 
 func hasKey(m map[string]any, path string) bool {

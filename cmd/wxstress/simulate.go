@@ -302,30 +302,27 @@ func targetYear(m *model.File, year int) int {
 
 // readDemandModel reads a demand model file and returns its SHA-256.
 func readDemandModel(path string) (*model.Demand, string, error) {
-	b, err := os.ReadFile(path)
-	if err != nil {
-		return nil, "", err
-	}
-	d, err := model.DecodeDemand(b, path)
-	if err != nil {
-		return nil, "", err
-	}
-	h := sha256.Sum256(b)
-	return d, hex.EncodeToString(h[:]), nil
+	return readHashed(path, model.DecodeDemand)
 }
 
 // readModel reads and validates a model file and returns its SHA-256.
 func readModel(path string) (*model.File, string, error) {
+	return readHashed(path, model.Decode)
+}
+
+// readHashed reads path, decodes it, and returns the hex SHA-256 of its bytes
+// for the manifest.
+func readHashed[T any](path string, decode func([]byte, string) (*T, error)) (*T, string, error) {
 	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, "", err
 	}
-	m, err := model.Decode(b, path)
+	v, err := decode(b, path)
 	if err != nil {
 		return nil, "", err
 	}
 	h := sha256.Sum256(b)
-	return m, hex.EncodeToString(h[:]), nil
+	return v, hex.EncodeToString(h[:]), nil
 }
 
 func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Manifest {
