@@ -672,7 +672,9 @@ func roundTo(v float64, digits int) float64 {
 }
 
 // quantile7 is the p-quantile by linear interpolation between order
-// statistics, R's quantile(type = 7).
+// statistics, R's quantile(type = 7). gonum's stat.Quantile offers types 1
+// and 4 only; type 7 (R's and NumPy's default) keeps the balance-point search
+// range identical to the R script that checks it.
 func quantile7(x []float64, p float64) float64 {
 	s := slices.Clone(x)
 	slices.Sort(s)
