@@ -294,6 +294,32 @@ func (s *Scenario) Describe() []string {
 	return out
 }
 
+// DescribeFor is Describe with the model-dependent changes worked out for m
+// and target year year: the level change a move along the trend brings.
+func (s *Scenario) DescribeFor(m *model.File, year int) []string {
+	out := s.Describe()
+	t := s.Trend
+	if t == nil || t.TargetYear == nil {
+		return out
+	}
+	applied, err := s.Apply(m, year)
+	if err != nil {
+		return out
+	}
+	base := m.Trend.Intercept + m.Trend.Slope()*calendar.YearStart(year).ModelTime()
+	moved := applied.Trend.Intercept + applied.Trend.Slope()*calendar.YearStart(year).ModelTime()
+	if s.Shift != nil && s.Shift.Uniform != nil {
+		moved -= s.factor(m.Data.Units) * *s.Shift.Uniform
+	}
+	for i, line := range out {
+		if strings.HasPrefix(line, "climate of ") {
+			out[i] = fmt.Sprintf("%s: level %+.2f °%s against %d (fitted trend %+.3f °%s/decade)", line, moved-base,
+				m.Data.Units, year, 10*applied.Trend.SlopePerYear, m.Data.Units)
+		}
+	}
+	return out
+}
+
 func monthList(v []float64, format string) string {
 	parts := make([]string, len(v))
 	for i, x := range v {

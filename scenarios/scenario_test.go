@@ -372,3 +372,13 @@ func TestMonthlyVolatilityScale(t *testing.T) {
 		t.Errorf("July HDD sd ratio %.4f, want 1", r)
 	}
 }
+
+func TestDescribeForWorksOutTheTrendShift(t *testing.T) {
+	t.Parallel()
+	m := coldModel() // slope 0.02 °C a year
+	lines := strings.Join((&Scenario{Name: "t", Trend: &Trend{TargetYear: ptr(2050)}}).DescribeFor(m, 2025), "; ")
+	// 25 years (9131 days) at 0.02/365.25 °C a day: +0.50 °C.
+	if !strings.Contains(lines, "level +0.50 °C against 2025") {
+		t.Errorf("description %q", lines)
+	}
+}

@@ -272,7 +272,7 @@ func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.C
 		sc := scens[i-1]
 		out.scenarios = append(out.scenarios, res)
 		rep.Scenarios = append(rep.Scenarios, render.ScenarioReport{Name: sc.Name, Description: sc.Description,
-			What: sc.Describe(), Rows: rows, Changes: sim.Compare(out.base, res, rep.Rows, rows)})
+			What: sc.DescribeFor(m, cfg.Year), Rows: rows, Changes: sim.Compare(out.base, res, rep.Rows, rows)})
 	}
 	if detail || cfg.Demand != nil {
 		paths := min(cfg.Paths, detailPaths)
