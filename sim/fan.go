@@ -20,6 +20,7 @@ var FanProbs = []float64{0.05, 0.25, 0.50, 0.75, 0.95}
 // (DemandMean) and the load-duration curve: LoadDuration[k][r] is quantile
 // FanProbs[k] across paths of the year's (r+1)-th highest daily demand.
 type Fan struct {
+	Paths        int // years behind the quantiles
 	Dates        []calendar.Date
 	Q            [][]float64
 	DemandQ      [][]float64
@@ -67,7 +68,7 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 			}
 		}
 	}
-	f := &Fan{}
+	f := &Fan{Paths: paths}
 	for d := range n {
 		f.Dates = append(f.Dates, y.From+calendar.Date(d))
 	}

@@ -15,13 +15,13 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/demo"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 var demoUsage = helpText{
@@ -121,12 +121,12 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	}
 	year := targetYear(m, 0)
 	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Year: year, Bases: sim.DefaultBases(m.Data.Units),
-		Demand: d, Capacity: demoCapacity, Holidays: sim.FixedDateHolidays(holidayDates(days), year)}
+		Demand: d, Capacity: demoCapacity, Holidays: sim.FixedDateHolidays(stress.Holidays(days), year)}
 	runs, err := simulateAll(ctx, stderr, m, cfg, scens, nil, true)
 	if err != nil {
 		return err
 	}
-	rep, out := runs.rep, runs.base
+	rep, out := render.NewSimReport(runs), runs.Base
 	if rep.Planning.Normals, err = weatherNormals(ctx, m, d, days, o.seed); err != nil {
 		return err
 	}
@@ -150,7 +150,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
 			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
 		},
-		Model: m, Series: seriesView(res), Sim: rep, Base: out, Scenarios: runs.scenarios, Fan: runs.fan,
+		Model: m, Series: seriesView(res), Sim: rep, Base: out, Scenarios: runs.Results(), Fan: runs.Fan,
 		Demand: render.NewDemandView(demo.Retailer, d, days.Temp, days.Load),
 	}
 	if err := writeReport(report, in); err != nil {
@@ -200,17 +200,6 @@ func fileSHA(path string) string {
 	return hex.EncodeToString(h[:])
 }
 
-// holidayDates lists the holidays of the demand history.
-func holidayDates(days *calibrate.DemandDays) []calendar.Date {
-	var out []calendar.Date
-	for i, h := range days.Holiday {
-		if h {
-			out = append(out, days.Dates[i])
-		}
-	}
-	return out
-}
-
 // normalPaths is how many climatological years weather normalization
 // simulates for each historical year.
 const normalPaths = 1000
@@ -218,9 +207,6 @@ const normalPaths = 1000
 // weatherNormals compares each historical year's demand with the same year
 // under normal weather.
 func weatherNormals(ctx context.Context, m *model.File, d *model.Demand, days *calibrate.DemandDays, seed uint64) ([]sim.YearNormal, error) {
-	hist := make([]sim.HistoryDay, len(days.Dates))
-	for i := range hist {
-		hist[i] = sim.HistoryDay{Date: days.Dates[i], Temp: days.Temp[i], Load: days.Load[i], Holiday: days.Holiday[i]}
-	}
-	return sim.WeatherNormalize(ctx, m, d, sim.Config{Seed: seed, Bases: sim.DefaultBases(m.Data.Units)}, hist, normalPaths)
+	return sim.WeatherNormalize(ctx, m, d, sim.Config{Seed: seed, Bases: sim.DefaultBases(m.Data.Units)},
+		stress.History(days), normalPaths)
 }

@@ -21,6 +21,7 @@ import (
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 var simulateUsage = helpText{
@@ -185,7 +186,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err != nil {
 		return err
 	}
-	rep, res := runs.rep, runs.base
+	rep, res := render.NewSimReport(runs), runs.Base
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {
@@ -200,7 +201,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		in := &render.ReportInput{
 			Title: "Synthetic years of " + filepath.Base(o.modelPath), Created: time.Now(), RunTime: time.Since(start),
 			Inputs: []render.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
-			Model:  m, Sim: rep, Base: res, Scenarios: runs.scenarios, Fan: runs.fan,
+			Model:  m, Sim: rep, Base: res, Scenarios: runs.Results(), Fan: runs.Fan,
 		}
 		if o.demand != "" {
 			in.Inputs = append(in.Inputs, render.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
@@ -232,60 +233,19 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	return nil
 }
 
-// runSet is a baseline run with its scenarios, as simulateAll leaves them.
-type runSet struct {
-	rep       *render.SimReport // the manifest is left for the caller
-	base      *sim.Result
-	scenarios []*sim.Result // in rep.Scenarios order
-	fan       *sim.Fan      // the first detailPaths years in full; nil unless asked for or with demand
-}
-
-// simulateAll runs the baseline and each scenario with the same
-// configuration (common random numbers) and builds the report; with detail
-// (or a demand model) it also keeps the first detailPaths years whole for
-// the fan chart and the load-duration curve.
+// simulateAll runs the baseline and each scenario (common random numbers)
+// with a progress bar on a terminal, keeping the first detailPaths years
+// whole when detail is asked for or a demand model needs the load-duration
+// curve.
 func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
-	thresholds []sim.Threshold, detail bool) (*runSet, error) {
-	cfg.Year = targetYear(m, cfg.Year)
-	models := []*model.File{m}
-	for _, sc := range scens {
-		sm, err := sc.Apply(m, cfg.Year)
-		if err != nil {
-			return nil, err
-		}
-		models = append(models, sm)
-	}
-	stop := attachProgress(&cfg, stderr, len(models))
+	thresholds []sim.Threshold, detail bool) (*stress.Set, error) {
+	stop := attachProgress(&cfg, stderr, 1+len(scens))
 	defer stop()
-	out := &runSet{rep: &render.SimReport{}}
-	rep := out.rep
-	for i, mm := range models {
-		res, err := sim.Run(ctx, mm, cfg)
-		if err != nil {
-			return nil, err
-		}
-		rows := res.Summarize(m.Data.Units, thresholds)
-		if i == 0 {
-			out.base, rep.Rows = res, rows
-			continue
-		}
-		sc := scens[i-1]
-		out.scenarios = append(out.scenarios, res)
-		rep.Scenarios = append(rep.Scenarios, render.ScenarioReport{Name: sc.Name, Description: sc.Description,
-			What: sc.DescribeFor(m, cfg.Year), Rows: rows, Changes: sim.Compare(out.base, res, rep.Rows, rows)})
-	}
+	paths := 0
 	if detail || cfg.Demand != nil {
-		paths := min(cfg.Paths, detailPaths)
-		fan, err := sim.RunFan(ctx, m, cfg, paths)
-		if err != nil {
-			return nil, err
-		}
-		out.fan = fan
-		if cfg.Demand != nil {
-			rep.Planning = &render.Planning{Unit: cfg.Demand.Unit, LoadDurationPaths: paths, LoadDuration: fan.LoadDuration}
-		}
+		paths = detailPaths
 	}
-	return out, nil
+	return stress.Simulate(ctx, m, cfg, scens, thresholds, paths)
 }
 
 // detailPaths is how many paths the fan chart and the load-duration curve

@@ -28,6 +28,7 @@ import (
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 var update = flag.Bool("update", false, "rewrite testdata/manifest.golden.html and docs/report.png")
@@ -123,13 +124,7 @@ func buildInput(fx fixture) (*ReportInput, error) {
 		if dres, err = demoDemand(); err != nil {
 			return nil, err
 		}
-		var hol []calendar.Date
-		for i, h := range dres.Days.Holiday {
-			if h {
-				hol = append(hol, dres.Days.Dates[i])
-			}
-		}
-		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.FixedDateHolidays(hol, cfg.Year)
+		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.FixedDateHolidays(stress.Holidays(dres.Days), cfg.Year)
 	}
 	thresholds := []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
 	var scens []*scenarios.Scenario
@@ -140,50 +135,23 @@ func buildInput(fx fixture) (*ReportInput, error) {
 		}
 		scens = append(scens, sc)
 	}
-	models := []*model.File{m}
-	for _, sc := range scens {
-		sm, err := sc.Apply(m, cfg.Year)
-		if err != nil {
-			return nil, err
-		}
-		models = append(models, sm)
+	set, err := stress.Simulate(ctx, m, cfg, scens, thresholds, fx.fanPaths)
+	if err != nil {
+		return nil, err
 	}
-	rep := &SimReport{}
-	in := &ReportInput{Model: m, Sim: rep}
-	for i, mm := range models {
-		res, err := sim.Run(ctx, mm, cfg)
-		if err != nil {
-			return nil, err
-		}
-		rows := res.Summarize(m.Data.Units, thresholds)
-		if i == 0 {
-			in.Base, rep.Rows = res, rows
-			continue
-		}
-		sc := scens[i-1]
-		in.Scenarios = append(in.Scenarios, res)
-		rep.Scenarios = append(rep.Scenarios, ScenarioReport{Name: sc.Name, Description: sc.Description,
-			What: sc.Describe(), Rows: rows, Changes: sim.Compare(in.Base, res, rep.Rows, rows)})
-	}
+	rep := NewSimReport(set)
+	in := &ReportInput{Model: m, Sim: rep, Base: set.Base, Scenarios: set.Results(), Fan: set.Fan}
 	c := in.Base.Config
 	rep.Manifest = Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
 		ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
 		Start: c.Start, Periods: c.Periods, SimulatedDays: in.Base.SimulatedDays, Units: m.Data.Units,
 		HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
 		Scenarios: fx.scenarios, Quantiles: QuantileConvention, Caution: Caution}
-	if in.Fan, err = sim.RunFan(ctx, m, cfg, fx.fanPaths); err != nil {
-		return nil, err
-	}
 	if dres != nil {
 		d, days := dres.Model, dres.Days
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256, rep.Manifest.Capacity = "demand.json", strings.Repeat("cd", 32), cfg.Capacity
-		rep.Planning = &Planning{Unit: d.Unit, LoadDurationPaths: fx.fanPaths, LoadDuration: in.Fan.LoadDuration}
-		hist := make([]sim.HistoryDay, len(days.Dates))
-		for i := range hist {
-			hist[i] = sim.HistoryDay{Date: days.Dates[i], Temp: days.Temp[i], Load: days.Load[i], Holiday: days.Holiday[i]}
-		}
 		normCfg := sim.Config{Seed: 1, Workers: 2, Bases: sim.DefaultBases(m.Data.Units)}
-		if rep.Planning.Normals, err = sim.WeatherNormalize(ctx, m, d, normCfg, hist, fx.normalPaths); err != nil {
+		if rep.Planning.Normals, err = sim.WeatherNormalize(ctx, m, d, normCfg, stress.History(days), fx.normalPaths); err != nil {
 			return nil, err
 		}
 		in.Demand = NewDemandView(demo.Retailer, d, days.Temp, days.Load)

@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // Manifest records what produced an output. It leaves out the worker count
@@ -382,4 +383,22 @@ func writeComparison(e *errWriter, r *SimReport) {
 func compRow(name string, t sim.Tail, change string) []string {
 	return []string{name, num(t.Mean, 1), num(t.Quantiles[4], 1), num(t.Quantiles[7], 1), num(t.Quantiles[8], 1),
 		num(t.ES95, 1), num(t.ReturnLevels[3], 1), change}
+}
+
+// NewSimReport lays out a stress run for the renderers; the manifest, and
+// the planning tables' weather-normalized history, are left for the caller.
+func NewSimReport(s *stress.Set) *SimReport {
+	r := &SimReport{Rows: s.Rows}
+	for _, run := range s.Scenarios {
+		sc := run.Scenario
+		r.Scenarios = append(r.Scenarios, ScenarioReport{Name: sc.Name, Description: sc.Description, What: run.What,
+			Rows: run.Rows, Changes: run.Changes})
+	}
+	if d := s.Config.Demand; d != nil {
+		r.Planning = &Planning{Unit: d.Unit}
+		if s.Fan != nil {
+			r.Planning.LoadDurationPaths, r.Planning.LoadDuration = s.Fan.Paths, s.Fan.LoadDuration
+		}
+	}
+	return r
 }
