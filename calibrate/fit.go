@@ -13,15 +13,23 @@ import (
 	"wxstress/diagnose"
 	"wxstress/model"
 	"wxstress/shocks"
+	"wxstress/statespace"
 )
 
 // Settings choose the model's structure. A nil *Settings means the defaults:
-// harmonics by BIC, AR(1), trend "auto", shock family by AIC.
+// harmonics by BIC, AR order by BIC, slow part "auto", trend "auto", shock
+// family by AIC.
 type Settings struct {
 	Harmonics int    // 1..4; 0 chooses by BIC among 1..4
-	AROrder   int    // 1..5; 0 means 1
+	AROrder   int    // 1..5; 0 chooses by BIC (with the slow part in the model)
+	Slow      string // "auto" (default), "on" or "none"
 	Trend     string // "auto" (default), "linear" or "none"
 	Shocks    string // "auto" (default), "normal", "t", "skew-t" or "bootstrap"
+	// Method is "exact" (default: exact Gaussian likelihood by the Kalman
+	// filter, with the slow part) or "cls": the lean path of conditional
+	// least squares for a fast AR alone (order table on one common sample,
+	// monthly σ from the residuals), no slow part and no spread bands.
+	Method string
 }
 
 // Limits and rules of the fit.
@@ -59,7 +67,21 @@ func (s *Settings) Validate() error {
 		return fmt.Errorf("calibrate: harmonics %d: want auto or 1..%d", s.Harmonics, MaxHarmonics)
 	}
 	if s.AROrder < 0 || s.AROrder > MaxAROrder {
-		return fmt.Errorf("calibrate: AR order %d: want 1..%d", s.AROrder, MaxAROrder)
+		return fmt.Errorf("calibrate: AR order %d: want auto or 1..%d (seasonal spread comes from the slow part, not from more lags)", s.AROrder, MaxAROrder)
+	}
+	switch s.Slow {
+	case "", SlowAuto, SlowOn, SlowNone:
+	default:
+		return fmt.Errorf("calibrate: slow %q: want auto, on or none", s.Slow)
+	}
+	switch s.Method {
+	case "", "exact":
+	case "cls":
+		if s.Slow == SlowOn {
+			return fmt.Errorf("calibrate: the slow part needs the exact likelihood, not conditional least squares")
+		}
+	default:
+		return fmt.Errorf("calibrate: method %q: want exact or cls", s.Method)
 	}
 	switch s.Trend {
 	case "", "auto", "linear", "none":
@@ -92,7 +114,6 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	if err := set.Validate(); err != nil {
 		return nil, err
 	}
-	p := max(set.AROrder, 1)
 	obs := observed(s)
 	if len(obs) < 2*365 {
 		return nil, fmt.Errorf("%s: %w: %d days with values, at least 730 needed", s.Name, ErrFit, len(obs))
@@ -123,6 +144,20 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	}
 	d.HarmonicsTable[k-1].Chosen = true
 	f.Trend, f.Seasonal = meanParams(mean, k, trendKind == "linear", calendar.DaysPerYear)
+	annual, annualSE, nYears := annualSlope(s, f.Seasonal)
+	if trendKind == "linear" && (set.Trend == "" || set.Trend == "auto") && nYears >= 3 && math.Abs(annual) < annualSE {
+		// Extrapolating a slope lowers the level's mean squared error at
+		// the target year only when |slope| exceeds its standard error
+		// (the usual bias–variance argument for keeping a regressor).
+		trendKind = "none"
+		rule = fmt.Sprintf("auto: linear trend dropped: the slope from annual means, %.2f per decade, is within its standard error (%.2f), "+
+			"so extrapolating it would add more error than it removes", annual, annualSE)
+		var err error
+		if mean, err = ols(design(s, obs, k, false, calendar.DaysPerYear), values(s, obs)); err != nil {
+			return nil, fmt.Errorf("%s: %w: mean model: %v", s.Name, ErrFit, err)
+		}
+		f.Trend, f.Seasonal = meanParams(mean, k, false, calendar.DaysPerYear)
+	}
 	f.Trend.Rule = rule
 	f.Seasonal.R2 = mean.R2()
 
@@ -146,55 +181,82 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	d.PACF = diagnose.PACF(d.ACF)
 	d.ACFBound = diagnose.ConfidenceBound(len(obs))
 	f.Trend.Estimate = trendEstimate(withTrend, d.ACF[0])
+	f.Trend.Estimate.SEAnnual, f.Trend.Estimate.Years = annualSE, nYears
 
-	// AR order table on a common sample, then the chosen order on all the
-	// rows that have its lags.
+	// Starting values: conditional least squares for each AR order, the
+	// monthly σ of the AR(1)'s innovations.
+	clsPhi := make([][]float64, MaxAROrder)
 	for q := 1; q <= MaxAROrder; q++ {
-		xm, y := lagged(x, q, MaxAROrder)
+		xm, y := lagged(x, q, q)
 		fit, err := ols(xm, y)
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
 		}
-		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: fit.BIC(), Chosen: q == p})
-	}
-	best := d.ARTable[0]
-	for _, r := range d.ARTable {
-		if r.BIC < best.BIC {
-			best = r
+		clsPhi[q-1] = fit.Beta
+		if model.SpectralRadius(fit.Beta) >= 0.999 {
+			clsPhi[q-1] = make([]float64, q)
+			clsPhi[q-1][0] = 0.7
 		}
 	}
-	if best.Order > p && d.ARTable[p-1].BIC-best.BIC > ARAdviceMargin {
-		d.ARAdvice = fmt.Sprintf("BIC prefers AR(%d) over the fitted AR(%d) by %.0f; consider --ar %d",
-			best.Order, p, d.ARTable[p-1].BIC-best.BIC, best.Order)
-	}
-	xm, y := lagged(x, p, p)
-	ar, err := ols(xm, y)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, p, err)
-	}
-	d.ARPairs = ar.N
-	f.AR = model.AR{Phi: ar.Beta, PhiSE: ar.SE, Last: lastAnomalies(x, p)}
-	if r := model.SpectralRadius(ar.Beta); r >= 1 {
-		return nil, fmt.Errorf("%s: %w: fitted AR(%d) %v is not stationary", s.Name, ErrFit, p, ar.Beta)
-	}
-
-	// Innovations, monthly σ, standardized shocks.
-	e := innovations(x, ar.Beta)
-	if err := monthlySigma(s, e, &f.Volatility); err != nil {
+	if err := monthlySigma(s, innovations(x, clsPhi[0]), &f.Volatility); err != nil {
 		return nil, err
 	}
-	z := make([]float64, len(e))
+	proj, err := newProjector(design(s, obs, k, trendKind == "linear", calendar.DaysPerYear), obs)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w: %v", s.Name, ErrFit, err)
+	}
+	if set.Method == "cls" {
+		if err := fitCLS(s, x, set, f, d); err != nil {
+			return nil, err
+		}
+		z := innovations(x, f.AR.Phi)
+		for i, v := range z {
+			z[i] = v / f.Volatility.Monthly[s.Date(i).Month()-1]
+		}
+		return finishFit(res, s, z, set, f, d)
+	}
+	start := statespace.Params{Phi: clsPhi[0], Sigma: f.Volatility.Monthly}
+	af, err := fitAnomaly(s, x, set, start, clsPhi, proj, d)
+	if err != nil {
+		return nil, err
+	}
+	prm := af.chosen.Params
+	p := len(prm.Phi)
+	d.ARPairs = af.chosen.N
+	f.AR = model.AR{Phi: prm.Phi, PhiSE: make([]float64, p), Last: lastAnomalies(x, p)}
+	for i := range p {
+		f.AR.PhiSE[i] = finiteOr0(af.chosen.SE[i])
+	}
+	if prm.HasSlow() {
+		mean, sd := af.filtered.SlowState(prm)
+		f.Slow = &model.Slow{Phi: prm.PhiSlow, SD: prm.SDSlow, EFoldingDays: prm.EFolding(), State: mean, StateSD: sd,
+			PhiSE: finiteOr0(af.chosen.SE[p]), SDSE: finiteOr0(af.chosen.SE[p+1])}
+	}
+
+	// Monthly σ from the likelihood, standardized innovations from the
+	// filter: z(t) = v(t)/√f(t), the fast part's shocks when the slow
+	// part's daily innovations are small beside σ.
+	z := af.filtered.Z
+	setVolatility(&f.Volatility, prm.Sigma, z, s)
+	return finishFit(res, s, z, set, f, d)
+}
+
+// finishFit fits the shock family to the standardized innovations z and
+// adds the diagnostics that depend on them.
+func finishFit(res *Result, s *Series, z []float64, set *Settings, f *model.File, d *model.Diagnostics) (*Result, error) {
+	p := len(f.AR.Phi)
 	var zc []float64
 	byMonth := make([][]float64, 12)
-	for i, v := range e {
-		z[i] = math.NaN()
+	for i, v := range z {
 		if math.IsNaN(v) {
 			continue
 		}
 		m := int(s.Date(i).Month()) - 1
-		z[i] = v / f.Volatility.Monthly[m]
-		zc = append(zc, z[i])
-		byMonth[m] = append(byMonth[m], z[i])
+		zc = append(zc, v)
+		byMonth[m] = append(byMonth[m], v)
+	}
+	if len(zc) < 30 {
+		return nil, fmt.Errorf("%s: %w: only %d standardized innovations", s.Name, ErrFit, len(zc))
 	}
 	res.Z = z
 
@@ -216,7 +278,6 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	d.ExcessKurtosis = diagnose.ExcessKurtosis(zc)
 	d.KS = test(diagnose.KolmogorovSmirnov(zc, dist.CDF))
 	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
-	d.Spread = []model.WindowSpread{windowSpread(s, f, x, 30), windowSpread(s, f, x, 151)}
 	d.Climatology = climatology(s)
 	return res, nil
 }
@@ -405,6 +466,26 @@ func lastAnomalies(x []float64, p int) []float64 {
 	return out
 }
 
+// setVolatility sets the monthly σ with their 95 % chi-square bands, the
+// counts being the days with a standardized innovation in each month.
+func setVolatility(v *model.Volatility, sigma [12]float64, z []float64, s *Series) {
+	var n [12]int
+	for i, x := range z {
+		if !math.IsNaN(x) {
+			n[s.Date(i).Month()-1]++
+		}
+	}
+	v.Kind = "monthly"
+	for m, sd := range sigma {
+		chi := distuv.ChiSquared{K: float64(max(n[m]-1, 1))}
+		v.Monthly[m], v.Count[m] = sd, n[m]
+		v.Band[m] = [2]float64{
+			sd * math.Sqrt(chi.K/chi.Quantile(0.975)),
+			sd * math.Sqrt(chi.K/chi.Quantile(0.025)),
+		}
+	}
+}
+
 // monthlySigma sets σ for each calendar month: the sample standard deviation
 // (n − 1) of that month's innovations, with a 95 % chi-square band.
 func monthlySigma(s *Series, e []float64, v *model.Volatility) error {
@@ -509,57 +590,11 @@ func thin(a, b []float64) ([]float64, []float64) {
 	return ta, tb
 }
 
-// windowSpread compares the standard deviation of non-overlapping L-day mean
-// anomalies (windows from the first day; a window missing more than a tenth
-// of its days is skipped) with the model's implied value for the same
-// windows:
-//
-//	Var(Σ_{t∈W} X_t) = Σ_s σ²(s) · (Σ_{t∈W, t≥s} ψ_{t−s})²
-//
-// where ψ is the AR's impulse response, averaged over the windows.
-func windowSpread(s *Series, f *model.File, x []float64, L int) model.WindowSpread {
-	psi := model.ImpulseResponse(f.AR.Phi)
-	cum := make([]float64, len(psi))
-	acc := 0.0
-	for j, v := range psi {
-		acc += v
-		cum[j] = acc
+func finiteOr0(v float64) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0
 	}
-	at := func(j int) float64 { // Σ_{k=0..j} ψ_k
-		if j < 0 {
-			return 0
-		}
-		return cum[min(j, len(cum)-1)]
-	}
-	var means []float64
-	var varSum float64
-	for a := 0; a+L <= len(x); a += L {
-		sum, n := 0.0, 0
-		for _, v := range x[a : a+L] {
-			if !math.IsNaN(v) {
-				sum += v
-				n++
-			}
-		}
-		if n < L*9/10 {
-			continue
-		}
-		means = append(means, sum/float64(n))
-		end := a + L - 1
-		v := 0.0
-		for s0 := a - len(psi); s0 <= end; s0++ {
-			w := at(end-s0) - at(a-1-s0)
-			sg := f.Volatility.Monthly[(s.Date(s0).Month() - 1)]
-			v += sg * sg * w * w
-		}
-		varSum += v / float64(L*L)
-	}
-	ws := model.WindowSpread{Days: L, Windows: len(means)}
-	if len(means) >= 2 {
-		ws.Observed = stat.StdDev(means, nil)
-		ws.Model = math.Sqrt(varSum / float64(len(means)))
-	}
-	return ws
+	return v
 }
 
 // climatology returns the mean observed temperature by day of year.
@@ -580,4 +615,43 @@ func climatology(s *Series) []float64 {
 		}
 	}
 	return sum
+}
+
+// fitCLS is the lean path: the fast AR by conditional least squares, the
+// order table on one common sample, monthly σ from the residuals, and the
+// spread table without bands.
+func fitCLS(s *Series, x []float64, set *Settings, f *model.File, d *model.Diagnostics) error {
+	p := max(set.AROrder, 1)
+	d.ARTable = d.ARTable[:0]
+	for q := 1; q <= MaxAROrder; q++ {
+		xm, y := lagged(x, q, MaxAROrder)
+		fit, err := ols(xm, y)
+		if err != nil {
+			return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+		}
+		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: fit.BIC(), Chosen: q == p})
+	}
+	xm, y := lagged(x, p, p)
+	ar, err := ols(xm, y)
+	if err != nil {
+		return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, p, err)
+	}
+	d.ARPairs = ar.N
+	f.AR = model.AR{Phi: ar.Beta, PhiSE: ar.SE, Last: lastAnomalies(x, p)}
+	if r := model.SpectralRadius(ar.Beta); r >= 1 {
+		return fmt.Errorf("%s: %w: fitted AR(%d) %v is not stationary", s.Name, ErrFit, p, ar.Beta)
+	}
+	if err := monthlySigma(s, innovations(x, ar.Beta), &f.Volatility); err != nil {
+		return err
+	}
+	prm := statespace.Params{Phi: f.AR.Phi, Sigma: f.Volatility.Monthly}
+	for _, L := range SpreadWindows {
+		sd, starts := windowSD(x, L)
+		ws := model.WindowSpread{Days: L, Windows: len(starts)}
+		if len(starts) >= 2 {
+			ws.Observed, ws.Model, ws.Verdict = sd, modelWindowSD(s, prm, L, starts), "not checked"
+		}
+		d.Spread = append(d.Spread, ws)
+	}
+	return nil
 }

@@ -16,9 +16,8 @@ import (
 // generating parameters are in demo/TRUTH.md (written by demo/gen), and
 // checks that the fit finds them. Tolerances are a few standard errors of
 // each estimate on 71 years of data, stated beside each check. The record
-// also has a slow component (persistence 0.985, sd 0.6 °C) that the model
-// does not have; it raises the fitted φ slightly (0.728 is the lag-1
-// autocorrelation of the blend) and σ a little.
+// also has a slow component (persistence 0.985, sd 0.6 °C), which the fit
+// must find beside the fast AR(1) of φ = 0.72.
 func TestRecoversDemoTruth(t *testing.T) {
 	t.Parallel()
 	s, err := ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, ReadOptions{Units: Celsius})
@@ -44,7 +43,22 @@ func TestRecoversDemoTruth(t *testing.T) {
 	if len(m.Seasonal.Harmonics) < 2 {
 		t.Errorf("BIC kept %d harmonics; the truth has a second one of 0.8 °C", len(m.Seasonal.Harmonics))
 	}
-	check("φ", m.AR.Phi[0], 0.728, 0.015)
+	if len(m.AR.Phi) != 1 {
+		t.Errorf("BIC chose AR(%d); the truth's fast part is an AR(1)", len(m.AR.Phi))
+	}
+	check("fast φ", m.AR.Phi[0], 0.72, 0.015)
+	// The tolerances for the slow part: ±0.01 and ±0.2 °C (its
+	// standard errors here are about 0.004 and 0.1).
+	if m.Slow == nil {
+		t.Fatalf("slow part not kept: %+v", m.Diagnostics.SlowChoice)
+	}
+	check("φ_slow", m.Slow.Phi, 0.985, 0.01)
+	check("sd of the slow part", m.Slow.SD, 0.6, 0.2)
+	for _, w := range m.Diagnostics.Spread {
+		if w.Verdict != "inside" {
+			t.Errorf("%d-day spread: observed %.3f, band %.3f–%.3f: %s", w.Days, w.Observed, w.Band[0], w.Band[1], w.Verdict)
+		}
+	}
 	// σ(t) = 2.35 + 0.65 cos(ω(t − 14)): about 2.99 in January, 1.71 in July.
 	check("σ January", m.Volatility.Monthly[0], 2.99, 0.12)
 	check("σ July", m.Volatility.Monthly[6], 1.71, 0.10)

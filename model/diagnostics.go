@@ -7,10 +7,14 @@ type Diagnostics struct {
 	ARPairs      int `json:"ar_rows"`      // days with all p lags present, used in the AR fit
 
 	HarmonicsTable []OrderScore `json:"harmonics_bic"` // K = 1..4
-	ARTable        []OrderScore `json:"ar_bic"`        // p = 1..5, on a common sample
-	// ARAdvice is non-empty when BIC prefers a higher AR order than the
+	// ARTable scores the fast AR order p = 1..5 by BIC from the exact
+	// likelihood, with the slow part in the model when it was considered.
+	ARTable []OrderScore `json:"ar_bic"`
+	// ARAdvice is non-empty when BIC prefers another AR order than the
 	// one fitted by a clear margin.
 	ARAdvice string `json:"ar_advice,omitempty"`
+	// SlowChoice records how the slow part was kept or left out.
+	SlowChoice *SlowChoice `json:"slow_choice,omitempty"`
 
 	ShockTable []FamilyScore `json:"shock_families"`
 
@@ -76,5 +80,33 @@ type WindowSpread struct {
 	Days     int     `json:"days"`
 	Windows  int     `json:"windows"`
 	Observed float64 `json:"observed_sd"`
-	Model    float64 `json:"model_sd"`
+	Model    float64 `json:"model_sd"` // the fitted model's expected value for these windows
+	// Band is the 5–95 % range of the sd a record of this length and gaps
+	// would show under the fitted model (by simulation, re-fitting the
+	// mean model to each simulated record as to the data): an observed sd
+	// outside it is evidence against the model's spread at this scale.
+	Band [2]float64 `json:"band_90"`
+	// BandFastOnly is the same band under the model without its slow part
+	// (the AR fitted alone); absent when the model has no slow part.
+	BandFastOnly *[2]float64 `json:"band_90_fast_only,omitempty"`
+	Verdict      string      `json:"verdict"` // "inside", "too narrow" or "too wide"
+}
+
+// SlowChoice is the evidence for or against the slow part.
+type SlowChoice struct {
+	Setting string `json:"setting"` // auto, on or none
+	Kept    bool   `json:"kept"`
+	// Log-likelihoods of the model with and without the slow part (exact,
+	// Gaussian), the likelihood-ratio statistic 2·(with − without), its
+	// p-value against ½χ²₁ + ½χ²₂, and both BICs.
+	LogLikWith    float64 `json:"loglik_with"`
+	LogLikWithout float64 `json:"loglik_without"`
+	LR            float64 `json:"lr"`
+	P             float64 `json:"p"`
+	BICWith       float64 `json:"bic_with"`
+	BICWithout    float64 `json:"bic_without"`
+	// SpreadTooNarrow lists the windows (days) whose observed sd lies
+	// above the fast-only model's 90 % band.
+	SpreadTooNarrow []int  `json:"spread_too_narrow_without,omitempty"`
+	Rule            string `json:"rule"`
 }

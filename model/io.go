@@ -175,6 +175,20 @@ func (f *File) Validate(name string) error {
 			return bad(fmt.Sprintf("ar.last_anomalies[%d]", i), "not a finite number")
 		}
 	}
+	if sl := f.Slow; sl != nil {
+		if !(sl.Phi > 0 && sl.Phi < 1) {
+			return bad("slow.phi", "φ = %v, must be in (0, 1)", sl.Phi)
+		}
+		if !(sl.SD > 0) || !finite(sl.SD) || sl.SD > 50 {
+			return bad("slow.sd", "%v must be positive and at most 50", sl.SD)
+		}
+		if !finite(sl.State) || math.Abs(sl.State) > 10*sl.SD+50 {
+			return bad("slow.state", "%v is not a plausible state", sl.State)
+		}
+		if !(sl.StateSD >= 0) || sl.StateSD > sl.SD*1.0000001 {
+			return bad("slow.state_sd", "%v must be between 0 and slow.sd", sl.StateSD)
+		}
+	}
 	if f.Volatility.Kind != "monthly" {
 		return bad("volatility.kind", "is %q, want \"monthly\"", f.Volatility.Kind)
 	}

@@ -10,10 +10,10 @@ import (
 
 // Schema identifies the model file format; SchemaVersion is bumped on any
 // change a version-1 reader could misread. A reader accepts files whose
-// schema_version is at most its own.
+// schema_version is at most its own. Version 2 added the slow part ("slow").
 const (
 	Schema        = "wxstress-model"
-	SchemaVersion = 1
+	SchemaVersion = 2
 )
 
 // Shock families.
@@ -33,17 +33,21 @@ var Families = []string{FamilyNormal, FamilyStudentT, FamilySkewT, FamilyBootstr
 //
 //	T(t) = S(t) + X(t)
 //	S(t) = a + b·t + Σₖ [cₖ cos(kωt) + sₖ sin(kωt)],  ω = 2π / period_days
-//	X(t) = Σᵢ φᵢ X(t−i) + σ(month of t) ε(t),  ε zero-mean, unit-variance
+//	X(t) = Y(t) + F(t)
+//	Y(t) = Σᵢ φᵢ Y(t−i) + σ(month of t) ε(t),  ε zero-mean, unit-variance   (fast part)
+//	F(t) = φ_s F(t−1) + s_F √(1 − φ_s²) η(t),  η ~ N(0, 1)                  (slow part, optional)
 type File struct {
-	Schema        string     `json:"schema"`
-	SchemaVersion int        `json:"schema_version"`
-	ToolVersion   string     `json:"tool_version"`
-	Data          Data       `json:"data"`
-	Trend         Trend      `json:"trend"`
-	Seasonal      Seasonal   `json:"seasonal"`
-	AR            AR         `json:"ar"`
-	Volatility    Volatility `json:"volatility"`
-	Shocks        Shocks     `json:"shocks"`
+	Schema        string   `json:"schema"`
+	SchemaVersion int      `json:"schema_version"`
+	ToolVersion   string   `json:"tool_version"`
+	Data          Data     `json:"data"`
+	Trend         Trend    `json:"trend"`
+	Seasonal      Seasonal `json:"seasonal"`
+	AR            AR       `json:"ar"`
+	// Slow is the slow part F; nil (null in the file) when the model has none.
+	Slow       *Slow      `json:"slow"`
+	Volatility Volatility `json:"volatility"`
+	Shocks     Shocks     `json:"shocks"`
 	// Scenario is what a scenario added that the fitted parameters cannot
 	// express; nil for a fitted model.
 	Scenario    *Scenario    `json:"scenario,omitempty"`
@@ -106,8 +110,15 @@ type TrendEstimate struct {
 	// independent residuals and so understates the uncertainty.
 	SEOLS float64 `json:"se_ols_per_decade"`
 	// SEAdjusted widens SEOLS for lag-1 autocorrelation r of the residuals
-	// by √((1 + r)/(1 − r)) (the effective-sample-size correction).
+	// by √((1 + r)/(1 − r)) (the effective-sample-size correction). It
+	// ignores dependence beyond a few days and so still understates.
 	SEAdjusted float64 `json:"se_adjusted_per_decade"`
+	// SEAnnual is the slope's standard error from an ordinary regression
+	// of calendar-year mean anomalies on the year: it holds under the
+	// low-frequency dependence that daily residuals hide. 0 with fewer than
+	// 3 complete years.
+	SEAnnual float64 `json:"se_annual_means_per_decade"`
+	Years    int     `json:"complete_years"` // years behind SEAnnual
 }
 
 // Slope returns b, the slope per day.
@@ -136,13 +147,33 @@ type Harmonic struct {
 	PeakDayOfYear float64 `json:"peak_day_of_year"`
 }
 
-// AR is the anomaly's autoregression.
+// AR is the autoregression of the anomaly's fast part.
 type AR struct {
 	Phi   []float64 `json:"phi"`    // φ₁..φₚ
-	PhiSE []float64 `json:"phi_se"` // conditional least-squares standard errors
+	PhiSE []float64 `json:"phi_se"` // standard errors from the likelihood's curvature
 	// Last holds the last p anomalies of the record, most recent first
 	// (Last[0] is X on Data.LastDate); missing ones are 0.
 	Last []float64 `json:"last_anomalies"`
+}
+
+// Slow is the slow part of the anomaly, an AR(1) with persistence close to
+// 1 whose stationary standard deviation is SD:
+//
+//	F(t) = φ_s F(t−1) + s_F √(1 − φ_s²) η(t),  η ~ N(0, 1)
+type Slow struct {
+	Phi float64 `json:"phi"` // φ_s
+	SD  float64 `json:"sd"`  // s_F, data units
+	// PhiSE and SDSE are standard errors from the likelihood's curvature
+	// (0 where it was not positive definite).
+	PhiSE float64 `json:"phi_se"`
+	SDSE  float64 `json:"sd_se"`
+	// EFoldingDays is −1/ln φ_s, the lag at which F's autocorrelation has
+	// fallen to 1/e (information; Phi is what the simulator uses).
+	EFoldingDays float64 `json:"e_folding_days"`
+	// State and StateSD are the Kalman-filtered mean and standard deviation
+	// of F on Data.LastDate: where a conditional start begins.
+	State   float64 `json:"state"`
+	StateSD float64 `json:"state_sd"`
 }
 
 // Volatility is σ(t), the innovation standard deviation by calendar month.

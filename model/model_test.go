@@ -99,7 +99,7 @@ func TestSpectralRadius(t *testing.T) {
 func TestDecodeRejectsNewerSchemaAndUnknownKeys(t *testing.T) {
 	t.Parallel()
 	for _, c := range []struct{ json, want string }{
-		{`{"schema":"wxstress-model","schema_version":2}`, "newer than this tool reads"},
+		{`{"schema":"wxstress-model","schema_version":3}`, "newer than this tool reads"},
 		{`{"schema":"other"}`, "not a wxstress model file"},
 		{`not json`, "not a model file"},
 	} {

@@ -248,18 +248,18 @@ func (s *Scenario) Describe() []string {
 	}
 	if v := s.Volatility; v != nil {
 		if v.Scale != nil {
-			add("volatility σ × %.2f", *v.Scale)
+			add("fast-part volatility σ × %.2f (slow part unchanged)", *v.Scale)
 		}
 		if v.MonthlyScale != nil {
-			add("volatility σ by month × %s", monthList(v.MonthlyScale, "%.2f"))
+			add("fast-part volatility σ by month × %s (slow part unchanged)", monthList(v.MonthlyScale, "%.2f"))
 		}
 	}
 	if p := s.Persistence; p != nil {
 		if p.Phi != nil {
-			add("persistence φ = %v", p.Phi)
+			add("fast-part persistence φ = %v (slow part unchanged)", p.Phi)
 		}
 		if p.Scale != nil {
-			add("persistence φ × %.2f", *p.Scale)
+			add("fast-part persistence φ × %.2f (slow part unchanged)", *p.Scale)
 		}
 		if p.KeepVariance {
 			add("σ rescaled to keep the daily anomaly's variance")

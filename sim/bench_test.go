@@ -58,3 +58,24 @@ func BenchmarkRunDemand(b *testing.B) {
 	}
 	b.ReportMetric(float64(days)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mdays/s")
 }
+
+// BenchmarkPathDaySlow is BenchmarkPathDay with the slow part and
+// skewed-t shocks: the default model of a long record.
+func BenchmarkPathDaySlow(b *testing.B) {
+	m := flatModel(10, 0.72, 2.5, model.FamilySkewT, 10)
+	m.Shocks.Skew = 0.85
+	m.Slow = &model.Slow{Phi: 0.985, SD: 0.6}
+	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
+	if err != nil {
+		b.Fatal(err)
+	}
+	segs := make([]segStats, len(pl.segs))
+	buf := make([]float64, pl.n)
+	var rng rand.PCG
+	for i := 0; b.Loop(); i++ {
+		seedPath(&rng, 1, i)
+		pl.temps(&rng, buf)
+		pl.accumulate(buf, segs)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(pl.n), "ns/day")
+}

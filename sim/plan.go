@@ -4,7 +4,10 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 	"time"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"wxstress/calendar"
 	"wxstress/model"
@@ -54,11 +57,21 @@ type plan struct {
 	p       int           // AR order
 	phi     [maxAR]float64
 	x0      [maxAR]float64 // AR state before the first day, most recent first
-	segs    []segment
-	pspan   [][2]int // per period: segments [s0, s1)
-	bases   Bases
-	events  []planEvent
-	indices []Index // per period, in output order
+	// The slow part F (slow false without one): F(t) = phiS·F(t−1) +
+	// slowQ·η(t), η from the low bits of the fast shock's draw; F starts
+	// from N(f0Mean, f0SD²) (its stationary law, or the filtered state at
+	// the data end for a conditional start).
+	slow         bool
+	phiS, slowQ  float64
+	f0Mean, f0SD float64
+	eta          *[etaLevels]float64
+	startNormal  *shocks.Table // unit normal, for F's start
+	conditional  bool          // the fast lags in x0 are anomalies X, from which F is taken
+	segs         []segment
+	pspan        [][2]int // per period: segments [s0, s1)
+	bases        Bases
+	events       []planEvent
+	indices      []Index // per period, in output order
 
 	// Demand (nil without a demand model).
 	demand   *model.Demand
@@ -82,6 +95,34 @@ type planEvent struct {
 }
 
 const maxAR = 5
+
+// etaBits low bits of each day's 64-bit draw, which the fast part's shock
+// table does not read (it uses the top 54), pick the slow part's shock η:
+// one of etaLevels equally likely normal quantiles at the cell midpoints
+// Φ⁻¹((k + ½)/1024), scaled to unit variance. The slow part sums hundreds of
+// them before it moves appreciably (its e-folding time is weeks to months),
+// so its law is normal to well within sampling error (TestSlowPartLaw).
+const (
+	etaBits   = 10
+	etaLevels = 1 << etaBits
+)
+
+var etaGrid = sync.OnceValue(func() *[etaLevels]float64 {
+	g := new([etaLevels]float64)
+	n := distuv.UnitNormal
+	ss := 0.0
+	for k := range g {
+		g[k] = n.Quantile((float64(k) + 0.5) / etaLevels)
+		ss += g[k] * g[k]
+	}
+	c := 1 / math.Sqrt(ss/etaLevels)
+	for k := range g {
+		g[k] *= c
+	}
+	return g
+})
+
+func slowGrid() *[etaLevels]float64 { return etaGrid() }
 
 // burnInDays returns how many days a climatological run simulates before its
 // first accumulated day, starting from X = 0: enough for the start's
@@ -115,6 +156,15 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 		copy(pl.x0[:], m.AR.Last)
 	default:
 		pl.first = from - calendar.Date(burnInDays(m.AR.Phi))
+	}
+	if sl := m.Slow; sl != nil {
+		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)
+		pl.eta = slowGrid()
+		pl.startNormal = shocks.NewTable(shocks.Normal{})
+		pl.f0SD = sl.SD
+		if cfg.Start == StartConditional {
+			pl.f0Mean, pl.f0SD, pl.conditional = sl.State, sl.StateSD, true
+		}
 	}
 	pl.n = int(to-pl.first) + 1
 	pl.acc = int(from - pl.first)

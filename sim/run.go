@@ -193,34 +193,70 @@ type segStats struct {
 }
 
 // temps fills buf (pl.n days) with one path's daily temperatures: the AR
-// anomaly driven by the day's shock, plus the seasonal mean. AR(1) with
-// tabulated shocks, the common case, has its own loop.
+// anomaly driven by the day's shock, the slow part when the model has one,
+// plus the seasonal mean. AR(1) with tabulated shocks, the common case, has
+// its own loops. The slow part's start is one draw from rng before the
+// days; the models without one draw nothing extra, so their streams are as
+// they were.
 func (pl *plan) temps(rng *rand.PCG, buf []float64) {
 	mean, sd := pl.mean[:len(buf)], pl.sd[:len(buf)]
+	x0 := pl.x0
+	f := 0.0
+	if pl.slow {
+		f = pl.f0Mean + pl.f0SD*pl.startNormal.Draw(rng.Uint64())
+		if pl.conditional {
+			for i := range pl.p {
+				x0[i] -= f
+			}
+		}
+	}
 	if pl.table != nil && pl.p == 1 {
-		tab, phi, x := pl.table, pl.phi[0], pl.x0[0]
+		tab, phi, x := pl.table, pl.phi[0], x0[0]
+		if !pl.slow {
+			for d := range buf {
+				x = phi*x + sd[d]*tab.Draw(rng.Uint64())
+				buf[d] = mean[d] + x
+			}
+			return
+		}
+		eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
 		for d := range buf {
-			x = phi*x + sd[d]*tab.Draw(rng.Uint64())
-			buf[d] = mean[d] + x
+			u := rng.Uint64()
+			x = phi*x + sd[d]*tab.Draw(u)
+			f = phiS*f + q*eta[u&(etaLevels-1)]
+			buf[d] = mean[d] + x + f
 		}
 		return
 	}
 	p1, p2, p3, p4, p5 := pl.phi[0], pl.phi[1], pl.phi[2], pl.phi[3], pl.phi[4]
-	x1, x2, x3, x4, x5 := pl.x0[0], pl.x0[1], pl.x0[2], pl.x0[3], pl.x0[4]
+	x1, x2, x3, x4, x5 := x0[0], x0[1], x0[2], x0[3], x0[4]
+	phiS, q := pl.phiS, pl.slowQ // zero without a slow part: f stays 0
+	var eta *[etaLevels]float64
+	if pl.slow {
+		eta = pl.eta
+	} else {
+		eta = &zeroEta
+	}
 	for d := range buf {
 		u := rng.Uint64()
 		var z float64
 		if pl.table != nil {
 			z = pl.table.Draw(u)
 		} else {
+			// The bootstrap index takes the top bits (a 64×64 high product),
+			// so the low bits stay free for η.
 			hi, _ := bits.Mul64(u, pl.poolLen[d])
 			z = pl.pool[pl.poolOff[d]+int32(hi)]
 		}
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
-		buf[d] = mean[d] + x
+		f = phiS*f + q*eta[u&(etaLevels-1)]
+		buf[d] = mean[d] + x + f
 	}
 }
+
+// zeroEta stands in for the η grid without a slow part.
+var zeroEta [etaLevels]float64
 
 // path simulates path i of a run with the given seed: temperatures into
 // buf, and demand into dbuf when the run has a demand model.

@@ -19,14 +19,14 @@ import (
 var fitUsage = helpText{
 	usage: "wxstress fit --temps FILE.csv [--out model.json] [flags]",
 	about: `Calibrate the daily temperature model to a station's history: trend, seasonal
-cycle (period 365.25 days), AR anomaly, monthly volatility and shock family,
-with diagnostics. The CSV needs a header with a date column (YYYY-MM-DD) and
+cycle (period 365.25 days), an anomaly with a fast AR part and a slow part
+(weeks to months), monthly volatility and shock family, with diagnostics. The CSV needs a header with a date column (YYYY-MM-DD) and
 either a daily mean column (tavg, tmean, temp, ...) or max and min columns
 (tmax/tmin, temp_max/temp_min, max/min, ...); with both, the mean is
 (max + min)/2 unless --mean-column names a column. Missing values (empty, NA,
 NaN, -9999) are gaps.`,
 	examples: `  wxstress fit --temps station.csv --out model.json
-  wxstress fit --temps station.csv --units F --harmonics 2 --ar 2 --shocks t
+  wxstress fit --temps station.csv --units F --harmonics 2 --ar 2 --slow on --shocks t
   wxstress fit --temps station.csv --format json > model.json
   wxstress fit --temps station.csv --out model.json --report fit.html`,
 }
@@ -35,7 +35,7 @@ type fitOptions struct {
 	temps, out, format   string
 	units, meanColumn    string
 	harmonics, ar, trend string
-	shocks, report       string
+	slow, shocks, report string
 	settings             calibrate.Settings
 	readOpts             calibrate.ReadOptions
 }
@@ -53,7 +53,8 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C, with a warning if the data look like °F)")
 	fs.StringVar(&o.meanColumn, "mean-column", "", "use this column as the daily mean instead of (max + min)/2")
 	fs.StringVar(&o.harmonics, "harmonics", "auto", "seasonal harmonics: auto (by BIC) or 1..4")
-	fs.StringVar(&o.ar, "ar", "1", "AR order of the anomaly: 1..5")
+	fs.StringVar(&o.ar, "ar", "auto", "AR order of the anomaly's fast part: auto (by BIC, with the slow part in the model) or 1..5")
+	fs.StringVar(&o.slow, "slow", "auto", "slow part of the anomaly (weeks to months): auto (kept when a likelihood-ratio test or the spread check asks for it), on or none")
 	fs.StringVar(&o.trend, "trend", "auto", "trend: auto (linear from 15 years of data), linear or none")
 	fs.StringVar(&o.shocks, "shocks", "auto", "shock family: auto (by AIC), normal, t, skew-t or bootstrap")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report of the data and the fit here")
@@ -81,11 +82,20 @@ func (o *fitOptions) validate() error {
 		}
 		o.settings.Harmonics = k
 	}
-	p, err := strconv.Atoi(o.ar)
-	if err != nil || p < 1 || p > calibrate.MaxAROrder {
-		return usagef("fit: --ar %q: want 1..%d", o.ar, calibrate.MaxAROrder)
+	if o.ar != "auto" {
+		p, err := strconv.Atoi(o.ar)
+		if err != nil || p < 1 || p > calibrate.MaxAROrder {
+			return usagef("fit: --ar %q: want auto or 1..%d (season-to-season spread comes from --slow, not from more lags)",
+				o.ar, calibrate.MaxAROrder)
+		}
+		o.settings.AROrder = p
 	}
-	o.settings.AROrder = p
+	switch o.slow {
+	case calibrate.SlowAuto, calibrate.SlowOn, calibrate.SlowNone:
+		o.settings.Slow = o.slow
+	default:
+		return usagef("fit: --slow %q: want auto, on or none", o.slow)
+	}
 	o.settings.Trend = o.trend
 	o.settings.Shocks = o.shocks
 	if err := o.settings.Validate(); err != nil {

@@ -54,7 +54,7 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "-h"}, exitOK, ""},
 		{[]string{"version"}, exitOK, ""},
 		{[]string{"fit"}, exitUsage, "--temps is required"},
-		{[]string{"fit", "--temps", "x.csv", "--ar", "9"}, exitUsage, "want 1..5"},
+		{[]string{"fit", "--temps", "x.csv", "--ar", "9"}, exitUsage, "want auto or 1..5"},
 		{[]string{"fit", "--temps", "x.csv", "--shocks", "cauchy"}, exitUsage, "normal, t, skew-t"},
 		{[]string{"fit", "--temps", "/nonexistent/x.csv"}, exitFailure, "no such file"},
 		{[]string{"fit", "--bogus"}, exitUsage, "unknown flag"},

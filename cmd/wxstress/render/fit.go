@@ -29,8 +29,12 @@ func FitSummary(w io.Writer, f *model.File) error {
 		f.Seasonal.PeriodDays, f.Trend.Epoch)
 	e.printf("  level a = %.3f %s; R² = %.4f\n", f.Trend.Intercept, u, f.Seasonal.R2)
 	est := f.Trend.Estimate
-	e.printf("  trend: %s; fitted slope %+.3f %s/decade (s.e. %.3f OLS, %.3f allowing for autocorrelation)\n",
+	e.printf("  trend: %s; fitted slope %+.3f %s/decade (s.e. %.3f OLS, %.3f allowing for day-to-day autocorrelation",
 		f.Trend.Kind, est.PerDecade, u, est.SEOLS, est.SEAdjusted)
+	if est.Years >= 3 {
+		e.printf(", %.3f from %d annual means", est.SEAnnual, est.Years)
+	}
+	e.printf(")\n")
 	e.printf("  %s\n", f.Trend.Rule)
 	rows := [][]string{}
 	for _, h := range f.Seasonal.Harmonics {
@@ -48,21 +52,53 @@ func FitSummary(w io.Writer, f *model.File) error {
 		e.table([]string{"K", "BIC", ""}, orderRows(dg.HarmonicsTable))
 	}
 
-	e.printf("\nAnomaly X(t): AR(%d)\n", len(f.AR.Phi))
+	if f.Slow != nil {
+		e.printf("\nAnomaly X(t) = Y(t) + F(t): fast part Y an AR(%d), slow part F an AR(1)\n", len(f.AR.Phi))
+	} else {
+		e.printf("\nAnomaly X(t): AR(%d), no slow part\n", len(f.AR.Phi))
+	}
 	rows = rows[:0]
 	for i, v := range f.AR.Phi {
 		rows = append(rows, []string{fmt.Sprintf("φ%d", i+1), num(v, 4), num(f.AR.PhiSE[i], 4)})
 	}
+	if sl := f.Slow; sl != nil {
+		se := func(v float64, d int) string {
+			if v > 0 {
+				return num(v, d)
+			}
+			return "—"
+		}
+		rows = append(rows,
+			[]string{"φ_slow", num(sl.Phi, 4), se(sl.PhiSE, 4)},
+			[]string{"  e-folding time", fmt.Sprintf("%.0f days", sl.EFoldingDays), ""},
+			[]string{"  stationary sd of F", num(sl.SD, 3) + " " + u, se(sl.SDSE, 3)},
+			[]string{"  F at the data end", fmt.Sprintf("%+.2f ± %.2f %s", sl.State, sl.StateSD, u), ""})
+	}
 	e.table([]string{"coefficient", "estimate", "s.e."}, rows)
+	if dg != nil && dg.SlowChoice != nil {
+		c := dg.SlowChoice
+		e.printf("Slow part: %s\n", c.Rule)
+		if c.Setting != "none" {
+			e.table([]string{"model", "log-lik", "BIC", ""}, [][]string{
+				{"with the slow part", num(c.LogLikWith, 1), num(c.BICWith, 1), mark(c.Kept)},
+				{"fast AR alone", num(c.LogLikWithout, 1), num(c.BICWithout, 1), mark(!c.Kept)},
+			})
+			e.printf("  likelihood ratio %.2f, p-value %s (against ½χ²₁ + ½χ²₂: the null is on the boundary s_F = 0)\n", c.LR, pval(c.P))
+		}
+	}
 	if dg != nil {
-		e.printf("AR order by BIC (all orders on one common sample)\n")
+		if f.Slow != nil || (dg.SlowChoice != nil && dg.SlowChoice.Setting != "none") {
+			e.printf("AR order of the fast part by BIC (exact likelihood, slow part in the model; orders above 1 with the slow part held)\n")
+		} else {
+			e.printf("AR order by BIC (exact likelihood)\n")
+		}
 		e.table([]string{"p", "BIC", ""}, orderRows(dg.ARTable))
 		if dg.ARAdvice != "" {
 			e.printf("  note: %s\n", dg.ARAdvice)
 		}
 	}
 
-	e.printf("\nInnovation volatility σ by month (%s, with 95%% band)\n", u)
+	e.printf("\nFast-part innovation volatility σ by month (%s, with 95%% band)\n", u)
 	rows = rows[:0]
 	v := f.Volatility
 	for m := range 12 {
@@ -113,20 +149,42 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 	}
 	e.table([]string{"lag (days)", "ACF", "PACF"}, rows)
 	e.printf("\nSpread of window-mean anomalies: data against model (%s)\n", u)
+	e.printf("  band: 5–95 %% of the sd in records of this length and gaps simulated from the fitted model\n")
 	rows = rows[:0]
+	fastBand := false
 	for _, s := range dg.Spread {
-		ratio := "—"
-		if s.Observed > 0 {
-			ratio = num(s.Model/s.Observed, 2)
+		if s.Windows < 2 {
+			rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), fmt.Sprint(s.Windows), "—", "—", "—", "too few windows"})
+			continue
 		}
-		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), fmt.Sprint(s.Windows),
-			num(s.Observed, 3), num(s.Model, 3), ratio})
+		row := []string{fmt.Sprintf("%d-day means", s.Days), fmt.Sprint(s.Windows),
+			num(s.Observed, 3), num(s.Model, 3), num(s.Band[0], 3) + "–" + num(s.Band[1], 3), s.Verdict}
+		if s.BandFastOnly != nil {
+			fastBand = true
+			row = append(row, num(s.BandFastOnly[0], 3)+"–"+num(s.BandFastOnly[1], 3))
+		}
+		rows = append(rows, row)
 	}
-	e.table([]string{"window", "windows", "observed sd", "model sd", "model / observed"}, rows)
+	head := []string{"window", "windows", "observed sd", "model sd", "90% band", "observed"}
+	if fastBand {
+		head = append(head, "band without slow part")
+		for i := range rows {
+			for len(rows[i]) < len(head) {
+				rows[i] = append(rows[i], "")
+			}
+		}
+	}
+	e.table(head, rows)
 	for _, s := range dg.Spread {
-		if s.Observed > 0 && s.Model/s.Observed < 0.8 {
-			e.printf("  note: the model's %d-day spread is %.0f%% of the data's: monthly and seasonal sums "+
-				"will be too narrow; consider a higher AR order\n", s.Days, 100*s.Model/s.Observed)
+		switch {
+		case s.Verdict == "too narrow" && f.Slow == nil:
+			e.printf("  note: the data's %d-day spread lies above the model's band: seasonal and annual sums will be "+
+				"too narrow; refit with --slow on (more AR lags do not add low-frequency spread)\n", s.Days)
+		case s.Verdict == "too narrow":
+			e.printf("  note: the data's %d-day spread lies above the model's band even with the slow part: "+
+				"treat tail tables over that span as narrow\n", s.Days)
+		case s.Verdict == "too wide":
+			e.printf("  note: the data's %d-day spread lies below the model's band: the model is wider than the record at that span\n", s.Days)
 		}
 	}
 }

@@ -214,8 +214,12 @@ func modelOneLine(m *model.File) string {
 	if m.Trend.Kind == "linear" {
 		trend = fmt.Sprintf("trend %+.2f %s/decade", 10*m.Trend.SlopePerYear, u)
 	}
-	return fmt.Sprintf("%s, %d seasonal harmonic(s), AR(%d), monthly σ %s–%s %s, %s shocks", trend,
-		len(m.Seasonal.Harmonics), len(m.AR.Phi), num(minOf(m.Volatility.Monthly[:]), 2),
+	slow := "no slow part"
+	if sl := m.Slow; sl != nil {
+		slow = fmt.Sprintf("slow part φ_slow %.4f (e-folding %.0f days, sd %s %s)", sl.Phi, sl.EFoldingDays, num(sl.SD, 2), u)
+	}
+	return fmt.Sprintf("%s, %d seasonal harmonic(s), fast AR(%d), %s, monthly σ %s–%s %s, %s shocks", trend,
+		len(m.Seasonal.Harmonics), len(m.AR.Phi), slow, num(minOf(m.Volatility.Monthly[:]), 2),
 		num(maxOf(m.Volatility.Monthly[:]), 2), u, familyName(m.Shocks.Family))
 }
 
@@ -394,8 +398,12 @@ func paramRows(m *model.File) [][2]string {
 	}
 	est := m.Trend.Estimate
 	if m.Trend.Kind == "linear" {
-		rows = append(rows, [2]string{"trend b", fmt.Sprintf("%+.3f %s/decade (s.e. %.3f allowing for autocorrelation)",
-			10*m.Trend.SlopePerYear, u, est.SEAdjusted)})
+		annual := ""
+		if est.Years >= 3 {
+			annual = fmt.Sprintf(", %.3f from %d annual means", est.SEAnnual, est.Years)
+		}
+		rows = append(rows, [2]string{"trend b", fmt.Sprintf("%+.3f %s/decade (s.e. %.3f allowing for day-to-day autocorrelation%s)",
+			10*m.Trend.SlopePerYear, u, est.SEAdjusted, annual)})
 	} else {
 		rows = append(rows, [2]string{"trend b", fmt.Sprintf("none (fitted slope %+.3f %s/decade, s.e. %.3f, not used)",
 			est.PerDecade, u, est.SEAdjusted)})
@@ -416,7 +424,19 @@ func paramRows(m *model.File) [][2]string {
 		}
 		phi = append(phi, fmt.Sprintf("φ%d = %.4f%s", i+1, v, se))
 	}
-	rows = append(rows, [2]string{fmt.Sprintf("anomaly X: AR(%d)", len(m.AR.Phi)), strings.Join(phi, ", ")})
+	rows = append(rows, [2]string{fmt.Sprintf("fast part Y: AR(%d)", len(m.AR.Phi)), strings.Join(phi, ", ")})
+	if sl := m.Slow; sl != nil {
+		rows = append(rows, [2]string{"slow part F: AR(1)", fmt.Sprintf("φ_slow = %.4f (s.e. %.4f), e-folding time %.0f days, "+
+			"stationary sd %.3f %s (s.e. %.3f); at the data end F = %+.2f ± %.2f %s",
+			sl.Phi, sl.PhiSE, sl.EFoldingDays, sl.SD, u, sl.SDSE, sl.State, sl.StateSD, u)})
+	} else {
+		rows = append(rows, [2]string{"slow part F", "none"})
+	}
+	if c := m.Diagnostics; c != nil && c.SlowChoice != nil {
+		rows = append(rows, [2]string{"slow part: choice", fmt.Sprintf("%s (likelihood ratio %.2f, p-value %s against ½χ²₁ + ½χ²₂; "+
+			"BIC %s with, %s without)", c.SlowChoice.Rule, c.SlowChoice.LR, pval(c.SlowChoice.P),
+			num(c.SlowChoice.BICWith, 1), num(c.SlowChoice.BICWithout, 1))})
+	}
 	var sig []string
 	for k, v := range m.Volatility.Monthly {
 		sig = append(sig, fmt.Sprintf("%s %.3f", time.Month(k + 1).String()[:3], v))
@@ -533,7 +553,7 @@ func (r *report) writeOrderTables(m *model.File) {
 		r.simpleTable("order", caption, []string{col, "BIC", "Δ BIC", ""}, rows, 1, 2)
 	}
 	orderTable("Seasonal harmonics by BIC", "harmonics K", dg.HarmonicsTable)
-	orderTable("AR order by BIC (one common sample)", "order p", dg.ARTable)
+	orderTable("Fast AR order by BIC (exact likelihood; with the slow part in the model when it was considered)", "order p", dg.ARTable)
 	if len(dg.ShockTable) > 0 {
 		best := math.Inf(1)
 		for _, s := range dg.ShockTable {
@@ -635,19 +655,25 @@ func (r *report) writeSpread(m *model.File) {
 	var rows [][]string
 	var notes []string
 	for _, s := range dg.Spread {
-		ratio := math.NaN()
-		if s.Observed > 0 {
-			ratio = s.Model / s.Observed
+		band, fast := "—", "—"
+		if s.Band[1] > 0 {
+			band = num(s.Band[0], 3) + "–" + num(s.Band[1], 3)
+		}
+		if s.BandFastOnly != nil {
+			fast = num(s.BandFastOnly[0], 3) + "–" + num(s.BandFastOnly[1], 3)
 		}
 		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), strconv.Itoa(s.Windows), num(s.Observed, 3),
-			num(s.Model, 3), num(ratio, 2)})
-		notes = append(notes, spreadSentence(s.Days, ratio))
+			num(s.Model, 3), band, s.Verdict, fast})
+		notes = append(notes, spreadSentence(s, m.Slow != nil))
 	}
 	r.raw("<h3>Spread of window means: data against model</h3>\n<p>Degree days of a month or a season are sums of " +
 		"daily values, so their tails depend on how widely the mean anomaly of a whole window varies. This compares " +
-		"the standard deviation of non-overlapping window means of X in the record with what the fitted model implies.</p>\n")
+		"the standard deviation of non-overlapping window means of X in the record with what the fitted model implies, " +
+		"and gives the 5–95 % range of that sd in records of the same length and gaps simulated from the fitted model " +
+		"(and from the fast AR alone, for comparison): an observed sd outside the band is evidence against the model's " +
+		"spread at that scale.</p>\n")
 	r.simpleTable("spread", "", []string{"window", "windows", "observed sd (" + u + ")", "model sd (" + u + ")",
-		"model / observed"}, rows, 1, 2, 3, 4)
+		"90 % band (" + u + ")", "observed", "band without the slow part"}, rows, 1, 2, 3)
 	r.raw("<ul class=\"verdicts\">\n")
 	for _, n := range notes {
 		r.printf("<li>%s</li>\n", esc(n))
@@ -655,24 +681,24 @@ func (r *report) writeSpread(m *model.File) {
 	r.raw("</ul>\n")
 }
 
-func spreadSentence(days int, ratio float64) string {
-	pct := 100 * ratio
-	switch {
-	case math.IsNaN(ratio):
-		return fmt.Sprintf("%d-day windows: no observed spread to compare with.", days)
-	case ratio < 0.8:
-		return fmt.Sprintf("%d-day windows: the model's spread is only %.0f %% of the data's, so simulated degree-day "+
-			"sums over such windows are too narrow and their tails (P95, ES, 1-in-20) understated; a higher AR order "+
-			"would help.", days, pct)
-	case ratio < 0.9:
-		return fmt.Sprintf("%d-day windows: the model's spread is %.0f %% of the data's, somewhat narrow; read the "+
-			"1-in-50 and 1-in-100 degree-day levels over such windows as lower bounds.", days, pct)
-	case ratio <= 1.1:
-		return fmt.Sprintf("%d-day windows: the model's spread is %.0f %% of the data's, so degree-day sums over such "+
-			"windows should have about the right width and their tails are credible.", days, pct)
+func spreadSentence(s model.WindowSpread, slow bool) string {
+	switch s.Verdict {
+	case "inside":
+		return fmt.Sprintf("%d-day windows: the observed spread lies inside the model's band, so degree-day sums over "+
+			"such windows should have about the right width.", s.Days)
+	case "too narrow":
+		if !slow {
+			return fmt.Sprintf("%d-day windows: the observed spread lies above the model's band: simulated sums over such "+
+				"windows are too narrow and their tails understated. Refit with the slow part (--slow on); more AR lags "+
+				"do not add low-frequency spread.", s.Days)
+		}
+		return fmt.Sprintf("%d-day windows: the observed spread lies above the model's band even with the slow part: "+
+			"read tails over such windows as lower bounds.", s.Days)
+	case "too wide":
+		return fmt.Sprintf("%d-day windows: the observed spread lies below the model's band: the model is wider than "+
+			"the record at that span, so tails there err on the cautious side.", s.Days)
 	}
-	return fmt.Sprintf("%d-day windows: the model's spread is %.0f %% of the data's, wider than observed, so "+
-		"degree-day tails over such windows err on the cautious side.", days, pct)
+	return fmt.Sprintf("%d-day windows: no band (too few windows or the lean fit).", s.Days)
 }
 
 // writeManifest writes section 6: provenance of the run and the cautions.
