@@ -50,13 +50,8 @@ type FitResult struct {
 // the likelihood has no maximum) or an observed information that is not
 // positive definite.
 func Fit(x []float64) (*FitResult, error) {
-	if len(x) < MinValues {
-		return nil, fmt.Errorf("extremes: %d values; a GEV fit needs at least %d", len(x), MinValues)
-	}
-	for i, v := range x {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, fmt.Errorf("extremes: value %d is %v", i+1, v)
-		}
+	if err := checkSample(x); err != nil {
+		return nil, err
 	}
 	center, scale := stat.MeanStdDev(x, nil)
 	if !(scale > 0) || scale < 1e-12*math.Abs(center) {
@@ -121,6 +116,19 @@ func Fit(x []float64) (*FitResult, error) {
 		r.SE[i] = math.Sqrt(r.Cov[i][i])
 	}
 	return r, nil
+}
+
+// checkSample reports too short a sample or a non-finite value (numbered from 1).
+func checkSample(x []float64) error {
+	if len(x) < MinValues {
+		return fmt.Errorf("extremes: %d values; a GEV fit needs at least %d", len(x), MinValues)
+	}
+	for i, v := range x {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("extremes: value %d is %v", i+1, v)
+		}
+	}
+	return nil
 }
 
 // ReturnLevelSE returns the delta-method standard error of the T-block

@@ -167,8 +167,8 @@ func TestFitErrors(t *testing.T) {
 		if err == nil || !strings.HasPrefix(err.Error(), "extremes: ") || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: error %v, want one containing %q", c.name, err, c.want)
 		}
-		if _, err := FitMinima(c.x); err == nil {
-			t.Errorf("%s: FitMinima gave no error", c.name)
+		if _, err := FitMinima(c.x); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: FitMinima error %v, want one containing %q", c.name, err, c.want)
 		}
 	}
 }

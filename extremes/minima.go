@@ -13,6 +13,10 @@ type MinimaFit struct {
 // FitMinima fits block minima x by fitting the GEV to −x with Fit; its errors
 // are Fit's.
 func FitMinima(x []float64) (*MinimaFit, error) {
+	// Checked before negating so that errors show the values as given.
+	if err := checkSample(x); err != nil {
+		return nil, err
+	}
 	neg := make([]float64, len(x))
 	for i, v := range x {
 		neg[i] = -v

@@ -1,7 +1,7 @@
 # Reference values for package extremes, computed with R and evd (second
 # opinion: fExtremes::gevFit).
 #
-# Run from the repository root (about 30 s):
+# Run from the repository root (about 10 s):
 #
 #     Rscript extremes/testdata/golden.R
 #
