@@ -192,9 +192,9 @@ type Backtest struct {
 var ErrBacktest = errors.New("evidence: unusable backtest")
 
 // Evaluate scores every case and summarises the PITs. It returns an error
-// wrapping ErrBacktest, naming the case, if there are fewer than two cases, a
-// sample or reference has fewer than two values, or a value is NaN or
-// infinite. Samples are not modified.
+// wrapping ErrBacktest, naming the case, if there are fewer than two cases
+// (three when a case uses the leave-one-out climatology), a sample or
+// reference has fewer than two values, or a value is NaN or infinite. Samples are not modified.
 func Evaluate(cases []Case) (*Backtest, error) {
 	n := len(cases)
 	if n < 2 {
@@ -203,6 +203,9 @@ func Evaluate(cases []Case) (*Backtest, error) {
 	for i, c := range cases {
 		if len(c.Sample) < 2 {
 			return nil, fmt.Errorf("%w: case %d: %d sample values, at least 2 needed", ErrBacktest, i+1, len(c.Sample))
+		}
+		if c.Reference == nil && n < 3 {
+			return nil, fmt.Errorf("%w: case %d: the leave-one-out climatology needs at least 3 cases", ErrBacktest, i+1)
 		}
 		if c.Reference != nil && len(c.Reference) < 2 {
 			return nil, fmt.Errorf("%w: case %d: %d reference values, at least 2 needed", ErrBacktest, i+1, len(c.Reference))

@@ -63,8 +63,10 @@
 // # Monte Carlo error of tail statistics
 //
 // Quantile gives a type 4 quantile (as sim.Summarize) with a
-// distribution-free interval between two order statistics and the standard
-// error (X₍K₎ − X₍J₎)/(2·1.96). Shortfall gives the expected shortfall as the
+// distribution-free interval between two order statistics X₍J₎ and X₍K₎
+// and the standard error (X₍K₎ − X₍J₎)/(2z), z = 1.96 for an interval of
+// exactly 95 % and Φ⁻¹(½ + ½c) for the coverage c ≥ 95 % the integer ranks
+// reach. Shortfall gives the expected shortfall as the
 // mean of the worst ⌈α·N⌉ paths (as sim.Summarize) with its asymptotic
 // standard error from the tail sample. PathsNeeded turns a standard error
 // into the number of paths that reaches a target one.

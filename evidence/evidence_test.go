@@ -289,15 +289,19 @@ func TestEvaluateRejectsBadData(t *testing.T) {
 		want  string
 	}{
 		{"one case", []Case{{Sample: good, Observed: 1}}, "1 cases"},
-		{"short sample", []Case{{Sample: good, Observed: 1}, {Sample: good[:1], Observed: 2}}, "case 2: 1 sample values"},
-		{"NaN observed", []Case{{Sample: good, Observed: math.NaN()}, {Sample: good, Observed: 2}}, "case 1: observed value NaN"},
-		{"Inf in sample", []Case{{Sample: good, Observed: 1}, {Sample: []float64{1, math.Inf(1)}, Observed: 2}}, "case 2: sample value 2 is +Inf"},
-		{"short reference", []Case{{Sample: good, Observed: 1, Reference: []float64{}}, {Sample: good, Observed: 2}}, "case 1: 0 reference values"},
+		{"short sample", []Case{{Sample: good, Observed: 1}, {Sample: good[:1], Observed: 2}, {Sample: good, Observed: 3}}, "case 2: 1 sample values"},
+		{"two cases, leave-one-out", []Case{{Sample: good, Observed: 1}, {Sample: good, Observed: 2}}, "case 1: the leave-one-out climatology needs at least 3 cases"},
+		{"NaN observed", []Case{{Sample: good, Observed: math.NaN(), Reference: good}, {Sample: good, Observed: 2, Reference: good}}, "case 1: observed value NaN"},
+		{"Inf in sample", []Case{{Sample: good, Observed: 1, Reference: good}, {Sample: []float64{1, math.Inf(1)}, Observed: 2, Reference: good}}, "case 2: sample value 2 is +Inf"},
+		{"short reference", []Case{{Sample: good, Observed: 1, Reference: []float64{}}, {Sample: good, Observed: 2, Reference: good}}, "case 1: 0 reference values"},
 	} {
 		_, err := Evaluate(c.cases)
 		if !errors.Is(err, ErrBacktest) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: error %v, want one containing %q", c.name, err, c.want)
 		}
+	} // Two cases are enough with explicit references.
+	if _, err := Evaluate([]Case{{Sample: good, Observed: 1, Reference: good}, {Sample: good, Observed: 2, Reference: good}}); err != nil {
+		t.Errorf("two cases with references: %v", err)
 	}
 }
 
