@@ -32,7 +32,7 @@ func contract(kind Kind, k, limit float64) Contract {
 
 // A swap is a call bought and a put sold at the same strike (put–call
 // parity of the payouts, max(x, 0) − max(−x, 0) = x; Hull, Options, Futures
-// and Other Derivatives, ch. 11, from memory).
+// and Other Derivatives, from memory).
 func TestSwapIsCallMinusPut(t *testing.T) {
 	t.Parallel()
 	inf := math.Inf(1)
@@ -80,7 +80,7 @@ func TestLimitCaps(t *testing.T) {
 
 // A collar is a call at the high strike bought and a put at the low strike
 // sold, each leg capped by the same limit (the definition in the package
-// doc; Hull, ch. 12 on range forwards, from memory).
+// doc; range forwards in Hull, Options, Futures and Other Derivatives, from memory).
 func TestCollarIsItsLegs(t *testing.T) {
 	t.Parallel()
 	for _, limit := range []float64{math.Inf(1), 5e5} {
