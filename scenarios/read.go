@@ -6,13 +6,12 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"regexp"
-	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
 	"wxstress/calendar"
+	"wxstress/internal/tomlpos"
 )
 
 // ErrScenario is wrapped by every error about a scenario file's content.
@@ -54,21 +53,14 @@ func Parse(src []byte, file string) (*Scenario, error) {
 	var s Scenario
 	md, err := toml.Decode(string(src), &s)
 	if err != nil {
-		var pe toml.ParseError
-		if errors.As(err, &pe) {
-			return nil, &KeyError{file, pe.Position.Line, "", "TOML syntax: " + pe.Message}
-		}
-		// Type mismatches come as plain errors:
-		// `toml: line 2 (last key "shift.uniform"): incompatible types: ...`.
-		if m := typeErr.FindStringSubmatch(err.Error()); m != nil {
-			line, _ := strconv.Atoi(m[1])
-			return nil, &KeyError{file, line, m[2], m[3]}
+		if line, key, msg, ok := tomlpos.Split(err); ok {
+			return nil, &KeyError{file, line, key, msg}
 		}
 		return nil, fmt.Errorf("%s: %w: %v", file, ErrScenario, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		k := und[0].String()
-		return nil, &KeyError{file, keyLine(src, und[0]), k, "unknown key; valid keys are " + validKeys(und[0])}
+		return nil, &KeyError{file, tomlpos.Line(src, und[0], -1), k, "unknown key; valid keys are " + validKeys(und[0])}
 	}
 	if s.Name == "" {
 		s.Name = strings.TrimSuffix(filepath.Base(file), filepath.Ext(file))
@@ -77,14 +69,12 @@ func Parse(src []byte, file string) (*Scenario, error) {
 		var ke *KeyError
 		if errors.As(err, &ke) {
 			ke.File = file
-			ke.Line = keyLine(src, toml.Key(strings.Split(ke.Key, ".")))
+			ke.Line = tomlpos.Line(src, toml.Key(strings.Split(ke.Key, ".")), -1)
 		}
 		return nil, err
 	}
 	return &s, nil
 }
-
-var typeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]+)"\): (.*)$`)
 
 // valid lists the keys of each table, for messages.
 var valid = map[string]string{
@@ -104,29 +94,6 @@ func validKeys(k toml.Key) string {
 		}
 	}
 	return valid[""]
-}
-
-// keyLine finds the line that sets key (its table header for a table key),
-// or 0.
-func keyLine(src []byte, key toml.Key) int {
-	table := ""
-	want := strings.Join(key[:len(key)-1], ".")
-	last := key[len(key)-1]
-	header := regexp.MustCompile(`^\s*\[\[?\s*([A-Za-z0-9_.-]+)\s*\]\]?`)
-	assign := regexp.MustCompile(`^\s*"?([A-Za-z0-9_-]+)"?\s*=`)
-	for i, line := range strings.Split(string(src), "\n") {
-		if m := header.FindStringSubmatch(line); m != nil {
-			table = m[1]
-			if len(key) == 1 && table == last {
-				return i + 1
-			}
-			continue
-		}
-		if m := assign.FindStringSubmatch(line); m != nil && m[1] == last && table == want {
-			return i + 1
-		}
-	}
-	return 0
 }
 
 // check validates ranges; its KeyErrors carry the key only.
