@@ -241,14 +241,16 @@ func ParseHolidayRule(s string) (HolidayRule, error) {
 		return parseEaster(rest, fail)
 	}
 	w := strings.Fields(text)
+	orig := strings.Fields(s) // as written, for messages
 	if len(w) == 4 && w[2] == "of" {
 		w = []string{w[0], w[1], w[3]}
+		orig = []string{orig[0], orig[1], orig[3]}
 	}
 	switch {
 	case len(w) == 2 && w[0] == "fixed":
 		md, err := Parse("2000-" + w[1]) // a leap year, so 02-29 is accepted
 		if err != nil || len(w[1]) != 5 {
-			return fail("%q is not a month and day of the form MM-DD (12-25)", w[1])
+			return fail("%q is not a month and day of the form MM-DD (12-25)", orig[1])
 		}
 		_, m, d := md.YMD()
 		return HolidayRule{Kind: FixedDate, Month: m, Day: d}, nil
@@ -265,16 +267,19 @@ func ParseHolidayRule(s string) (HolidayRule, error) {
 		return r, nil
 	case len(w) == 3:
 		n, okN := ordinal(w[0])
+		if !okN && w[0][0] >= '0' && w[0][0] <= '9' {
+			return fail("%q is not 1..4 or last (first..fourth and 1st..4th too)", orig[0])
+		}
 		if !okN {
-			return fail("%q is not 1..4 or last (first..fourth and 1st..4th too): want %s", w[0], RuleForms)
+			break
 		}
 		wd, ok := weekdayNamed(w[1])
 		if !ok {
-			return fail("%q is not a weekday: want Mon, Tue, Wed, Thu, Fri, Sat, Sun or the full name", w[1])
+			return fail("%q is not a weekday: want Mon, Tue, Wed, Thu, Fri, Sat, Sun or the full name", orig[1])
 		}
 		m, ok := monthNamed(w[2])
 		if !ok {
-			return fail("%q is not a month: want Jan..Dec or the full name", w[2])
+			return fail("%q is not a month: want Jan..Dec or the full name", orig[2])
 		}
 		switch {
 		case n == 0:

@@ -230,8 +230,8 @@ func TestParseHolidayRuleErrors(t *testing.T) {
 		{"5 Thu Nov", `a fifth Thursday is not in every November: use last Thu Nov`},
 		{"fifth friday of march", `a fifth Friday is not in every March: use last Fri Mar`},
 		{"0 Thu Nov", `"0" is not 1..4 or last`},
-		{"4 Thx Nov", `"thx" is not a weekday: want Mon, Tue`},
-		{"4 Thu Novembr", `"novembr" is not a month: want Jan..Dec`},
+		{"4 Thx Nov", `"Thx" is not a weekday: want Mon, Tue`},
+		{"4 Thu Novembr", `"Novembr" is not a month: want Jan..Dec`},
 		{"fixed 02-30", `"02-30" is not a month and day of the form MM-DD`},
 		{"fixed 2-3", `"2-3" is not a month and day`},
 		{"31 April", "April has no day 31"},
@@ -290,4 +290,24 @@ func ExampleParseHolidayRule() {
 	// last Mon May  last Monday of May           2024-05-27
 	// easter -2     Easter − 2 days              2024-03-29
 	// easter +1     Easter + 1 day               2024-04-01
+}
+
+// FuzzParseHolidayRule checks that whatever parses is a valid rule that
+// reads back from its own String, and has a day in a leap year.
+func FuzzParseHolidayRule(f *testing.F) {
+	for _, s := range []string{"fixed 12-25", "4 Thu Nov", "last Mon May", "easter -2", "Easter + 39 days", "25 December", "5 mon may", ""} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		r, err := ParseHolidayRule(s)
+		if err != nil {
+			return
+		}
+		if back, err := ParseHolidayRule(r.String()); err != nil || back != r {
+			t.Fatalf("%q parsed as %+v, which reads back as %+v, %v", s, r, back, err)
+		}
+		if _, ok := r.In(2024); !ok {
+			t.Fatalf("%q has no day in 2024", s)
+		}
+	})
 }
