@@ -1,10 +1,3 @@
-// Package calendar holds the civil-date arithmetic the rest of wxstress shares:
-// a Date is a whole day of the proleptic Gregorian calendar, counted from
-// 1970-01-01, with no time of day and no time zone.
-//
-// The model's time axis (the t of the trend and the seasonal cycle) counts days
-// from Epoch, 2000-01-01; ModelTime converts. All functions are safe for
-// concurrent use.
 package calendar
 
 import (

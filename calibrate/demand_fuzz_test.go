@@ -37,7 +37,7 @@ func FuzzReadDemand(f *testing.F) {
 			data = []byte(strings.Join(lines, "\n") + "\n")
 		}
 		const name = "fuzz.csv"
-		d, err := ReadDemand(bytes.NewReader(data), name, DemandReadOptions{Holidays: []calendar.Date{start + 3}})
+		d, err := ReadDemand(bytes.NewReader(data), name, DemandReadOptions{Holidays: &Holidays{Dates: []calendar.Date{start + 3}}})
 		if err != nil {
 			var list ErrorList
 			if !errors.As(err, &list) || !errors.Is(err, ErrBadInput) {

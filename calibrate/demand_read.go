@@ -1,7 +1,6 @@
 package calibrate
 
 import (
-	"bufio"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -18,10 +17,11 @@ import (
 // DemandReadOptions controls how ReadDemand interprets a file. The zero value
 // reads the file's own holiday column, if any, and nothing else.
 type DemandReadOptions struct {
-	// Holidays are holiday dates from a separate list (see ReadHolidays),
-	// merged with the file's holiday column: a day is a holiday when either
-	// says so. Dates outside the demand record are ignored.
-	Holidays []calendar.Date
+	// Holidays is a separate holiday list (see ReadHolidays), merged with
+	// the file's holiday column: a day is a holiday when either says so.
+	// Its rules are expanded over the calendar years of the demand record;
+	// dates outside the record are ignored. Nil means no list.
+	Holidays *Holidays
 	// HolidaysName names the list in messages and in the model file.
 	HolidaysName string
 }
@@ -47,6 +47,10 @@ type DemandSeries struct {
 	Holidays      int    // rows marked as holidays (column or list)
 	Warnings      []string
 	SHA256        string // hex SHA-256 of the input bytes
+	// HolidayListDates and HolidayRules describe the merged holiday list:
+	// how many dates it gives as such, and its rules in words.
+	HolidayListDates int
+	HolidayRules     []string
 }
 
 // DaysWithLoad returns the number of rows with a load.
@@ -267,18 +271,24 @@ func (p *demandParser) series() (*DemandSeries, error) {
 		return nil, p.errs
 	}
 	d.Absent = int(d.Dates[len(d.Dates)-1]-d.Dates[0]) + 1 - len(d.Dates)
-	if len(p.opt.Holidays) > 0 {
+	if h := p.opt.Holidays; h != nil && len(h.Dates)+len(h.Rules) > 0 {
 		d.HolidaysFile = p.opt.HolidaysName
+		d.HolidayListDates, d.HolidayRules = len(h.Dates), h.RuleTexts()
+		first, last := d.Dates[0], d.Dates[len(d.Dates)-1]
 		matched := 0
-		for _, h := range p.opt.Holidays {
-			if i, ok := slices.BinarySearch(d.Dates, h); ok {
+		for _, day := range h.In(first.Year(), last.Year()) {
+			if i, ok := slices.BinarySearch(d.Dates, day); ok {
 				d.Holiday[i] = true
 				matched++
 			}
 		}
 		if matched == 0 {
-			d.Warnings = append(d.Warnings, fmt.Sprintf("none of the %d dates in the holiday list %s falls on a day of the demand record (%s to %s)",
-				len(p.opt.Holidays), p.opt.HolidaysName, d.Dates[0], d.Dates[len(d.Dates)-1]))
+			what := fmt.Sprintf("%d dates", len(h.Dates))
+			if len(h.Rules) > 0 {
+				what = fmt.Sprintf("%d dates and %d rules", len(h.Dates), len(h.Rules))
+			}
+			d.Warnings = append(d.Warnings, fmt.Sprintf("none of the %s in the holiday list %s falls on a day of the demand record (%s to %s)",
+				what, p.opt.HolidaysName, first, last))
 		}
 	}
 	for _, h := range d.Holiday {
@@ -287,83 +297,4 @@ func (p *demandParser) series() (*DemandSeries, error) {
 		}
 	}
 	return d, nil
-}
-
-// ReadHolidaysFile opens path and reads it with ReadHolidays.
-func ReadHolidaysFile(path string) ([]calendar.Date, error) {
-	return readPath(path, func(r io.Reader) ([]calendar.Date, error) { return ReadHolidays(r, path) })
-}
-
-// ReadHolidays reads a list of holiday dates: either one ISO date
-// (YYYY-MM-DD) per line, or CSV whose header has a date column (date or
-// day; other columns, such as a name, are ignored). Lines starting with #
-// are comments; blank lines are skipped; the order of the dates does not
-// matter and repeats are harmless. It returns the dates sorted, without
-// repeats. Bad dates are reported as an ErrorList of *PosError, like
-// ReadCSV's.
-func ReadHolidays(r io.Reader, name string) ([]calendar.Date, error) {
-	br := bufio.NewReader(r)
-	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
-		br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	cr.Comment = '#'
-	p := &parser{name: name, cr: cr}
-	col := -1 // the date column; -1 until the first record decides
-	var dates []calendar.Date
-	for {
-		record, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			if fatal := p.csvError(err, record); fatal != nil {
-				return nil, fatal
-			}
-			continue
-		}
-		if blank(record) {
-			continue
-		}
-		if col < 0 {
-			for i, f := range record {
-				if slicesIndexFold(dateNames, strings.TrimSpace(f)) >= 0 {
-					col = i
-					break
-				}
-			}
-			if col >= 0 {
-				continue // a header row
-			}
-			col = 0 // a plain list: the date is the first field
-		}
-		if col >= len(record) {
-			line, _ := cr.FieldPos(0)
-			p.errorf(line, 0, "", "no date: the row has %d fields, the date is field %d", len(record), col+1)
-			continue
-		}
-		raw := strings.TrimSpace(record[col])
-		line, c := cr.FieldPos(col)
-		d, err := calendar.Parse(raw)
-		if err != nil {
-			if raw == "" {
-				p.errorf(line, c, "", "missing date")
-			} else {
-				p.errorf(line, c, "", "not a date of the form YYYY-MM-DD: %s", quote(raw))
-			}
-			continue
-		}
-		dates = append(dates, d)
-	}
-	if len(p.errs) > 0 {
-		return nil, p.errs
-	}
-	if len(dates) == 0 {
-		p.errorf(0, 0, "", "no holiday dates")
-		return nil, p.errs
-	}
-	slices.Sort(dates)
-	return slices.Compact(dates), nil
 }

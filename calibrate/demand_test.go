@@ -432,66 +432,6 @@ func TestReadDemandGapsAndColumns(t *testing.T) {
 	}
 }
 
-func TestReadHolidays(t *testing.T) {
-	t.Parallel()
-	want := []calendar.Date{calendar.FromYMD(2021, 1, 1), calendar.FromYMD(2021, 3, 14), calendar.FromYMD(2021, 12, 25)}
-	check := func(name string, got []calendar.Date, err error) {
-		t.Helper()
-		if err != nil {
-			t.Fatalf("%s: %v", name, err)
-		}
-		if fmt.Sprint(got) != fmt.Sprint(want) {
-			t.Errorf("%s: %v, want %v", name, got, want)
-		}
-	}
-	// A plain list, out of order, with a repeat, a comment and a blank line.
-	got, err := ReadHolidays(strings.NewReader("# Kestrel Bay public holidays\n2021-12-25\n\n2021-01-01\n2021-03-14\n2021-01-01\n"), "h.txt")
-	check("list", got, err)
-	// CSV with a date column that is not the first.
-	got, err = ReadHolidays(strings.NewReader("name,Date\nNew Year's Day,2021-01-01\nFounders' Day,2021-03-14\n\"Christmas Day, observed\",2021-12-25\n"), "h.csv")
-	check("csv", got, err)
-	got, err = ReadHolidaysFile("testdata/demand/holidays.csv")
-	check("file", got, err)
-
-	for _, c := range []struct{ in, want string }{
-		{"2021-01-01\n2021-02-30\n", `h.txt:2:1: not a date of the form YYYY-MM-DD: "2021-02-30"`},
-		{"name,date\nNew Year,2021-01-01\nFounders,14/03/2021\n", `h.txt:3:10: not a date of the form YYYY-MM-DD: "14/03/2021"`},
-		{"name,date\nNew Year\n", `h.txt:2: no date: the row has 1 fields, the date is field 2`},
-		{"# nothing\n", `h.txt: no holiday dates`},
-	} {
-		_, err := ReadHolidays(strings.NewReader(c.in), "h.txt")
-		if err == nil || err.Error() != c.want || !errors.Is(err, ErrBadInput) {
-			t.Errorf("%q: error %v, want %s", c.in, err, c.want)
-		}
-	}
-}
-
-func TestReadDemandMergesHolidayList(t *testing.T) {
-	t.Parallel()
-	start := calendar.FromYMD(2021, time.January, 1)
-	text := demandCSV(start, 400, func(i int, r string) string {
-		if i == 1 { // the file marks 2 January itself
-			return fmt.Sprintf("%s,100,1", start+1)
-		}
-		return r
-	})
-	list := []calendar.Date{start, start + 1, start + 72, calendar.FromYMD(2030, 1, 1)}
-	d, err := ReadDemand(strings.NewReader(text), "d.csv", DemandReadOptions{Holidays: list, HolidaysName: "h.txt"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if d.Holidays != 3 || !d.Holiday[0] || !d.Holiday[1] || !d.Holiday[72] || d.Holiday[2] || d.HolidaysFile != "h.txt" {
-		t.Errorf("holidays %d (first days %v), file %q; want 3 (1 Jan, 2 Jan, 14 Mar)", d.Holidays, d.Holiday[:3], d.HolidaysFile)
-	}
-	if len(d.Warnings) != 0 {
-		t.Errorf("warnings %q", d.Warnings)
-	}
-	d, err = ReadDemand(strings.NewReader(text), "d.csv", DemandReadOptions{Holidays: list[3:], HolidaysName: "h.txt"})
-	if err != nil || len(d.Warnings) != 1 || !strings.Contains(d.Warnings[0], "none of the 1 dates in the holiday list h.txt") {
-		t.Errorf("unmatched list: %v, warnings %q", err, d.Warnings)
-	}
-}
-
 // TestDemandRecoversDemoTruth fits the invented Lanternfield Energy send-out,
 // whose generating model is in demo/TRUTH.md (written by demo/gen):
 //

@@ -214,6 +214,11 @@ type DemandData struct {
 	// dropped from the fit.
 	MissingTemperature int `json:"missing_temperature"`
 	Holidays           int `json:"holidays"` // holiday days among those used
+	// HolidayListDates and HolidayRules describe the holiday list
+	// (HolidaysFile), when one was given: how many dates it lists as such,
+	// and its yearly rules in words ("fourth Thursday of November").
+	HolidayListDates int      `json:"holiday_list_dates,omitempty"`
+	HolidayRules     []string `json:"holiday_rules,omitempty"`
 }
 
 // FormScore is one row of the form table: the best fit of a form over the

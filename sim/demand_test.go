@@ -2,6 +2,7 @@ package sim
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -205,18 +206,100 @@ func sortedCopy(x []float64) []float64 {
 	return y
 }
 
-func TestFixedDateHolidays(t *testing.T) {
+func TestHolidayDates(t *testing.T) {
 	t.Parallel()
 	in := []calendar.Date{calendar.FromYMD(2021, time.December, 25), calendar.FromYMD(2022, time.December, 25),
 		calendar.FromYMD(2020, time.February, 29)}
-	got := FixedDateHolidays(in, 2025)
-	want := []string{"2024-12-25", "2025-12-25", "2024-02-29"}
-	if len(got) != len(want) {
-		t.Fatalf("got %v", got)
+	// Listed dates keep their month and day; 29 February only in the leap
+	// year 2024. US Thanksgiving, the fourth Thursday of November: 2023-11-23,
+	// 2024-11-28, 2025-11-27 (common practice).
+	got := HolidayDates(in, []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November)}, 2023, 2025)
+	want := "[2023-11-23 2023-12-25 2024-02-29 2024-11-28 2024-12-25 2025-11-27 2025-12-25]"
+	if fmt.Sprint(got) != want {
+		t.Errorf("HolidayDates = %v\nwant           %s", got, want)
 	}
-	for i, d := range got {
-		if d.String() != want[i] {
-			t.Errorf("holiday %d = %s, want %s", i, d, want[i])
+	if got := HolidayDates(in, nil, 2025, 2025); fmt.Sprint(got) != "[2025-12-25]" {
+		t.Errorf("one common year: %v", got)
+	}
+}
+
+// TestHolidaysAcrossHeatingSeason runs the heating season of 2025, 1
+// November 2024 to 31 March 2025, with holidays from rules and a listed
+// date: each rule must give its day in both calendar years, and each
+// holiday in the season must lower the season's energy by exactly the
+// holiday coefficient on every path (the noise does not depend on the
+// calendar, so both runs share it).
+func TestHolidaysAcrossHeatingSeason(t *testing.T) {
+	t.Parallel()
+	m := seasonalModel([]float64{0.72})
+	cfg := Config{Paths: 200, Seed: 11, Year: 2025, Periods: []string{"heating"}, Bases: DefaultBases("C"), Demand: testDemand()}
+	first, last, err := SimulatedYears(m, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if first > 2024 || last != 2025 {
+		t.Fatalf("simulated years %d..%d, want ..2024 to 2025", first, last)
+	}
+	// Common practice: US Thanksgiving (fourth Thursday of November),
+	// 2024-11-28; Martin Luther King Jr. Day (third Monday of January),
+	// 2025-01-20; New Year's Day. Shrove Tuesday is Easter − 47 days: Easter
+	// 2025 is 20 April (published Easter tables, from memory), so 4 March.
+	rules := []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November), calendar.Nth(3, time.Monday, time.January),
+		calendar.Fixed(time.January, 1), calendar.Easter(-47)}
+	listed := []calendar.Date{calendar.FromYMD(2019, time.December, 25)}
+	cfg.Holidays = HolidayDates(listed, rules, first, last)
+	for _, r := range rules {
+		for _, y := range []int{2024, 2025} {
+			if d, _ := r.In(y); !slices.Contains(cfg.Holidays, d) {
+				t.Errorf("%s in %d (%s) is not among the simulated holidays", r, y, d)
+			}
 		}
+	}
+	inSeason := []string{"2024-11-28", "2024-12-25", "2025-01-01", "2025-01-20", "2025-03-04"}
+	var got []string
+	for _, d := range cfg.Holidays {
+		if d >= calendar.FromYMD(2024, time.November, 1) && d <= calendar.FromYMD(2025, time.March, 31) {
+			got = append(got, d.String())
+		}
+	}
+	if !slices.Equal(got, inSeason) {
+		t.Errorf("holidays in the season %v, want %v", got, inSeason)
+	}
+
+	with := run(t, m, cfg)
+	cfg.Holidays = nil
+	without := run(t, m, cfg)
+	const tol = 1e-6 // GJ; the season sums about 10⁷ GJ, rounding is near 10⁻⁹
+	a, b := column(t, with, Energy, "heating"), column(t, without, Energy, "heating")
+	want := float64(len(inSeason)) * testDemand().Holiday
+	for i := range a {
+		if math.Abs(a[i]-b[i]-want) > tol {
+			t.Fatalf("path %d: energy change %v, want %v", i, a[i]-b[i], want)
+		}
+	}
+}
+
+func TestSimulatedYears(t *testing.T) {
+	t.Parallel()
+	m := seasonalModel([]float64{0.72}) // data end: see flatModel
+	end := m.Data.LastDate
+	for _, c := range []struct {
+		cfg         Config
+		first, last int
+	}{
+		// A conditional start simulates from the day after the data end.
+		{Config{Paths: 1, Year: end.Year() + 3, Start: StartConditional, Periods: []string{"year"}}, (end + 1).Year(), end.Year() + 3},
+		// A climatological start: the burn-in of a few weeks before 1 May.
+		{Config{Paths: 1, Year: 2030, Periods: []string{"cooling"}}, 2030, 2030},
+		// The heating season of 2030 starts on 1 November 2029.
+		{Config{Paths: 1, Year: 2030, Periods: []string{"jan", "heating"}}, 2029, 2030},
+	} {
+		first, last, err := SimulatedYears(m, c.cfg)
+		if err != nil || first != c.first || last != c.last {
+			t.Errorf("%+v: %d..%d, %v; want %d..%d", c.cfg.Periods, first, last, err, c.first, c.last)
+		}
+	}
+	if _, _, err := SimulatedYears(m, Config{Paths: 1, Year: end.Year(), Start: StartConditional, Periods: []string{"year"}}); err == nil {
+		t.Error("a conditional start before the data end was accepted")
 	}
 }

@@ -3,6 +3,7 @@ package sim
 import (
 	"context"
 	"fmt"
+	"slices"
 
 	"wxstress/calendar"
 	"wxstress/model"
@@ -72,23 +73,25 @@ func WeatherNormalize(ctx context.Context, m *model.File, d *model.Demand, cfg C
 	return out, nil
 }
 
-// FixedDateHolidays repeats the month and day of each listed date in the
-// target year and the year before it (the years a run can span): holidays
-// treated as fixed-date, as most public holidays are; movable ones are only
-// approximated. A 29 February is kept only in leap years.
-func FixedDateHolidays(dates []calendar.Date, year int) []calendar.Date {
-	seen := map[calendar.Date]bool{}
+// HolidayDates returns the simulated holidays of the calendar years
+// fromYear..toYear (see SimulatedYears): the month and day of each listed
+// date repeated in every one of those years, as fixed-date holidays (a 29
+// February only in leap years), and each rule's day in every one of them;
+// sorted, without repeats. Movable holidays belong in rules: a listed date
+// keeps its month and day.
+func HolidayDates(dates []calendar.Date, rules []calendar.HolidayRule, fromYear, toYear int) []calendar.Date {
 	var out []calendar.Date
 	for _, d := range dates {
 		_, m, day := d.YMD()
-		for _, y := range []int{year - 1, year} {
-			h := calendar.FromYMD(y, m, day)
-			if _, hm, _ := h.YMD(); hm != m || seen[h] {
-				continue // 29 February of a common year
+		for y := fromYear; y <= toYear; y++ {
+			if h := calendar.FromYMD(y, m, day); h.Month() == m {
+				out = append(out, h)
 			}
-			seen[h] = true
-			out = append(out, h)
 		}
 	}
-	return out
+	for _, r := range rules {
+		out = append(out, r.Dates(fromYear, toYear)...)
+	}
+	slices.Sort(out)
+	return slices.Compact(out)
 }

@@ -137,25 +137,36 @@ func burnInDays(phi []float64) int {
 	return min(max(b, 30), 5000)
 }
 
-func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
-	from, to := periods[0].From, periods[0].To
+// simulatedSpan returns the first simulated day and the first and last day
+// of the periods: a conditional start begins the day after the data end, a
+// climatological one a burn-in before the periods.
+func simulatedSpan(m *model.File, cfg *Config, periods []Period) (first, from, to calendar.Date, err error) {
+	from, to = periods[0].From, periods[0].To
 	for _, p := range periods[1:] {
 		from, to = min(from, p.From), max(to, p.To)
 	}
+	if cfg.Start != StartConditional {
+		return from - calendar.Date(burnInDays(m.AR.Phi)), from, to, nil
+	}
+	if from <= m.Data.LastDate {
+		return 0, 0, 0, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
+			"choose periods that start later (e.g. --period year), a later --year, or --start climate",
+			m.Data.LastDate, periodStarting(periods, from), from)
+	}
+	return m.Data.LastDate + 1, from, to, nil
+}
+
+func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	pl := &plan{bases: cfg.Bases}
 	pl.p = len(m.AR.Phi)
 	copy(pl.phi[:], m.AR.Phi)
-	switch cfg.Start {
-	case StartConditional:
-		if from <= m.Data.LastDate {
-			return nil, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
-				"choose periods that start later (e.g. --period year), a later --year, or --start climate",
-				m.Data.LastDate, periodStarting(periods, from), from)
-		}
-		pl.first = m.Data.LastDate + 1
+	first, from, to, err := simulatedSpan(m, cfg, periods)
+	if err != nil {
+		return nil, err
+	}
+	pl.first = first
+	if cfg.Start == StartConditional {
 		copy(pl.x0[:], m.AR.Last)
-	default:
-		pl.first = from - calendar.Date(burnInDays(m.AR.Phi))
 	}
 	if sl := m.Slow; sl != nil {
 		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)

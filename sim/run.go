@@ -28,7 +28,8 @@ type Config struct {
 	// Demand, when set, adds daily demand D = Expected(T, weekday,
 	// holiday) + u, u an AR(1), and the demand indices of each period.
 	Demand *model.Demand
-	// Holidays are the days simulated as holidays (demand only).
+	// Holidays are the days simulated as holidays (demand only); see
+	// HolidayDates and SimulatedYears.
 	Holidays []calendar.Date
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
@@ -160,19 +161,47 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 // prepare validates cfg (filling in its defaults), resolves its periods and
 // builds the run's plan.
 func prepare(m *model.File, cfg *Config) (*plan, []Period, error) {
-	if err := cfg.Validate(m); err != nil {
+	periods, err := validPeriods(m, cfg)
+	if err != nil {
 		return nil, nil, err
+	}
+	pl, err := newPlan(m, cfg, periods)
+	return pl, periods, err
+}
+
+// validPeriods validates cfg, filling in its defaults, and resolves its
+// periods.
+func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
+	if err := cfg.Validate(m); err != nil {
+		return nil, err
 	}
 	periods := make([]Period, len(cfg.Periods))
 	for i, name := range cfg.Periods {
 		p, err := ParsePeriod(name, cfg.Year)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		periods[i] = p
 	}
-	pl, err := newPlan(m, cfg, periods)
-	return pl, periods, err
+	return periods, nil
+}
+
+// SimulatedYears returns the first and last calendar year of the days a run
+// of cfg on m simulates, the years whose holidays it needs (HolidayDates):
+// the last is the target year; the first is earlier when a period crosses
+// the year end (the heating season of Y starts in Y−1), by the burn-in of a
+// climatological start, or back to the day after the data end for a
+// conditional start. Errors are those Run would return for cfg.
+func SimulatedYears(m *model.File, cfg Config) (first, last int, err error) {
+	periods, err := validPeriods(m, &cfg)
+	if err != nil {
+		return 0, 0, err
+	}
+	start, _, end, err := simulatedSpan(m, &cfg, periods)
+	if err != nil {
+		return 0, 0, err
+	}
+	return start.Year(), end.Year(), nil
 }
 
 // segStats are one path's accumulators over one segment.

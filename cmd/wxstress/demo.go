@@ -121,7 +121,12 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	}
 	year := targetYear(m, 0)
 	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Year: year, Bases: sim.DefaultBases(m.Data.Units),
-		Demand: d, Capacity: demoCapacity, Holidays: sim.FixedDateHolidays(stress.Holidays(days), year)}
+		Demand: d, Capacity: demoCapacity}
+	first, last, err := sim.SimulatedYears(m, cfg)
+	if err != nil {
+		return err
+	}
+	cfg.Holidays = sim.HolidayDates(stress.Holidays(days), nil, first, last)
 	runs, err := simulateAll(ctx, stderr, m, cfg, scens, nil, true)
 	if err != nil {
 		return err

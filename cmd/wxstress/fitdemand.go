@@ -32,7 +32,14 @@ residual diagnostics.
 The demand CSV needs a header with a date column (YYYY-MM-DD) and a load
 column (load, demand, consumption or value), and may have a holiday column
 (1/0, true/false, yes/no). Empty, NA and -9999 loads are gaps. --holidays adds
-a list of holiday dates: one YYYY-MM-DD per line, or CSV with a date column.
+a holiday list of dates and yearly rules: one per line, or CSV with a date
+column, a rule column or both (and optionally a name column). A date is
+YYYY-MM-DD; a rule is one of
+  fixed 12-25      25 December every year
+  4 Thu Nov        fourth Thursday of November (1..4; 1st..4th; first..fourth)
+  last Mon May     last Monday of May
+  easter -2        Easter Sunday −2 days (easter, easter +1, easter +39, ...)
+Rules give their day in every year of the demand record.
 The temperature CSV is read as by 'wxstress fit'; every demand day must lie
 within it, and days without a temperature are left out.`,
 	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --out demand.json
@@ -60,7 +67,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
 	fs.StringVar(&o.demand, "demand", "", "daily demand CSV: date, load and an optional holiday column (required)")
 	fs.StringVar(&o.unit, "unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
-	fs.StringVar(&o.holidays, "holidays", "", "holiday dates: one YYYY-MM-DD per line, or CSV with a date column")
+	fs.StringVar(&o.holidays, "holidays", "", "holiday dates and rules (fixed 12-25, 4 Thu Nov, last Mon May, easter -2): one per line, or CSV with a date and/or rule column")
 	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandForms, ", "))
 	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")

@@ -95,6 +95,48 @@ func TestFitDemandJSON(t *testing.T) {
 	}
 }
 
+// TestFitDemandHolidayRules fits with a holiday list of a date and rules:
+// the rules are expanded over the record's years (2021..2025) and shown in
+// the summary and the model file.
+func TestFitDemandHolidayRules(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	hol := filepath.Join(dir, "holidays.csv")
+	os.WriteFile(hol, []byte("date,rule,name\n2023-06-05,,Harbour Day\n,first Mon Jun,Harbour Day\n,easter +1,Easter Monday\n"+
+		",fixed 05-01,Labour Day\n"), 0o644)
+	out := filepath.Join(dir, "demand.json")
+	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day",
+		"--form", "5p", "--holidays", hol, "--out", out)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	want := "holidays from " + hol + ": 1 date, 3 rules (first Monday of June, Easter + 1 day, 1 May)"
+	if !strings.Contains(stdout, want) {
+		t.Errorf("summary lacks %q:\n%s", want, stdout)
+	}
+	m, err := model.ReadDemand(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The file marks 30 fixed-date holidays, 1 May among them. The first
+	// Mondays of June (2021-06-07, 2022-06-06, 2023-06-05, 2024-06-03,
+	// 2025-06-02: common practice, the n-th weekday) and the Easter Mondays
+	// (2021-04-05, 2022-04-18, 2023-04-10, 2024-04-01, 2025-04-21: Easter
+	// Sunday + 1, Easter from published tables) add 10.
+	d := m.Data
+	if d.Holidays != 40 || d.HolidayListDates != 1 || strings.Join(d.HolidayRules, "; ") != "first Monday of June; Easter + 1 day; 1 May" {
+		t.Errorf("model data: %d holidays, %d listed dates, rules %q; want 40, 1 and three rules", d.Holidays, d.HolidayListDates, d.HolidayRules)
+	}
+	// A bad rule names its position and the accepted forms.
+	bad := filepath.Join(dir, "bad.csv")
+	os.WriteFile(bad, []byte("date,rule\n,5 Mon May\n"), 0o644)
+	code, _, stderr = callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day", "--holidays", bad)
+	if want := bad + `:2:2: not a holiday rule: "5 Mon May": a fifth Monday is not in every May: use last Mon May`; code != exitFailure ||
+		!strings.Contains(stderr, want) {
+		t.Errorf("bad rule: exit %d, stderr %q; want %q", code, stderr, want)
+	}
+}
+
 func TestFitDemandErrors(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
@@ -128,7 +170,7 @@ func TestFitDemandErrors(t *testing.T) {
 		{[]string{"--temps", demoTemps, "--demand", late, "--unit", "GJ/day"}, exitFailure,
 			late + ":1828:1: field date: date 2026-01-01 is not covered by the temperature record " + demoTemps},
 		{[]string{"--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day", "--holidays", badHol}, exitFailure,
-			badHol + `:2:1: not a date of the form YYYY-MM-DD: "Christmas"`},
+			badHol + `:2:1: not a date (YYYY-MM-DD) or a holiday rule: "Christmas": want fixed MM-DD (fixed 12-25)`},
 		{[]string{"-h"}, exitOK, "Exit status:"},
 	}
 	for _, c := range cases {

@@ -4,11 +4,14 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"sync"
 	"testing"
+
+	"wxstress/model"
 )
 
 // call runs the tool in-process and returns its exit code, stdout and stderr.
@@ -312,6 +315,58 @@ func TestSimulateWithDemand(t *testing.T) {
 	}
 	if code, _, _ := call(t, context.Background(), "simulate", "--model", demoModel(t), "--capacity", "5"); code != exitUsage {
 		t.Errorf("--capacity without --demand: exit %d", code)
+	}
+}
+
+// TestSimulateHolidayRules simulates the heating season of 2026 (the year
+// after the data end), 1 November 2025 to 31 March 2026, with a holiday list
+// of rules and a date. Its holidays are 27 November 2025 (fourth Thursday
+// of November; US Thanksgiving 2025, common practice), 25 December 2025
+// (the listed 2021 date's month and day) and 1 January 2026: three days, so
+// every path's energy, and so its mean, moves by three holiday terms.
+func TestSimulateHolidayRules(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	dem := filepath.Join(dir, "demand.json")
+	if code, _, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
+		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--out", dem); code != 0 {
+		t.Fatalf("fit-demand: %s", stderr)
+	}
+	d, err := model.ReadDemand(dem)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hol := filepath.Join(dir, "holidays.txt")
+	os.WriteFile(hol, []byte("4 Thu Nov\nfixed 01-01\n2021-12-25\nlast Mon May\n"), 0o644)
+	energy := func(extra ...string) float64 {
+		t.Helper()
+		args := append([]string{"simulate", "--model", demoModel(t), "--demand", dem, "--period", "heating",
+			"--paths", "200", "--format", "json"}, extra...)
+		code, out, stderr := call(t, context.Background(), args...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		var doc struct {
+			Indices []struct {
+				Name, Period string
+				Mean         float64
+			}
+		}
+		if err := json.Unmarshal([]byte(out), &doc); err != nil {
+			t.Fatal(err)
+		}
+		for _, r := range doc.Indices {
+			if r.Name == "demand energy" && r.Period == "heating" {
+				return r.Mean
+			}
+		}
+		t.Fatal("no demand energy row")
+		return 0
+	}
+	const tol = 1e-6 // GJ; the means are near 10⁷ GJ
+	with, without := energy("--holidays", hol), energy()
+	if want := 3 * d.Holiday; math.Abs(with-without-want) > tol {
+		t.Errorf("holidays move the mean heating energy by %v, want 3 × %v = %v", with-without, d.Holiday, want)
 	}
 }
 

@@ -84,7 +84,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate a scenario (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
 	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
-	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday dates (YYYY-MM-DD lines or CSV with a date column), repeated every year by month and day")
+	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
@@ -174,11 +174,15 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		}
 		cfg.Capacity = o.capacity
 		if o.holidays != "" {
-			dates, err := calibrate.ReadHolidaysFile(o.holidays)
+			h, err := calibrate.ReadHolidaysFile(o.holidays)
 			if err != nil {
 				return err
 			}
-			cfg.Holidays = sim.FixedDateHolidays(dates, targetYear(m, cfg.Year))
+			first, last, err := sim.SimulatedYears(m, cfg)
+			if err != nil {
+				return err
+			}
+			cfg.Holidays = sim.HolidayDates(h.Dates, h.Rules, first, last)
 		}
 	}
 	start := time.Now()

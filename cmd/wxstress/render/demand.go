@@ -22,6 +22,9 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		e.printf(" (column and %s)", d.HolidaysFile)
 	}
 	e.printf("; loads in %s\n", m.Unit)
+	if list := holidayListText(d); list != "" {
+		e.printf("  holidays from %s: %s\n", d.HolidaysFile, list)
+	}
 
 	writeDemandForms(e, m, u)
 
@@ -182,4 +185,26 @@ func demandLoadDecimals(mean float64) int {
 		return 2
 	}
 	return max(0, 3-int(math.Floor(math.Log10(mean))))
+}
+
+// holidayListText describes the holiday list a demand model was fitted with:
+// "3 dates, 4 rules (fourth Thursday of November, …)"; "" when the model
+// records none (no list, or a file written before rules).
+func holidayListText(d model.DemandData) string {
+	if d.HolidayListDates+len(d.HolidayRules) == 0 {
+		return ""
+	}
+	s := plural(d.HolidayListDates, "date")
+	if n := len(d.HolidayRules); n > 0 {
+		s += fmt.Sprintf(", %s (%s)", plural(n, "rule"), strings.Join(d.HolidayRules, ", "))
+	}
+	return s
+}
+
+// plural writes a count and a noun, with an s unless the count is 1.
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
 }

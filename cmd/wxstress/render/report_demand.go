@@ -44,6 +44,9 @@ func NewDemandView(retailer string, m *model.Demand, temps, loads []float64) *De
 	d := m.Data
 	fact := func(k, format string, a ...any) { v.Facts = append(v.Facts, [2]string{k, fmt.Sprintf(format, a...)}) }
 	fact("data", "%s, %s to %s, %d days fitted (%d holidays)", d.DemandFile, d.FirstDate, d.LastDate, d.Days, d.Holidays)
+	if list := holidayListText(d); list != "" {
+		fact("holiday list", "%s: %s", d.HolidaysFile, list)
+	}
 	fact("change-point form", "%s: %s", m.Form, m.FormRule)
 	fact("base load β0", "%s %s (a Monday that is not a holiday, between the balance points)", num(m.Intercept, dec), u)
 	if m.Heating.Present {

@@ -124,7 +124,7 @@ func buildInput(fx fixture) (*ReportInput, error) {
 		if dres, err = demoDemand(); err != nil {
 			return nil, err
 		}
-		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.FixedDateHolidays(stress.Holidays(dres.Days), cfg.Year)
+		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.HolidayDates(stress.Holidays(dres.Days), nil, cfg.Year-1, cfg.Year)
 	}
 	thresholds := []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
 	var scens []*scenarios.Scenario
