@@ -7,6 +7,7 @@ import (
 	"slices"
 	"time"
 
+	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
@@ -76,14 +77,24 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 		extra += 2
 	}
 	logN := math.Log(float64(base.N))
-	for q := 1; q <= MaxAROrder; q++ {
-		ll := base.LogLik
-		if q > 1 {
-			if ll, err = statespace.ProfileOrder(x, months, base.Params, q); err != nil {
-				return nil, fail(fmt.Sprintf("AR(%d)", q), err)
+	lls := make([]float64, MaxAROrder)
+	lls[0] = base.LogLik
+	var g errgroup.Group
+	for q := 2; q <= MaxAROrder; q++ {
+		g.Go(func() error {
+			ll, err := statespace.ProfileOrder(x, months, base.Params, q)
+			if err != nil {
+				return fail(fmt.Sprintf("AR(%d)", q), err)
 			}
-		}
-		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: -2*ll + float64(q+extra)*logN})
+			lls[q-1] = ll
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	for q := 1; q <= MaxAROrder; q++ {
+		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: -2*lls[q-1] + float64(q+extra)*logN})
 	}
 	best := 0
 	for i, r := range d.ARTable {
