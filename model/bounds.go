@@ -35,9 +35,10 @@ const (
 	// MaxAnomaly bounds |ar.last_anomalies|, observed daily anomalies.
 	MaxAnomaly = 500.0
 	// MaxRootModulus bounds the largest modulus of the AR's roots: below 1
-	// for stationarity, and at most 0.999 so that the anomaly forgets its
-	// start within the burn-in and StationaryGain's 10 000 lags hold all but
-	// 0.999²⁰⁰⁰⁰ ≈ 2·10⁻⁹ of the variance.
+	// for stationarity, and at most 0.999 so that StationaryGain's 10 000
+	// lags hold all but about 0.999²⁰⁰⁰⁰ ≈ 2·10⁻⁹ of the variance, and the
+	// simulator's longest burn-in (5 000 days) leaves at most 0.999⁵⁰⁰⁰ ≈
+	// 0.7 % of the starting state.
 	MaxRootModulus = 0.999
 	// MaxShock bounds |z| of the bootstrap's standardized innovations. A
 	// value standardized by the root mean square of n values is at most √n
@@ -52,6 +53,10 @@ const (
 	// |scenario.events[].delta| (a scenario's 30 °C spell is 54 °F).
 	MaxShift      = 50.0
 	MaxEventDelta = 60.0
+	// MinDataYear and MaxDataYear bound the years of data.first_date and
+	// data.last_date: instrumental records start in the 17th century, and
+	// the simulator's target years end in 2300.
+	MinDataYear, MaxDataYear = 1600, 2299
 )
 
 // CheckPhi reports whether φ₁..φₚ is an AR the simulator runs: finite

@@ -1,11 +1,14 @@
 package model
 
 import (
+	"bytes"
 	"encoding/json"
 	"errors"
 	"math"
 	"strings"
 	"testing"
+
+	"wxstress/calendar"
 )
 
 func TestValidateBounds(t *testing.T) {
@@ -41,6 +44,15 @@ func TestValidateBounds(t *testing.T) {
 			f.Scenario = &Scenario{Events: []Event{{Days: 5, Delta: -61, Window: "01-01:01-31", Probability: 1}}}
 		},
 			"scenario.events[0].delta", "|delta| ≤ 60"},
+		// Found by FuzzDecodeModel (testdata/fuzz/FuzzDecodeModel/bdc833075843ec80):
+		// an event without a window passed Validate and failed in the simulator.
+		{func(f *File) { f.Scenario = &Scenario{Events: []Event{{Days: 1, Probability: 0.1}}} }, "scenario.events[0].window", "MM-DD:MM-DD"},
+		{func(f *File) {
+			f.Scenario = &Scenario{Events: []Event{{Days: 1, Window: "02-30:03-01", Probability: 1}}}
+		}, "scenario.events[0].window", "MM-DD:MM-DD"},
+		{func(f *File) { f.Trend.Epoch = calendar.FromYMD(1970, 1, 1) }, "trend.epoch", "want 2000-01-01"},
+		{func(f *File) { f.Data.FirstDate = calendar.FromYMD(1, 1, 1) }, "data.first_date", "before 1600"},
+		{func(f *File) { f.Data.LastDate = calendar.FromYMD(2400, 1, 1) }, "data.last_date", "after 2299"},
 	}
 	for _, c := range cases {
 		f := valid()
@@ -95,6 +107,30 @@ func TestDecodeSchemaMessages(t *testing.T) {
 		_, err := Decode(b, "m.json")
 		if err == nil || !strings.Contains(err.Error(), c.want) || strings.Contains(err.Error(), "%!") {
 			t.Errorf("schema %v: error %v, want %q", c.schema, err, c.want)
+		}
+	}
+}
+
+// encoding/json matches keys without regard to case; Decode refuses keys
+// that differ from the lower-case names.
+func TestDecodeRefusesUpperCaseKeys(t *testing.T) {
+	t.Parallel()
+	good, err := json.Marshal(valid())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Decode(good, "m.json"); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct{ from, to, key string }{
+		{`"intercept":`, `"Intercept":`, "trend.Intercept"},
+		{`{"k":1`, `{"K":1`, "seasonal.harmonics[0].K"},
+	} {
+		b := bytes.Replace(good, []byte(c.from), []byte(c.to), 1)
+		_, err := Decode(b, "m.json")
+		var ke *KeyError
+		if !errors.As(err, &ke) || ke.Key != c.key || !strings.Contains(err.Error(), "keys are lower case") {
+			t.Errorf("%s: error %v, want key %s", c.to, err, c.key)
 		}
 	}
 }

@@ -8,10 +8,12 @@ import (
 	"math"
 	"math/cmplx"
 	"os"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
+	"wxstress/calendar"
 	"wxstress/internal/atomicfile"
 )
 
@@ -95,6 +97,11 @@ func decodeHeader(b []byte, name, schema string, version int, required []string,
 	} else if v > float64(version) {
 		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, version)}
 	}
+	if k := upperKey(raw, ""); k != "" {
+		// encoding/json matches keys without regard to case, so "Trend"
+		// would silently stand for (or override) "trend".
+		return nil, &KeyError{name, k, "unknown key: keys are lower case"}
+	}
 	for _, k := range required {
 		if !hasKey(raw, k) {
 			return nil, &KeyError{name, k, "missing"}
@@ -120,6 +127,38 @@ func decodeStrict(b []byte, name string, v any) error {
 		return fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
 	}
 	return nil
+}
+
+// upperKey returns the dotted path of the first key (in sorted order) with
+// an upper-case letter in v, or "".
+func upperKey(v any, path string) string {
+	switch v := v.(type) {
+	case map[string]any:
+		keys := make([]string, 0, len(v))
+		for k := range v {
+			keys = append(keys, k)
+		}
+		slices.Sort(keys)
+		for _, k := range keys {
+			p := k
+			if path != "" {
+				p = path + "." + k
+			}
+			if strings.ToLower(k) != k {
+				return p
+			}
+			if bad := upperKey(v[k], p); bad != "" {
+				return bad
+			}
+		}
+	case []any:
+		for i, e := range v {
+			if bad := upperKey(e, fmt.Sprintf("%s[%d]", path, i)); bad != "" {
+				return bad
+			}
+		}
+	}
+	return ""
 }
 
 func hasKey(m map[string]any, path string) bool {
@@ -149,6 +188,15 @@ func (f *File) Validate(name string) error {
 	}
 	if f.Data.LastDate < f.Data.FirstDate {
 		return bad("data.last_date", "%s is before data.first_date %s", f.Data.LastDate, f.Data.FirstDate)
+	}
+	if y := f.Data.FirstDate.Year(); y < MinDataYear {
+		return bad("data.first_date", "%s is before %d: not a date of an instrumental record", f.Data.FirstDate, MinDataYear)
+	}
+	if y := f.Data.LastDate.Year(); y > MaxDataYear {
+		return bad("data.last_date", "%s is after %d", f.Data.LastDate, MaxDataYear)
+	}
+	if f.Trend.Epoch != calendar.Epoch {
+		return bad("trend.epoch", "is %s, want %s: time t counts days from that epoch", f.Trend.Epoch, calendar.Epoch)
 	}
 	switch f.Trend.Kind {
 	case "linear", "none":
@@ -229,6 +277,8 @@ func (f *File) Validate(name string) error {
 		for i, e := range sc.Events {
 			key := fmt.Sprintf("scenario.events[%d]", i)
 			switch {
+			case !validWindow(e.Window):
+				return bad(key+".window", "%q, want MM-DD:MM-DD, e.g. 12-01:02-28", e.Window)
 			case e.Days < 1 || e.Days > 366:
 				return bad(key+".days", "%d, want 1..366", e.Days)
 			case !finite(e.Delta) || math.Abs(e.Delta) > MaxEventDelta:
@@ -291,6 +341,17 @@ func SpectralRadius(phi []float64) float64 {
 		r = math.Max(r, cmplx.Abs(v))
 	}
 	return r
+}
+
+// validWindow reports whether w is a window MM-DD:MM-DD of existing days
+// (29 February included).
+func validWindow(w string) bool {
+	a, b, ok := strings.Cut(w, ":")
+	day := func(s string) bool {
+		_, err := calendar.Parse("2000-" + s)
+		return err == nil && len(s) == 5
+	}
+	return ok && day(a) && day(b)
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
