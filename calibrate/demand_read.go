@@ -87,9 +87,9 @@ func ReadDemandFile(path string, opt DemandReadOptions) (*DemandSeries, error) {
 // counted in Missing, not an error. Rows must be in date order without
 // repeats, and at least MinDemandDays rows must have a load.
 //
-// Bad data is reported as an ErrorList of *PosError holding every problem
-// found, each with its line and column; the list wraps ErrBadInput. A
-// failure of r itself is returned wrapped, without ErrBadInput.
+// Bad data is reported as an ErrorList of *PosError holding the problems
+// found, each with its line and column (the first MaxErrors, then a count of
+// the further bad rows); the list wraps ErrBadInput. A failure of r itself is returned wrapped, without ErrBadInput.
 func ReadDemand(r io.Reader, name string, opt DemandReadOptions) (*DemandSeries, error) {
 	in := newCSVInput(r)
 	p := &demandParser{parser: parser{name: name, cr: in.cr}, opt: opt}
@@ -135,7 +135,7 @@ func (p *demandParser) readHeader() error {
 			strings.Join(loadNames, ", "), p.listColumns())
 	}
 	if len(p.errs) > 0 {
-		return p.errs
+		return p.errList()
 	}
 	p.d.DateColumn = p.header[p.date]
 	p.d.LoadColumn = p.header[p.load]
@@ -147,7 +147,7 @@ func (p *demandParser) readHeader() error {
 
 func (p *demandParser) readRows() error {
 	for {
-		record, err := p.cr.Read()
+		record, err := p.read()
 		if err == io.EOF {
 			break
 		}
@@ -163,7 +163,7 @@ func (p *demandParser) readRows() error {
 		p.readRow(record)
 	}
 	if len(p.errs) > 0 {
-		return p.errs
+		return p.errList()
 	}
 	return nil
 }
@@ -258,7 +258,7 @@ func (p *demandParser) series() (*DemandSeries, error) {
 	d.Warnings = p.warnings
 	if len(d.Dates) == 0 {
 		p.errorf(0, 0, "", "no data rows after the header")
-		return nil, p.errs
+		return nil, p.errList()
 	}
 	for _, v := range d.Load {
 		if math.IsNaN(v) {
@@ -268,7 +268,7 @@ func (p *demandParser) series() (*DemandSeries, error) {
 	if n := d.DaysWithLoad(); n < MinDemandDays {
 		p.errorf(0, 0, "", "only %d days have a load: at least %d are needed (a full year, to see both heating and cooling seasons)",
 			n, MinDemandDays)
-		return nil, p.errs
+		return nil, p.errList()
 	}
 	d.Absent = int(d.Dates[len(d.Dates)-1]-d.Dates[0]) + 1 - len(d.Dates)
 	if h := p.opt.Holidays; h != nil && len(h.Dates)+len(h.Rules) > 0 {

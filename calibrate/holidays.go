@@ -89,7 +89,7 @@ func ReadHolidays(r io.Reader, name string) (*Holidays, error) {
 	hp := &holidayParser{parser: parser{name: name, cr: cr}, date: -1, rule: -1, label: -1}
 	header := false
 	for {
-		record, err := cr.Read()
+		record, err := hp.read()
 		if err == io.EOF {
 			break
 		}
@@ -113,11 +113,11 @@ func ReadHolidays(r io.Reader, name string) (*Holidays, error) {
 		hp.readRow(record)
 	}
 	if len(hp.errs) > 0 {
-		return nil, hp.errs
+		return nil, hp.errList()
 	}
 	if len(hp.dates) == 0 && len(hp.h.Rules) == 0 {
 		hp.errorf(0, 0, "", "no holiday dates or rules")
-		return nil, hp.errs
+		return nil, hp.errList()
 	}
 	h := &hp.h
 	slices.SortStableFunc(hp.dates, func(a, b namedDate) int { return int(a.d) - int(b.d) })

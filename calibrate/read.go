@@ -139,8 +139,9 @@ func (in *csvInput) finish(name string) (string, error) {
 // series, which runs from the first to the last day with a value. Rows must
 // be in date order without repeats.
 //
-// Bad data is reported as an ErrorList of *PosError holding every problem
-// found, each with its line and column; the list wraps ErrBadInput. A failure
+// Bad data is reported as an ErrorList of *PosError holding the problems
+// found, each with its line and column (the first MaxErrors, then a count of
+// the further bad rows); the list wraps ErrBadInput. A failure
 // of r itself is returned wrapped, without ErrBadInput.
 func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
 	switch opt.Units {
@@ -186,10 +187,37 @@ type parser struct {
 	temps []float64
 
 	errs ErrorList
+	// Past MaxErrors, errors are counted by record rather than kept:
+	// record numbers the records read, moreRows counts those with an error
+	// not listed, and droppedAt is the last of them.
+	record, moreRows, droppedAt int
+}
+
+// read reads the next CSV record.
+func (p *parser) read() ([]string, error) {
+	p.record++
+	return p.cr.Read()
 }
 
 func (p *parser) errorf(line, col int, field, format string, args ...any) {
+	if len(p.errs) >= MaxErrors {
+		if p.droppedAt != p.record {
+			p.moreRows++
+			p.droppedAt = p.record
+		}
+		return
+	}
 	p.errs = append(p.errs, &PosError{File: p.name, Line: line, Column: col, Field: field, Msg: fmt.Sprintf(format, args...)})
+}
+
+// errList returns the errors found, ending with a count of the bad rows not
+// listed when there were more than MaxErrors errors.
+func (p *parser) errList() ErrorList {
+	if p.moreRows == 0 {
+		return p.errs
+	}
+	return append(p.errs[:len(p.errs):len(p.errs)], &PosError{File: p.name,
+		Msg: fmt.Sprintf("… and %d more bad rows", p.moreRows), MoreRows: p.moreRows})
 }
 
 // csvError records a syntax error from encoding/csv, after which reading
@@ -216,16 +244,16 @@ func (p *parser) csvError(err error, record []string) (fatal error) {
 // returns false when there is no usable header, with the error to return:
 // the error list, or a failure of the input itself.
 func (p *parser) headerRow() (bool, error) {
-	record, err := p.cr.Read()
+	record, err := p.read()
 	if err == io.EOF {
 		p.errorf(0, 0, "", "empty file: no header row")
-		return false, p.errs
+		return false, p.errList()
 	}
 	if err != nil {
 		if fatal := p.csvError(err, record); fatal != nil {
 			return false, fatal
 		}
-		return false, p.errs
+		return false, p.errList()
 	}
 	p.headerLine, _ = p.cr.FieldPos(0)
 	p.header = make([]string, len(record))
@@ -277,7 +305,7 @@ func (p *parser) readHeader() error {
 			strings.Join(meanNames, ", "), strings.Join(pairs, ", "), p.listColumns())
 	}
 	if len(p.errs) > 0 {
-		return p.errs
+		return p.errList()
 	}
 	return nil
 }
@@ -354,7 +382,7 @@ func (p *parser) implausible(v float64) bool {
 
 func (p *parser) readRows() error {
 	for {
-		record, err := p.cr.Read()
+		record, err := p.read()
 		if err == io.EOF {
 			break
 		}
@@ -370,7 +398,7 @@ func (p *parser) readRows() error {
 		p.readRow(record)
 	}
 	if len(p.errs) > 0 {
-		return p.errs
+		return p.errList()
 	}
 	return nil
 }
@@ -484,7 +512,7 @@ func sortByColumn(errs []*PosError) {
 func (p *parser) series() (*Series, error) {
 	if len(p.dates) == 0 {
 		p.errorf(0, 0, "", "no data rows after the header")
-		return nil, p.errs
+		return nil, p.errList()
 	}
 	first, last := -1, -1
 	withValues := 0
@@ -500,7 +528,7 @@ func (p *parser) series() (*Series, error) {
 	if withValues < minDaysWithValues {
 		p.errorf(0, 0, "", "only %d days have a value: at least two full years are needed (%d days)",
 			withValues, minDaysWithValues)
-		return nil, p.errs
+		return nil, p.errList()
 	}
 	start := p.dates[first]
 	temps := make([]float64, int(p.dates[last]-start)+1)

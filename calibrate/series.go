@@ -76,6 +76,9 @@ type PosError struct {
 	Column int
 	Field  string // the column name, when the error is about one field
 	Msg    string
+	// MoreRows is set only on the entry that ends a list cut at MaxErrors:
+	// the number of further rows with errors, which are not listed.
+	MoreRows int
 }
 
 func (e *PosError) Error() string {
@@ -98,13 +101,25 @@ func (e *PosError) Error() string {
 func (e *PosError) Unwrap() error { return ErrBadInput }
 
 // ErrorList collects input errors in file order. Its message is the first ten
-// errors, one a line, then "(and N more errors)".
+// errors, one a line, then "(and N more errors)". The readers keep at most
+// MaxErrors entries; when more rows are bad, the list ends with one more
+// entry, "… and N more bad rows" (its MoreRows is N), which the message
+// always shows last.
 type ErrorList []*PosError
 
 // MaxShown is how many errors an ErrorList prints before summarising the rest.
 const MaxShown = 10
 
+// MaxErrors is how many errors a reader lists; beyond it, it only counts
+// the rows with errors, so a file of bad rows takes no more memory for its
+// errors than a file of 100.
+const MaxErrors = 100
+
 func (l ErrorList) Error() string {
+	var more *PosError
+	if n := len(l); n > 0 && l[n-1].MoreRows > 0 {
+		more, l = l[n-1], l[:n-1]
+	}
 	var b strings.Builder
 	for i, e := range l {
 		if i == MaxShown {
@@ -115,6 +130,10 @@ func (l ErrorList) Error() string {
 			b.WriteByte('\n')
 		}
 		b.WriteString(e.Error())
+	}
+	if more != nil {
+		b.WriteByte('\n')
+		b.WriteString(more.Error())
 	}
 	return b.String()
 }

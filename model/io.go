@@ -8,10 +8,12 @@ import (
 	"math"
 	"math/cmplx"
 	"os"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
 
+	"wxstress/calendar"
 	"wxstress/internal/atomicfile"
 )
 
@@ -74,17 +76,31 @@ func decodeHeader(b []byte, name, schema string, version int, required []string,
 	if err := json.Unmarshal(b, &raw); err != nil {
 		return nil, fmt.Errorf("%s: not a %s (JSON): %w", name, what, err)
 	}
-	if s, _ := raw["schema"].(string); s != schema {
-		hint := ""
-		if s == Schema || s == DemandSchema {
-			hint = fmt.Sprintf(" (this is a %q file)", s)
+	if s, isString := raw["schema"].(string); s != schema {
+		var msg string
+		switch {
+		case raw["schema"] == nil:
+			msg = fmt.Sprintf("missing: not a wxstress %s (one has \"schema\": %q)", what, schema)
+		case !isString:
+			msg = fmt.Sprintf("is %s, want %q: not a wxstress %s", shortJSON(raw["schema"]), schema, what)
+		default:
+			hint := ""
+			if s == Schema || s == DemandSchema {
+				hint = fmt.Sprintf(" (this is a %q file)", s)
+			}
+			msg = fmt.Sprintf("is %q, want %q: not a wxstress %s%s", s, schema, what, hint)
 		}
-		return nil, &KeyError{name, "schema", fmt.Sprintf("is %q, want %q: not a wxstress %s%s", raw["schema"], schema, what, hint)}
+		return nil, &KeyError{name, "schema", msg}
 	}
 	if v, ok := raw["schema_version"].(float64); !ok || v != math.Trunc(v) || v < 1 {
 		return nil, &KeyError{name, "schema_version", "missing or not a positive whole number"}
 	} else if v > float64(version) {
 		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, version)}
+	}
+	if k := upperKey(raw, ""); k != "" {
+		// encoding/json matches keys without regard to case, so "Trend"
+		// would silently stand for (or override) "trend".
+		return nil, &KeyError{name, k, "unknown key: keys are lower case"}
 	}
 	for _, k := range required {
 		if !hasKey(raw, k) {
@@ -92,6 +108,15 @@ func decodeHeader(b []byte, name, schema string, version int, required []string,
 		}
 	}
 	return raw, nil
+}
+
+// shortJSON shows a decoded JSON value in a message, cut to 40 bytes.
+func shortJSON(v any) string {
+	b, _ := json.Marshal(v)
+	if len(b) > 40 {
+		return string(b[:40]) + "…"
+	}
+	return string(b)
 }
 
 // decodeStrict decodes JSON into v, refusing unknown keys.
@@ -102,6 +127,38 @@ func decodeStrict(b []byte, name string, v any) error {
 		return fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
 	}
 	return nil
+}
+
+// upperKey returns the dotted path of the first key (in sorted order) with
+// an upper-case letter in v, or "".
+func upperKey(v any, path string) string {
+	switch v := v.(type) {
+	case map[string]any:
+		keys := make([]string, 0, len(v))
+		for k := range v {
+			keys = append(keys, k)
+		}
+		slices.Sort(keys)
+		for _, k := range keys {
+			p := k
+			if path != "" {
+				p = path + "." + k
+			}
+			if strings.ToLower(k) != k {
+				return p
+			}
+			if bad := upperKey(v[k], p); bad != "" {
+				return bad
+			}
+		}
+	case []any:
+		for i, e := range v {
+			if bad := upperKey(e, fmt.Sprintf("%s[%d]", path, i)); bad != "" {
+				return bad
+			}
+		}
+	}
+	return ""
 }
 
 func hasKey(m map[string]any, path string) bool {
@@ -118,8 +175,10 @@ func hasKey(m map[string]any, path string) bool {
 }
 
 // Validate checks that the parameters describe a model the simulator can
-// run: finite values, σ > 0, ν > 2, ξ > 0, a stationary AR. name is used in
-// messages.
+// run: finite values within the bounds of bounds.go (which keep every
+// simulated value finite), σ > 0, ν > 2, ξ > 0, an AR that CheckPhi
+// accepts, distinct harmonics. name is used in messages, which name the
+// JSON key.
 func (f *File) Validate(name string) error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{name, key, fmt.Sprintf(format, a...)}
@@ -130,6 +189,15 @@ func (f *File) Validate(name string) error {
 	if f.Data.LastDate < f.Data.FirstDate {
 		return bad("data.last_date", "%s is before data.first_date %s", f.Data.LastDate, f.Data.FirstDate)
 	}
+	if y := f.Data.FirstDate.Year(); y < MinDataYear {
+		return bad("data.first_date", "%s is before %d: not a date of an instrumental record", f.Data.FirstDate, MinDataYear)
+	}
+	if y := f.Data.LastDate.Year(); y > MaxDataYear {
+		return bad("data.last_date", "%s is after %d", f.Data.LastDate, MaxDataYear)
+	}
+	if f.Trend.Epoch != calendar.Epoch {
+		return bad("trend.epoch", "is %s, want %s: time t counts days from that epoch", f.Trend.Epoch, calendar.Epoch)
+	}
 	switch f.Trend.Kind {
 	case "linear", "none":
 	default:
@@ -138,11 +206,11 @@ func (f *File) Validate(name string) error {
 	if f.Trend.Kind == "none" && f.Trend.SlopePerYear != 0 {
 		return bad("trend.slope_per_year", "is %v but trend.kind is \"none\"", f.Trend.SlopePerYear)
 	}
-	if !finite(f.Trend.Intercept) {
-		return bad("trend.intercept", "not a finite number")
+	if !finite(f.Trend.Intercept) || math.Abs(f.Trend.Intercept) > MaxLevel {
+		return bad("trend.intercept", "%v is not a plausible level (|intercept| ≤ %g degrees)", f.Trend.Intercept, MaxLevel)
 	}
-	if !finite(f.Trend.SlopePerYear) || math.Abs(f.Trend.SlopePerYear) > 1 {
-		return bad("trend.slope_per_year", "%v is not a plausible warming rate (|slope| ≤ 1 degree a year)", f.Trend.SlopePerYear)
+	if !finite(f.Trend.SlopePerYear) || math.Abs(f.Trend.SlopePerYear) > MaxSlopePerYear {
+		return bad("trend.slope_per_year", "%v is not a plausible warming rate (|slope| ≤ %g degree a year)", f.Trend.SlopePerYear, MaxSlopePerYear)
 	}
 	if !(f.Seasonal.PeriodDays > 300 && f.Seasonal.PeriodDays < 400) {
 		return bad("seasonal.period_days", "%v is not a year length", f.Seasonal.PeriodDays)
@@ -150,9 +218,26 @@ func (f *File) Validate(name string) error {
 	if len(f.Seasonal.Harmonics) == 0 {
 		return bad("seasonal.harmonics", "empty: at least one harmonic is needed")
 	}
+	var seen [13]int // 1 + the index of the harmonic with each k
 	for i, h := range f.Seasonal.Harmonics {
-		if h.K < 1 || h.K > 12 || !finite(h.Cos) || !finite(h.Sin) {
-			return bad(fmt.Sprintf("seasonal.harmonics[%d]", i), "needs k in 1..12 and finite cos and sin")
+		key := fmt.Sprintf("seasonal.harmonics[%d]", i)
+		if h.K < 1 || h.K > 12 {
+			return bad(key+".k", "k = %d, want 1..12", h.K)
+		}
+		if j := seen[h.K]; j > 0 {
+			return bad(key+".k", "k = %d repeats seasonal.harmonics[%d]: each harmonic may appear once", h.K, j-1)
+		}
+		seen[h.K] = i + 1
+		for _, c := range []struct {
+			name string
+			v    float64
+		}{{"cos", h.Cos}, {"sin", h.Sin}} {
+			if !finite(c.v) || math.Abs(c.v) > MaxAmplitude {
+				return bad(key+"."+c.name, "%v is not a plausible coefficient (|%s| ≤ %g degrees)", c.v, c.name, MaxAmplitude)
+			}
+		}
+		if a := math.Hypot(h.Cos, h.Sin); a > MaxAmplitude {
+			return bad(key, "amplitude √(cos² + sin²) = %.4g is beyond %g degrees", a, MaxAmplitude)
 		}
 	}
 	p := len(f.AR.Phi)
@@ -164,15 +249,15 @@ func (f *File) Validate(name string) error {
 			return bad(fmt.Sprintf("ar.phi[%d]", i), "not a finite number")
 		}
 	}
-	if r := SpectralRadius(f.AR.Phi); r >= 1 {
-		return bad("ar.phi", "%v is not stationary (largest root modulus %.4f ≥ 1)", f.AR.Phi, r)
+	if err := CheckPhi(f.AR.Phi); err != nil {
+		return bad("ar.phi", "%v", err)
 	}
 	if len(f.AR.Last) != p {
 		return bad("ar.last_anomalies", "has %d values, want one per AR lag (%d)", len(f.AR.Last), p)
 	}
 	for i, v := range f.AR.Last {
-		if !finite(v) {
-			return bad(fmt.Sprintf("ar.last_anomalies[%d]", i), "not a finite number")
+		if !finite(v) || math.Abs(v) > MaxAnomaly {
+			return bad(fmt.Sprintf("ar.last_anomalies[%d]", i), "%v is not a plausible anomaly (|value| ≤ %g degrees)", v, MaxAnomaly)
 		}
 	}
 	if sl := f.Slow; sl != nil {
@@ -193,20 +278,27 @@ func (f *File) Validate(name string) error {
 		return bad("volatility.kind", "is %q, want \"monthly\"", f.Volatility.Kind)
 	}
 	for m, s := range f.Volatility.Monthly {
-		if !(s > 0) || !finite(s) {
-			return bad(fmt.Sprintf("volatility.monthly[%d]", m), "σ = %v, must be positive and finite", s)
+		if !(s > 0 && s <= MaxSigma) {
+			return bad(fmt.Sprintf("volatility.monthly[%d]", m), "σ = %v, want 0 < σ ≤ %g degrees", s, MaxSigma)
 		}
 	}
 	if sc := f.Scenario; sc != nil {
 		for m, v := range sc.MonthlyShift {
-			if !finite(v) || math.Abs(v) > 50 {
-				return bad(fmt.Sprintf("scenario.monthly_shift[%d]", m), "%v is not a plausible shift", v)
+			if !finite(v) || math.Abs(v) > MaxShift {
+				return bad(fmt.Sprintf("scenario.monthly_shift[%d]", m), "%v is not a plausible shift (|shift| ≤ %g degrees)", v, MaxShift)
 			}
 		}
 		for i, e := range sc.Events {
 			key := fmt.Sprintf("scenario.events[%d]", i)
-			if e.Days < 1 || e.Days > 366 || !finite(e.Delta) || math.Abs(e.Delta) > 50 || !(e.Probability > 0 && e.Probability <= 1) {
-				return bad(key, "needs 1..366 days, |delta| ≤ 50 and a probability in (0, 1]")
+			switch {
+			case !validWindow(e.Window):
+				return bad(key+".window", "%q, want MM-DD:MM-DD, e.g. 12-01:02-28", e.Window)
+			case e.Days < 1 || e.Days > 366:
+				return bad(key+".days", "%d, want 1..366", e.Days)
+			case !finite(e.Delta) || math.Abs(e.Delta) > MaxEventDelta:
+				return bad(key+".delta", "%v, want |delta| ≤ %g degrees", e.Delta, MaxEventDelta)
+			case !(e.Probability > 0 && e.Probability <= 1):
+				return bad(key+".probability", "%v, want a probability in (0, 1]", e.Probability)
 			}
 		}
 	}
@@ -214,11 +306,11 @@ func (f *File) Validate(name string) error {
 	switch sh.Family {
 	case FamilyNormal:
 	case FamilyStudentT, FamilySkewT:
-		if !(sh.DF > 2) || !finite(sh.DF) {
-			return bad("shocks.df", "ν = %v, must be finite and > 2 (unit variance needs ν > 2)", sh.DF)
+		if !(sh.DF > 2 && sh.DF <= MaxDF) {
+			return bad("shocks.df", "ν = %v, want 2 < ν ≤ %g (unit variance needs ν > 2)", sh.DF, MaxDF)
 		}
-		if sh.Family == FamilySkewT && (!(sh.Skew > 0) || !finite(sh.Skew)) {
-			return bad("shocks.skew", "ξ = %v, must be positive", sh.Skew)
+		if sh.Family == FamilySkewT && !(sh.Skew >= MinSkew && sh.Skew <= MaxSkew) {
+			return bad("shocks.skew", "ξ = %v, want %g ≤ ξ ≤ %g (1 is symmetric)", sh.Skew, MinSkew, MaxSkew)
 		}
 	case FamilyBootstrap:
 		if len(sh.ByMonth) != 12 {
@@ -228,9 +320,9 @@ func (f *File) Validate(name string) error {
 			if len(z) == 0 {
 				return bad(fmt.Sprintf("shocks.by_month[%d]", m), "empty")
 			}
-			for _, v := range z {
-				if !finite(v) {
-					return bad(fmt.Sprintf("shocks.by_month[%d]", m), "holds a non-finite value")
+			for i, v := range z {
+				if !finite(v) || math.Abs(v) > MaxShock {
+					return bad(fmt.Sprintf("shocks.by_month[%d][%d]", m, i), "%v is not a standardized innovation (|z| ≤ %g)", v, MaxShock)
 				}
 			}
 		}
@@ -263,6 +355,17 @@ func SpectralRadius(phi []float64) float64 {
 		r = math.Max(r, cmplx.Abs(v))
 	}
 	return r
+}
+
+// validWindow reports whether w is a window MM-DD:MM-DD of existing days
+// (29 February included).
+func validWindow(w string) bool {
+	a, b, ok := strings.Cut(w, ":")
+	day := func(s string) bool {
+		_, err := calendar.Parse("2000-" + s)
+		return err == nil && len(s) == 5
+	}
+	return ok && day(a) && day(b)
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

@@ -44,6 +44,15 @@ func Names() []string {
 	return names
 }
 
+func isBuiltin(name string) bool {
+	for _, s := range builtins {
+		if s.Name == name {
+			return true
+		}
+	}
+	return false
+}
+
 // Lookup returns the built-in scenario of that name, or else the scenario in
 // the file at that path.
 func Lookup(nameOrFile string) (*Scenario, error) {

@@ -6,12 +6,14 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 
 	"wxstress/calendar"
 	"wxstress/internal/tomlpos"
+	"wxstress/model"
 )
 
 // ErrScenario is wrapped by every error about a scenario file's content.
@@ -48,7 +50,8 @@ func Load(path string) (*Scenario, error) {
 
 // Parse decodes a scenario from TOML, strictly: unknown keys, wrong types and
 // out-of-range values are errors naming the file, the line and the key. A
-// scenario without a name is named after its file.
+// scenario without a name is named after its file; the name of a built-in
+// scenario is refused.
 func Parse(src []byte, file string) (*Scenario, error) {
 	var s Scenario
 	md, err := toml.Decode(string(src), &s)
@@ -62,8 +65,14 @@ func Parse(src []byte, file string) (*Scenario, error) {
 		k := und[0].String()
 		return nil, &KeyError{file, tomlpos.Line(src, und[0], -1), k, "unknown key; valid keys are " + validKeys(und[0])}
 	}
+	s.file, s.line = file, tomlpos.Line(src, toml.Key{"name"}, -1)
+	from := ""
 	if s.Name == "" {
 		s.Name = strings.TrimSuffix(filepath.Base(file), filepath.Ext(file))
+		from = " (taken from the file name)"
+	}
+	if isBuiltin(s.Name) {
+		return nil, &KeyError{file, s.line, "name", fmt.Sprintf("%q%s is the name of a built-in scenario; give the file a name of its own", s.Name, from)}
 	}
 	if err := s.check(); err != nil {
 		var ke *KeyError
@@ -160,6 +169,11 @@ func (s *Scenario) check() error {
 					return err
 				}
 			}
+			if v.Scale != nil {
+				if c := *v.Scale * slices.Max(v.MonthlyScale); c > 10 {
+					return bad("volatility.monthly_scale", "with scale = %v, σ is multiplied by up to %.3g: the combined scale must be at most 10", *v.Scale, c)
+				}
+			}
 		}
 	}
 	if p := s.Persistence; p != nil {
@@ -174,6 +188,13 @@ func (s *Scenario) check() error {
 		if p.Scale != nil {
 			if err := scale("persistence.scale", *p.Scale); err != nil {
 				return err
+			}
+		}
+		// What Apply refuses whatever the model, since φ replaces the
+		// model's; a scale alone is checked against the model by Apply.
+		if p.Phi != nil {
+			if err := model.CheckPhi(p.scaled(p.Phi)); err != nil {
+				return bad("persistence.phi", "%v", err)
 			}
 		}
 	}

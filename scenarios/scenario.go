@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"time"
 
@@ -22,6 +23,12 @@ type Scenario struct {
 	Persistence *Persistence `toml:"persistence"`
 	Tails       *Tails       `toml:"tails"`
 	Events      []Event      `toml:"event"`
+
+	// Where the name was set, for messages about repeated names: the file
+	// and the line of its name key (0 when named after the file); "" for a
+	// built-in.
+	file string
+	line int
 }
 
 // Shift moves the seasonal mean: Uniform on every day, plus Monthly[m] in
@@ -54,6 +61,17 @@ type Persistence struct {
 	Phi          []float64 `toml:"phi"`
 	Scale        *float64  `toml:"scale"`
 	KeepVariance bool      `toml:"keep_variance"`
+}
+
+// scaled returns a copy of phi multiplied by Scale, when given.
+func (p *Persistence) scaled(phi []float64) []float64 {
+	out := slices.Clone(phi)
+	if p.Scale != nil {
+		for i := range out {
+			out[i] *= *p.Scale
+		}
+	}
+	return out
 }
 
 // Tails sets the shocks' ν (a normal model becomes Student-t) and skew ξ
@@ -133,15 +151,11 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 	if p := s.Persistence; p != nil {
 		old := model.StationaryGain(m.AR.Phi)
 		if p.Phi != nil {
-			out.AR.Phi = append([]float64(nil), p.Phi...)
+			out.AR.Phi = p.Phi
 		}
-		if p.Scale != nil {
-			for i := range out.AR.Phi {
-				out.AR.Phi[i] *= *p.Scale
-			}
-		}
-		if r := model.SpectralRadius(out.AR.Phi); r >= 1 {
-			return nil, fail("persistence", "φ = %v is not stationary (largest root modulus %.3f ≥ 1)", out.AR.Phi, r)
+		out.AR.Phi = p.scaled(out.AR.Phi)
+		if err := model.CheckPhi(out.AR.Phi); err != nil {
+			return nil, fail("persistence", "%v", err)
 		}
 		last := make([]float64, len(out.AR.Phi))
 		copy(last, m.AR.Last)

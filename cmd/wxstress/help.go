@@ -42,7 +42,7 @@ func runHelpCmd(_ context.Context, args []string, stdout, _ io.Writer) error {
 	case "fit-demand":
 		writeUsage(stdout, fitDemandUsage, newFitDemandFlags(&fitDemandOptions{}))
 	case "scenarios":
-		writeUsage(stdout, scenariosUsage, newScenariosFlags())
+		writeUsage(stdout, scenariosUsage, newScenariosFlags(new(scenariosOptions)))
 	case "demo":
 		writeUsage(stdout, demoUsage, newDemoFlags(&demoOptions{}))
 	case "version", "help":

@@ -11,22 +11,35 @@ import (
 )
 
 var scenariosUsage = helpText{
-	usage: "wxstress scenarios [FILE.toml ...]",
+	usage: "wxstress scenarios [--model model.json [--year Y]] [NAME|FILE.toml ...]",
 	about: `List the built-in scenarios and what each changes, in units; with files, check
 them (strictly: unknown keys, wrong types and out-of-range values are errors
-with the file, line and key) and describe them. Use a scenario with
+with the file, line and key; two scenarios may not share a name) and describe
+them. With --model, each scenario is also applied to the model for the target
+year, with the checks 'wxstress simulate' makes, and the description shows
+what the scenario does to that model. Use a scenario with
 'wxstress simulate --scenario NAME|FILE'. Built-in scenarios are in °C; on a
 °F model their degrees convert (1 °C = 1.8 °F).`,
 	examples: `  wxstress scenarios
-  wxstress scenarios scenarios/cold_spell.toml my_stress.toml`,
+  wxstress scenarios scenarios/cold_spell.toml my_stress.toml
+  wxstress scenarios --model model.json --year 2030 my_stress.toml`,
 }
 
-func newScenariosFlags() *pflag.FlagSet {
-	return pflag.NewFlagSet("scenarios", pflag.ContinueOnError)
+type scenariosOptions struct {
+	modelPath string
+	year      int
+}
+
+func newScenariosFlags(o *scenariosOptions) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("scenarios", pflag.ContinueOnError)
+	fs.StringVar(&o.modelPath, "model", "", "also apply each scenario to this model, as simulate does")
+	fs.IntVar(&o.year, "year", 0, "with --model: target year (default: the year after the data end)")
+	return fs
 }
 
 func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) error {
-	fs := newScenariosFlags()
+	var o scenariosOptions
+	fs := newScenariosFlags(&o)
 	fs.SetOutput(io.Discard)
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
@@ -35,21 +48,41 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		}
 		return usagef("scenarios: %v", err)
 	}
-	var list []scenarios.Scenario
+	if o.year != 0 && o.modelPath == "" {
+		return usagef("scenarios: --year needs --model")
+	}
+	if o.year != 0 && (o.year < 1800 || o.year > 2300) {
+		return usagef("scenarios: --year %d: want a year in 1800..2300", o.year)
+	}
+	var list []*scenarios.Scenario
 	if fs.NArg() == 0 {
 		fmt.Fprintln(stdout, "Built-in scenarios (use with: wxstress simulate --scenario NAME)")
-		list = scenarios.Builtins()
+		for _, s := range scenarios.Builtins() {
+			list = append(list, &s)
+		}
+	} else {
+		var err error
+		if list, err = scenarios.LookupAll(fs.Args()); err != nil {
+			return err
+		}
 	}
-	for _, f := range fs.Args() {
-		s, err := scenarios.Load(f)
+	describe := (*scenarios.Scenario).Describe
+	if o.modelPath != "" {
+		m, _, err := readModel(o.modelPath)
 		if err != nil {
 			return err
 		}
-		list = append(list, *s)
+		year := targetYear(m, o.year)
+		for _, s := range list {
+			if _, err := s.Apply(m, year); err != nil {
+				return err
+			}
+		}
+		describe = func(s *scenarios.Scenario) []string { return s.DescribeFor(m, year) }
 	}
 	for _, s := range list {
 		fmt.Fprintf(stdout, "\n%s — %s\n", s.Name, s.Description)
-		for _, line := range s.Describe() {
+		for _, line := range describe(s) {
 			fmt.Fprintf(stdout, "  • %s\n", line)
 		}
 	}

@@ -121,13 +121,11 @@ func (o *simulateOptions) validate() error {
 			return usagef("simulate: --period: %v", strings.TrimPrefix(err.Error(), "sim: "))
 		}
 	}
-	for _, name := range o.scenarios {
-		sc, err := scenarios.Lookup(name)
-		if err != nil {
-			return err // a bad file is a data error (exit 1), like a bad model file
-		}
-		o.loaded = append(o.loaded, sc)
+	loaded, err := scenarios.LookupAll(o.scenarios)
+	if err != nil {
+		return err // a bad file is a data error (exit 1), like a bad model file
 	}
+	o.loaded = loaded
 	for _, s := range o.exceed {
 		th, err := sim.ParseThreshold(s)
 		if err != nil {
