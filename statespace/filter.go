@@ -3,6 +3,8 @@ package statespace
 import (
 	"fmt"
 	"math"
+
+	"wxstress/model"
 )
 
 // MaxOrder is the largest fast AR order.
@@ -305,7 +307,7 @@ func run(x []float64, month []uint8, prm Params, z []float64, out *Filtered) *Fi
 // autocov returns γ₀..γₚ₋₁ of a stationary AR with coefficients phi and
 // innovation variance s2: γₖ = s2 Σⱼ ψⱼ ψⱼ₊ₖ, ψ the impulse response.
 func autocov(phi []float64, s2 float64) []float64 {
-	psi := impulse(phi)
+	psi := model.ImpulseResponse(phi)
 	g := make([]float64, len(phi))
 	for k := range g {
 		v := 0.0
@@ -315,25 +317,6 @@ func autocov(phi []float64, s2 float64) []float64 {
 		g[k] = s2 * v
 	}
 	return g
-}
-
-// impulse returns the AR's impulse response ψ₀ = 1, ψⱼ = Σᵢ φᵢ ψⱼ₋ᵢ until it
-// has fallen below 1e-14 (at most 20 000 lags).
-func impulse(phi []float64) []float64 {
-	psi := []float64{1}
-	for j := 1; j < 20000; j++ {
-		v := 0.0
-		for i, c := range phi {
-			if j-i-1 >= 0 {
-				v += c * psi[j-i-1]
-			}
-		}
-		psi = append(psi, v)
-		if j >= len(phi) && math.Abs(v) < 1e-14 && math.Abs(psi[j-1]) < 1e-14 {
-			break
-		}
-	}
-	return psi
 }
 
 func abs(i int) int {
