@@ -12,7 +12,12 @@ import (
 // periods (year, heating, cooling: 426 accumulated days plus the burn-in)
 // with Student-t shocks, reported per simulated day.
 func BenchmarkPathDay(b *testing.B) {
-	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
+	benchPathDay(b, flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6))
+}
+
+// benchPathDay times one path of m (temperatures and accumulation) and
+// reports nanoseconds per simulated day.
+func benchPathDay(b *testing.B, m *model.File) {
 	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
 	if err != nil {
 		b.Fatal(err)
@@ -65,17 +70,5 @@ func BenchmarkPathDaySlow(b *testing.B) {
 	m := flatModel(10, 0.72, 2.5, model.FamilySkewT, 10)
 	m.Shocks.Skew = 0.85
 	m.Slow = &model.Slow{Phi: 0.985, SD: 0.6}
-	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
-	if err != nil {
-		b.Fatal(err)
-	}
-	segs := make([]segStats, len(pl.segs))
-	buf := make([]float64, pl.n)
-	var rng rand.PCG
-	for i := 0; b.Loop(); i++ {
-		seedPath(&rng, 1, i)
-		pl.temps(&rng, buf)
-		pl.accumulate(buf, segs)
-	}
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(pl.n), "ns/day")
+	benchPathDay(b, m)
 }

@@ -29,12 +29,12 @@ func FitSummary(w io.Writer, f *model.File) error {
 		f.Seasonal.PeriodDays, f.Trend.Epoch)
 	e.printf("  level a = %.3f %s; R² = %.4f\n", f.Trend.Intercept, u, f.Seasonal.R2)
 	est := f.Trend.Estimate
-	e.printf("  trend: %s; fitted slope %+.3f %s/decade (s.e. %.3f OLS, %.3f allowing for day-to-day autocorrelation",
-		f.Trend.Kind, est.PerDecade, u, est.SEOLS, est.SEAdjusted)
+	e.printf("  trend: %s; fitted slope %+.3f %s/decade\n", f.Trend.Kind, est.PerDecade, u)
+	e.printf("    s.e. %.3f OLS, %.3f allowing for day-to-day autocorrelation", est.SEOLS, est.SEAdjusted)
 	if est.Years >= 3 {
 		e.printf(", %.3f from %d annual means", est.SEAnnual, est.Years)
 	}
-	e.printf(")\n")
+	e.printf("\n")
 	e.printf("  %s\n", f.Trend.Rule)
 	rows := [][]string{}
 	for _, h := range f.Seasonal.Harmonics {

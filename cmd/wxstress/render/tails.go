@@ -5,8 +5,10 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
+	"wxstress/internal/numfmt"
 
 	"wxstress/sim"
 	"wxstress/stress"
@@ -277,8 +279,8 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 		for _, row := range group {
 			for _, x := range row.Tail.Exceedances {
-				e.printf("  P(%s %s %g) = %.4f ± %.4f\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
-					x.Threshold, x.Prob, x.SE)
+				e.printf("  P(%s %s %s) = %s %s\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
+					numfmt.Number(x.Threshold), numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE))
 			}
 		}
 	}
@@ -362,6 +364,20 @@ func PathsCSV(w io.Writer, res *sim.Result) error {
 	return cw.Error()
 }
 
+// ChangeText writes a change of the mean with its paired Monte Carlo
+// standard error: "+12.3 ± 1.8", or "+1.0 (exact)" when the error is
+// rounding noise (a level shift moves the coldest day by exactly its size).
+func ChangeText(mean, se float64) string {
+	if se <= 1e-9*max(1, math.Abs(mean)) {
+		return fmt.Sprintf("%+.1f %s", mean, numfmt.Exact)
+	}
+	v := numfmt.Value(mean, se)
+	if mean > 0 && v != "0" {
+		v = "+" + v
+	}
+	return v + " " + numfmt.SE(se)
+}
+
 // writeComparison writes, for each period and index, the baseline and every
 // scenario side by side with the change of the mean and its paired s.e.
 func writeComparison(e *errWriter, r *SimReport) {
@@ -374,7 +390,7 @@ func writeComparison(e *errWriter, r *SimReport) {
 		rows := [][]string{compRow("baseline", base.Tail, "")}
 		for _, sc := range r.Scenarios {
 			c := sc.Changes[k]
-			rows = append(rows, compRow(sc.Name, sc.Rows[k].Tail, fmt.Sprintf("%+.1f ± %.2g", c.Mean, c.MeanSE)))
+			rows = append(rows, compRow(sc.Name, sc.Rows[k].Tail, ChangeText(c.Mean, c.MeanSE)))
 		}
 		e.table([]string{"scenario", "mean", "P50", "P95", "P99", "ES 95%", "1-in-20", "change of mean ± s.e."}, rows)
 	}
