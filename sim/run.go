@@ -70,9 +70,7 @@ func (c *Config) Validate(m *model.File) error {
 	if c.Workers == 0 {
 		c.Workers = runtime.GOMAXPROCS(0)
 	}
-	if c.Year == 0 {
-		c.Year = m.Data.LastDate.Year() + 1
-	}
+	c.Year = m.TargetYear(c.Year)
 	if c.Year < 1800 || c.Year > 2300 {
 		return fmt.Errorf("sim: target year %d outside 1800..2300", c.Year)
 	}

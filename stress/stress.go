@@ -18,8 +18,8 @@ import (
 	"wxstress/sim"
 )
 
-// Run is one scenario's simulation.
-type Run struct {
+// ScenarioRun is one scenario's simulation.
+type ScenarioRun struct {
 	Scenario *scenarios.Scenario
 	Result   *sim.Result
 	Rows     []sim.Row
@@ -32,7 +32,7 @@ type Set struct {
 	Config    sim.Config // as run, defaults filled in
 	Base      *sim.Result
 	Rows      []sim.Row
-	Scenarios []Run
+	Scenarios []ScenarioRun
 	// Fan holds the first detail paths of the baseline whole (fan chart,
 	// load-duration curve); nil when Simulate was asked for none.
 	Fan *sim.Fan
@@ -44,9 +44,7 @@ type Set struct {
 // the baseline whole.
 func Simulate(ctx context.Context, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
 	thresholds []sim.Threshold, detail int) (*Set, error) {
-	if cfg.Year == 0 {
-		cfg.Year = m.Data.LastDate.Year() + 1
-	}
+	cfg.Year = m.TargetYear(cfg.Year)
 	models := make([]*model.File, len(scens))
 	for i, sc := range scens {
 		sm, err := sc.Apply(m, cfg.Year)
@@ -66,7 +64,7 @@ func Simulate(ctx context.Context, m *model.File, cfg sim.Config, scens []*scena
 			return nil, err
 		}
 		rows := res.Summarize(m.Data.Units, thresholds)
-		set.Scenarios = append(set.Scenarios, Run{Scenario: scens[i], Result: res, Rows: rows,
+		set.Scenarios = append(set.Scenarios, ScenarioRun{Scenario: scens[i], Result: res, Rows: rows,
 			Changes: sim.Compare(base, res, set.Rows, rows), What: scens[i].DescribeFor(m, cfg.Year)})
 	}
 	if detail > 0 {

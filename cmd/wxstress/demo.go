@@ -3,8 +3,6 @@ package main
 import (
 	"bytes"
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
@@ -18,7 +16,6 @@ import (
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/demo"
-	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
 	"wxstress/stress"
@@ -78,39 +75,10 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err != nil {
 		return fmt.Errorf("demo data: %w", err)
 	}
-	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
-		demo.StationName, demo.Retailer)
-	res, err := fitSeries(series, nil)
-	if err != nil {
-		return err
-	}
-	m := res.Model
-	m.Data.Description = demo.StationName + " (invented demonstration data)"
-	modelPath := filepath.Join(o.dir, "model.json")
-	if err := emitFit(stdout, stderr, m, "table", modelPath); err != nil {
-		return err
-	}
-
-	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
 	dem, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
 	if err != nil {
 		return fmt.Errorf("demo data: %w", err)
 	}
-	days, err := calibrate.JoinDemand(dem, series)
-	if err != nil {
-		return err
-	}
-	dres, err := calibrate.FitDemand(days, &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit})
-	if err != nil {
-		return err
-	}
-	d := dres.Model
-	d.ToolVersion = version
-	demandPath := filepath.Join(o.dir, "demand.json")
-	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
-		return err
-	}
-
 	var scens []*scenarios.Scenario
 	for _, name := range demoScenarios {
 		sc, err := scenarios.Lookup(name)
@@ -119,22 +87,35 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		}
 		scens = append(scens, sc)
 	}
-	year := targetYear(m, 0)
-	cfg := sim.Config{Paths: o.paths, Seed: o.seed, Year: year, Bases: sim.DefaultBases(m.Data.Units),
-		Demand: d, Capacity: demoCapacity}
-	first, last, err := sim.SimulatedYears(m, cfg)
+	job := &stress.Job{
+		Temps: series, Fit: &calibrate.Settings{},
+		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
+		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.DefaultBases("C"), Capacity: demoCapacity},
+		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, ToolVersion: version,
+	}
+	stop := attachProgress(&job.Config, stderr, 1+len(scens))
+	res, err := stress.Run(ctx, job)
+	stop()
 	if err != nil {
 		return err
 	}
-	cfg.Holidays = sim.HolidayDates(stress.Holidays(days), nil, first, last)
-	runs, err := simulateAll(ctx, stderr, m, cfg, scens, nil, true)
-	if err != nil {
+	m, d, runs := res.Model, res.Demand, res.Set
+	m.Data.Description = demo.StationName + " (invented demonstration data)"
+	year := runs.Config.Year
+
+	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
+		demo.StationName, demo.Retailer)
+	modelPath := filepath.Join(o.dir, "model.json")
+	if err := emitFit(stdout, stderr, m, "table", modelPath); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
+	demandPath := filepath.Join(o.dir, "demand.json")
+	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
 		return err
 	}
 	rep, out := render.NewSimReport(runs), runs.Base
-	if rep.Planning.Normals, err = weatherNormals(ctx, m, d, days, o.seed); err != nil {
-		return err
-	}
+	rep.Planning.Normals = res.Normals
 	rep.Manifest = manifest(m, modelPath, fileSHA(modelPath), out)
 	rep.Manifest.Scenarios = demoScenarios
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, fileSHA(demandPath)
@@ -155,8 +136,8 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
 			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
 		},
-		Model: m, Series: seriesView(res), Sim: rep, Base: out, Scenarios: runs.Results(), Fan: runs.Fan,
-		Demand: render.NewDemandView(demo.Retailer, d, days.Temp, days.Load),
+		Model: m, Series: seriesView(res.Fit), Sim: rep, Base: out, Scenarios: runs.Results(), Fan: runs.Fan,
+		Demand: render.NewDemandView(demo.Retailer, d, res.DemandDays.Temp, res.DemandDays.Load),
 	}
 	if err := writeReport(report, in); err != nil {
 		return err
@@ -196,22 +177,5 @@ func claimDir(dir string, force bool) error {
 	return nil
 }
 
-func fileSHA(path string) string {
-	b, err := os.ReadFile(path)
-	if err != nil {
-		return ""
-	}
-	h := sha256.Sum256(b)
-	return hex.EncodeToString(h[:])
-}
-
 // normalPaths is how many climatological years weather normalization
 // simulates for each historical year.
-const normalPaths = 1000
-
-// weatherNormals compares each historical year's demand with the same year
-// under normal weather.
-func weatherNormals(ctx context.Context, m *model.File, d *model.Demand, days *calibrate.DemandDays, seed uint64) ([]sim.YearNormal, error) {
-	return sim.WeatherNormalize(ctx, m, d, sim.Config{Seed: seed, Bases: sim.DefaultBases(m.Data.Units)},
-		stress.History(days), normalPaths)
-}

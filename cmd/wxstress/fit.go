@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -13,7 +12,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
-	"wxstress/model"
+	"wxstress/stress"
 )
 
 var fitUsage = helpText{
@@ -117,10 +116,11 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	res, err := fitSeries(series, &o.settings)
+	out, err := stress.Run(ctx, &stress.Job{Temps: series, Fit: &o.settings, ToolVersion: version})
 	if err != nil {
 		return err
 	}
+	res := out.Fit
 	if err := emitFit(stdout, stderr, res.Model, o.format, o.out); err != nil {
 		return err
 	}
@@ -137,39 +137,6 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	}
 	if o.format != "json" {
 		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
-	}
-	return nil
-}
-
-func fitSeries(s *calibrate.Series, set *calibrate.Settings) (*calibrate.Result, error) {
-	res, err := calibrate.Fit(s, set)
-	if err != nil {
-		return nil, err
-	}
-	res.Model.ToolVersion = version
-	return res, nil
-}
-
-// emitFit prints the model summary or JSON and writes the model file.
-func emitFit(stdout, stderr io.Writer, m *model.File, format, out string) error {
-	for _, w := range m.Data.Warnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
-	}
-	if out != "" {
-		if err := m.Write(out); err != nil {
-			return err
-		}
-	}
-	if format == "json" {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(m)
-	}
-	if err := render.FitSummary(stdout, m); err != nil {
-		return err
-	}
-	if out != "" {
-		fmt.Fprintf(stdout, "\nModel written to %s\n", out)
 	}
 	return nil
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"fmt"
 	"io"
 	"slices"
 	"strings"
@@ -12,6 +11,7 @@ import (
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
 	"wxstress/model"
+	"wxstress/stress"
 )
 
 var fitDemandUsage = helpText{
@@ -124,62 +124,24 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err != nil {
 		return err
 	}
-	days, err := calibrate.JoinDemand(demand, temps)
+	job := &stress.Job{Temps: temps, DemandHistory: demand, DemandFit: &o.settings, ToolVersion: version}
+	if o.modelPath != "" && o.format != "json" {
+		if job.Model, _, err = readModel(o.modelPath); err != nil {
+			return err
+		}
+		job.Normals, job.Config.Seed = true, 1
+	}
+	out, err := stress.Run(ctx, job)
 	if err != nil {
 		return err
 	}
-	res, err := calibrate.FitDemand(days, &o.settings)
-	if err != nil {
-		return err
-	}
-	m := res.Model
-	m.ToolVersion = version
-	if err := ctx.Err(); err != nil {
-		return err
-	}
+	m := out.Demand
 	if err := emitDemand(stdout, stderr, m, o.format, o.out); err != nil {
 		return err
 	}
-	if o.modelPath == "" || o.format == "json" {
+	if !job.Normals {
 		return nil
 	}
-	tm, _, err := readModel(o.modelPath)
-	if err != nil {
-		return err
-	}
-	if err := m.CheckUnits(tm.Data.Units); err != nil {
-		return err
-	}
-	normals, err := weatherNormals(ctx, tm, m, days, 1)
-	if err != nil {
-		return err
-	}
+	normals := out.Normals
 	return render.NormalsTable(stdout, normals, m.Unit)
-}
-
-// emitDemand prints the demand summary or JSON and writes the model file.
-func emitDemand(stdout, stderr io.Writer, m *model.Demand, format, out string) error {
-	for _, w := range m.Warnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
-	}
-	if out != "" {
-		if err := m.Write(out); err != nil {
-			return err
-		}
-	}
-	if format == "json" {
-		b, err := m.MarshalIndent()
-		if err != nil {
-			return err
-		}
-		_, err = stdout.Write(b)
-		return err
-	}
-	if err := render.DemandSummary(stdout, m); err != nil {
-		return err
-	}
-	if out != "" {
-		fmt.Fprintf(stdout, "\nDemand model written to %s\n", out)
-	}
-	return nil
 }

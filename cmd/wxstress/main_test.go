@@ -167,7 +167,7 @@ func TestSimulateOutDirAndInterrupt(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stdout, "P(HDD > 2500)") {
+	if !strings.Contains(stdout, "P(HDD > 2,500)") {
 		t.Errorf("exceedance not shown:\n%s", stdout)
 	}
 	paths, _ := os.ReadFile(filepath.Join(dir, "paths.csv"))

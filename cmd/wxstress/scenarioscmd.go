@@ -72,7 +72,7 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		if err != nil {
 			return err
 		}
-		year := targetYear(m, o.year)
+		year := m.TargetYear(o.year)
 		for _, s := range list {
 			if _, err := s.Apply(m, year); err != nil {
 				return err

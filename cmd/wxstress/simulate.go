@@ -2,22 +2,16 @@ package main
 
 import (
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strings"
 	"time"
 
-	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/pflag"
-	"golang.org/x/term"
 
 	"wxstress/calibrate"
 	"wxstress/cmd/wxstress/render"
-	"wxstress/internal/atomicfile"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -164,30 +158,30 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err != nil {
 		return err
 	}
-	cfg := o.config(m)
+	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds}
 	var demandSum string
 	if o.demand != "" {
-		if cfg.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
+		if job.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
 			return err
 		}
-		cfg.Capacity = o.capacity
+		job.Config.Capacity = o.capacity
 		if o.holidays != "" {
-			h, err := calibrate.ReadHolidaysFile(o.holidays)
-			if err != nil {
+			if job.Holidays, err = calibrate.ReadHolidaysFile(o.holidays); err != nil {
 				return err
 			}
-			first, last, err := sim.SimulatedYears(m, cfg)
-			if err != nil {
-				return err
-			}
-			cfg.Holidays = sim.HolidayDates(h.Dates, h.Rules, first, last)
 		}
 	}
+	if o.report != "" {
+		job.Detail = stress.DetailPaths
+	}
 	start := time.Now()
-	runs, err := simulateAll(ctx, stderr, m, cfg, o.loaded, o.thresholds, o.report != "")
+	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))
+	out, err := stress.Run(ctx, job)
+	stop()
 	if err != nil {
 		return err
 	}
+	runs := out.Set
 	rep, res := render.NewSimReport(runs), runs.Base
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	rep.Manifest.Scenarios = o.scenarios
@@ -233,102 +227,4 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
 	}
 	return nil
-}
-
-// simulateAll runs the baseline and each scenario (common random numbers)
-// with a progress bar on a terminal, keeping the first detailPaths years
-// whole when detail is asked for or a demand model needs the load-duration
-// curve.
-func simulateAll(ctx context.Context, stderr io.Writer, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
-	thresholds []sim.Threshold, detail bool) (*stress.Set, error) {
-	stop := attachProgress(&cfg, stderr, 1+len(scens))
-	defer stop()
-	paths := 0
-	if detail || cfg.Demand != nil {
-		paths = detailPaths
-	}
-	return stress.Simulate(ctx, m, cfg, scens, thresholds, paths)
-}
-
-// detailPaths is how many paths the fan chart and the load-duration curve
-// keep whole.
-const detailPaths = 2000
-
-// targetYear is the simulated year: year, or the year after the data end.
-func targetYear(m *model.File, year int) int {
-	if year == 0 {
-		return m.Data.LastDate.Year() + 1
-	}
-	return year
-}
-
-// readDemandModel reads a demand model file and returns its SHA-256.
-func readDemandModel(path string) (*model.Demand, string, error) {
-	return readHashed(path, model.DecodeDemand)
-}
-
-// readModel reads and validates a model file and returns its SHA-256.
-func readModel(path string) (*model.File, string, error) {
-	return readHashed(path, model.Decode)
-}
-
-// readHashed reads path, decodes it, and returns the hex SHA-256 of its bytes
-// for the manifest.
-func readHashed[T any](path string, decode func([]byte, string) (*T, error)) (*T, string, error) {
-	b, err := os.ReadFile(path)
-	if err != nil {
-		return nil, "", err
-	}
-	v, err := decode(b, path)
-	if err != nil {
-		return nil, "", err
-	}
-	h := sha256.Sum256(b)
-	return v, hex.EncodeToString(h[:]), nil
-}
-
-func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Manifest {
-	c := res.Config
-	return render.Manifest{
-		Tool: "wxstress", ToolVersion: version, ModelFile: filepath.Base(modelPath), ModelSHA256: sum,
-		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
-		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,
-		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution, Capacity: c.Capacity,
-	}
-}
-
-// writeSimDir writes the tail tables and per-path aggregates into dir, each
-// file atomically.
-func writeSimDir(dir string, rep *render.SimReport, res *sim.Result) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return err
-	}
-	files := []struct {
-		name string
-		fill func(io.Writer) error
-	}{
-		{"tails.json", func(w io.Writer) error { return render.SimJSON(w, rep) }},
-		{"tails.csv", func(w io.Writer) error { return render.SimCSV(w, rep) }},
-		{"paths.csv", func(w io.Writer) error { return render.PathsCSV(w, res) }},
-	}
-	for _, f := range files {
-		if err := atomicfile.Write(filepath.Join(dir, f.name), f.fill); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
-// attachProgress shows a progress bar on stderr for work of more than about
-// a second (runs simulations of cfg.Paths), when stderr is a terminal; it
-// returns the function that clears it.
-func attachProgress(cfg *sim.Config, stderr io.Writer, runs int) func() {
-	f, ok := stderr.(*os.File)
-	if !ok || !term.IsTerminal(int(f.Fd())) || cfg.Paths*runs < 200_000 {
-		return func() {}
-	}
-	bar := progressbar.NewOptions(cfg.Paths*runs, progressbar.OptionSetWriter(f), progressbar.OptionSetDescription("simulating"),
-		progressbar.OptionShowCount(), progressbar.OptionThrottle(100_000_000), progressbar.OptionClearOnFinish())
-	cfg.Progress = func(n int) { bar.Add(n) }
-	return func() { bar.Finish() }
 }

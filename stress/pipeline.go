@@ -1,0 +1,182 @@
+package stress
+
+import (
+	"context"
+	"errors"
+	"fmt"
+
+	"wxstress/calibrate"
+	"wxstress/model"
+	"wxstress/scenarios"
+	"wxstress/sim"
+)
+
+// Job is one stress test from its inputs: a temperature record to fit or a
+// fitted model, optionally a demand history to fit or a fitted demand
+// model, the scenarios, and the simulation's configuration. The one
+// pipeline every command and report test runs:
+//
+//	record ─► temperature fit ─┐
+//	demand history ─► demand fit (on the record's temperatures) ─┤
+//	                              └─► baseline + scenarios (common random numbers) ─► Result
+type Job struct {
+	// The temperature model: Model, or Temps fitted with Fit. Temps is
+	// fitted only without a Model and when Fit is set or the job
+	// simulates; otherwise it only gives the demand history its
+	// temperatures.
+	Temps *calibrate.Series
+	Fit   *calibrate.Settings
+	Model *model.File
+
+	// Optional demand: a history fitted with DemandFit on Temps'
+	// temperatures, or a fitted model. Holidays are simulated as holidays.
+	DemandHistory *calibrate.DemandSeries
+	DemandFit     *calibrate.DemandSettings
+	Demand        *model.Demand
+	Holidays      *calibrate.Holidays
+
+	// Config is the simulation; Paths = 0 fits only. Year 0 means the
+	// model's default target year; Demand and Holidays are filled in from
+	// the job.
+	Config     sim.Config
+	Scenarios  []*scenarios.Scenario
+	Thresholds []sim.Threshold
+	// Detail is how many baseline paths are kept whole (fan chart,
+	// load-duration curve); 0 keeps none unless a demand model needs the
+	// load-duration curve, which keeps DetailPaths.
+	Detail int
+	// Normals asks for each historical demand year under normal weather
+	// (needs a demand history), with NormalPaths paths per year.
+	Normals bool
+
+	// ToolVersion is stamped on the fitted model files.
+	ToolVersion string
+}
+
+// DetailPaths is how many paths the fan chart and the load-duration curve
+// keep whole by default; NormalPaths how many synthetic years weather
+// normalization draws for each historical year.
+const (
+	DetailPaths = 2000
+	NormalPaths = 1000
+)
+
+// Result is everything a stress test produced; renderers take it whole.
+type Result struct {
+	Fit   *calibrate.Result // nil when the job gave a model or fitted none
+	Model *model.File       // nil when the job needs none
+
+	DemandFit  *calibrate.DemandResult // nil without a demand history
+	Demand     *model.Demand           // nil without demand
+	DemandDays *calibrate.DemandDays   // the history joined to the record's temperatures
+
+	Set     *Set             // nil when the job only fits
+	Normals []sim.YearNormal // with Job.Normals
+}
+
+// ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
+var ErrJob = errors.New("stress: bad job")
+
+// Run runs the job's pipeline. It stops at the next batch boundary when ctx
+// is cancelled and returns ctx's error.
+func Run(ctx context.Context, job *Job) (*Result, error) {
+	fitTemps := job.Model == nil && job.Temps != nil && (job.Fit != nil || job.Config.Paths > 0)
+	if job.Model == nil && !fitTemps && job.DemandHistory == nil {
+		return nil, fmt.Errorf("%w: nothing to do: give a temperature record or a model", ErrJob)
+	}
+	if job.Model == nil && !fitTemps && job.Normals {
+		return nil, fmt.Errorf("%w: weather normalization needs a temperature model", ErrJob)
+	}
+	if job.DemandHistory != nil && job.Temps == nil {
+		return nil, fmt.Errorf("%w: a demand history is fitted on the record's temperatures: give the record", ErrJob)
+	}
+	if job.DemandHistory != nil && job.Demand != nil {
+		return nil, fmt.Errorf("%w: give a demand history or a demand model, not both", ErrJob)
+	}
+	res := &Result{Model: job.Model, Demand: job.Demand}
+	if fitTemps {
+		fit, err := calibrate.Fit(job.Temps, job.Fit)
+		if err != nil {
+			return nil, err
+		}
+		fit.Model.ToolVersion = job.ToolVersion
+		res.Fit, res.Model = fit, fit.Model
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if job.DemandHistory != nil {
+		days, err := calibrate.JoinDemand(job.DemandHistory, job.Temps)
+		if err != nil {
+			return nil, err
+		}
+		dfit, err := calibrate.FitDemand(days, job.DemandFit)
+		if err != nil {
+			return nil, err
+		}
+		dfit.Model.ToolVersion = job.ToolVersion
+		res.DemandFit, res.Demand, res.DemandDays = dfit, dfit.Model, days
+	}
+	if res.Demand != nil && res.Model != nil {
+		if err := res.Demand.CheckUnits(res.Model.Data.Units); err != nil {
+			return nil, err
+		}
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if job.Normals && res.DemandDays != nil {
+		var err error
+		res.Normals, err = sim.WeatherNormalize(ctx, res.Model, res.Demand,
+			sim.Config{Seed: job.Config.Seed, Bases: sim.DefaultBases(res.Model.Data.Units)}, History(res.DemandDays), NormalPaths)
+		if err != nil {
+			return nil, err
+		}
+	}
+	if job.Config.Paths == 0 {
+		return res, nil
+	}
+	cfg := job.Config
+	cfg.Year = res.Model.TargetYear(cfg.Year)
+	if res.Demand != nil {
+		cfg.Demand = res.Demand
+		if err := job.holidays(res, &cfg); err != nil {
+			return nil, err
+		}
+	}
+	detail := job.Detail
+	if detail == 0 && cfg.Demand != nil {
+		detail = DetailPaths
+	}
+	set, err := Simulate(ctx, res.Model, cfg, job.Scenarios, job.Thresholds, detail)
+	if err != nil {
+		return nil, err
+	}
+	res.Set = set
+	return res, nil
+}
+
+// holidays sets the simulated holidays: the job's list (dates repeated by
+// month and day, rules in every simulated year), or the holidays of the
+// demand history.
+func (job *Job) holidays(res *Result, cfg *sim.Config) error {
+	h := job.Holidays
+	if h == nil && res.DemandDays != nil {
+		cfg.Holidays = nil
+		first, last, err := sim.SimulatedYears(res.Model, *cfg)
+		if err != nil {
+			return err
+		}
+		cfg.Holidays = sim.HolidayDates(Holidays(res.DemandDays), nil, first, last)
+		return nil
+	}
+	if h == nil {
+		return nil
+	}
+	first, last, err := sim.SimulatedYears(res.Model, *cfg)
+	if err != nil {
+		return err
+	}
+	cfg.Holidays = sim.HolidayDates(h.Dates, h.Rules, first, last)
+	return nil
+}
