@@ -197,7 +197,6 @@ func run(x []float64, month []uint8, prm Params, z []float64, out *Filtered) *Fi
 
 	logs, quad := 0.0, 0.0
 	n := 0
-	var tp [maxState][maxState]float64
 	for t, xt := range x {
 		if t > 0 {
 			// a ← T a
@@ -212,34 +211,41 @@ func run(x []float64, month []uint8, prm Params, z []float64, out *Filtered) *Fi
 			if slow {
 				a[p] *= phiS
 			}
-			// P ← T P T' + Q. Row i of T P: row 0 is φ·P, rows 1..p−1
-			// shift, the slow row scales.
+			// P ← T P T' + Q, using the companion form: with r = φᵀP (the
+			// first row of T P), the lag block shifts down the diagonal, the
+			// first row and column become r (and φᵀr at the corner), and
+			// the slow row and column scale by φ_s. O(p·m) instead of O(m³).
+			var r [maxState]float64
 			for j := range m {
 				v := 0.0
 				for k := range p {
 					v += phi[k] * P[k][j]
 				}
-				tp[0][j] = v
-				for i := 1; i < p; i++ {
-					tp[i][j] = P[i-1][j]
-				}
-				if slow {
-					tp[p][j] = phiS * P[p][j]
+				r[j] = v
+			}
+			corner := 0.0
+			for k := range p {
+				corner += phi[k] * r[k]
+			}
+			for i := p - 1; i > 0; i-- {
+				for j := p - 1; j > 0; j-- {
+					P[i][j] = P[i-1][j-1]
 				}
 			}
-			for i := range m {
-				v := 0.0
-				for k := range p {
-					v += tp[i][k] * phi[k]
+			if slow {
+				for i := p - 1; i > 0; i-- {
+					P[i][p] = phiS * P[i-1][p]
+					P[p][i] = P[i][p]
 				}
-				P[i][0] = v
-				for j := 1; j < p; j++ {
-					P[i][j] = tp[i][j-1]
-				}
-				if slow {
-					P[i][p] = tp[i][p] * phiS
-				}
+				P[p][p] *= phiS * phiS
+				P[0][p] = phiS * r[p]
+				P[p][0] = P[0][p]
 			}
+			for j := 1; j < p; j++ {
+				P[0][j] = r[j-1]
+				P[j][0] = r[j-1]
+			}
+			P[0][0] = corner
 			P[0][0] += sig2[month[t]]
 			if slow {
 				P[p][p] += q

@@ -121,7 +121,7 @@ func ProfileOrder(x []float64, month []uint8, base Params, q int) (float64, erro
 		return float64(n)*halfLog2Pi + 0.5*(logs+float64(n)*math.Log(quad/float64(n))+float64(n))
 	}
 	th := encode(start, false)[:q]
-	res, err := minimize(nll, th, 1e-10)
+	res, err := minimize(nll, th, 1e-8)
 	if err != nil {
 		return 0, err
 	}
@@ -138,7 +138,7 @@ func newFitted(x []float64, month []uint8, prm Params, ll float64, slow bool) *F
 }
 
 // minimize runs BFGS with central-difference gradients until the objective
-// changes by less than rel (relative) over 10 iterations. A line search that
+// changes by less than rel (relative) over 3 iterations. A line search that
 // stalls at the optimum reports an error with a usable point; only a result
 // that got nowhere is a failure.
 func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.Result, error) {
@@ -149,7 +149,7 @@ func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.R
 		},
 	}
 	set := &optimize.Settings{
-		Converger:       &optimize.FunctionConverge{Absolute: 1e-9, Relative: rel, Iterations: 10},
+		Converger:       &optimize.FunctionConverge{Absolute: 1e-9, Relative: rel, Iterations: 3},
 		MajorIterations: 400,
 	}
 	res, err := optimize.Minimize(prob, x0, set, &optimize.BFGS{})
