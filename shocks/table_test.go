@@ -44,6 +44,9 @@ const (
 // p: every cell's middle, where linear interpolation errs most, and random
 // points, in both halves from p = 2⁻⁵⁴ (5.6·10⁻¹⁷) to ½.
 func TestTableAccuracy(t *testing.T) {
+	if testing.Short() {
+		t.Skip("compares the table with exact quantiles on a dense grid for many shapes")
+	}
 	t.Parallel()
 	rng := rand.New(rand.NewPCG(1, 2))
 	for _, d := range tableDists {
@@ -298,6 +301,9 @@ func ksStatistic(z []float64, cdf func(float64) float64) float64 {
 // TestTableKS checks 10⁶ draws against the exact CDF with the Kolmogorov–
 // Smirnov statistic, and that the same check rejects a neighbouring ν.
 func TestTableKS(t *testing.T) {
+	if testing.Short() {
+		t.Skip("draws millions of shocks")
+	}
 	t.Parallel()
 	d := SkewT{Nu: 6, Xi: 0.8}
 	z := draws(NewTable(d), 1_000_000)

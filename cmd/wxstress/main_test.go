@@ -25,7 +25,17 @@ func call(t *testing.T, ctx context.Context, args ...string) (int, string, strin
 var (
 	demoModelOnce sync.Once
 	demoModelPath string
+	demoModelDir  string // removed by TestMain
 )
+
+// TestMain removes the shared demo model's directory after the tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if demoModelDir != "" {
+		os.RemoveAll(demoModelDir)
+	}
+	os.Exit(code)
+}
 
 // demoModel fits the embedded demo station once and returns the model path.
 func demoModel(t *testing.T) string {
@@ -35,6 +45,7 @@ func demoModel(t *testing.T) string {
 		if err != nil {
 			t.Fatal(err)
 		}
+		demoModelDir = dir
 		demoModelPath = filepath.Join(dir, "demo", "model.json")
 		if code, _, stderr := call(t, context.Background(), "demo", "--paths", "200", "--dir", filepath.Join(dir, "demo")); code != 0 {
 			t.Fatalf("demo failed (%d): %s", code, stderr)
@@ -248,6 +259,9 @@ func TestSimulateScenarioErrors(t *testing.T) {
 }
 
 func TestDemoRefusesToOverwrite(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the whole demo twice")
+	}
 	t.Parallel()
 	dir := filepath.Dir(demoModel(t))
 	code, _, stderr := call(t, context.Background(), "demo", "--paths", "50", "--dir", dir)
