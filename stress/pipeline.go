@@ -48,6 +48,9 @@ type Job struct {
 	// Normals asks for each historical demand year under normal weather
 	// (needs a demand history), with NormalPaths paths per year.
 	Normals bool
+	// History asks for the record's own complete seasons beside the model
+	// (needs Temps and a simulation).
+	History bool
 
 	// ToolVersion is stamped on the fitted model files.
 	ToolVersion string
@@ -70,8 +73,9 @@ type Result struct {
 	Demand     *model.Demand           // nil without demand
 	DemandDays *calibrate.DemandDays   // the history joined to the record's temperatures
 
-	Set     *Set             // nil when the job only fits
-	Normals []sim.YearNormal // with Job.Normals
+	Set     *Set               // nil when the job only fits
+	Normals []sim.YearNormal   // with Job.Normals
+	History *HistoricalSeasons // with Job.History
 }
 
 // ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
@@ -153,6 +157,11 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		return nil, err
 	}
 	res.Set = set
+	if job.History && job.Temps != nil {
+		if res.History, err = Historical(job.Temps, res.Model, set); err != nil {
+			return nil, err
+		}
+	}
 	return res, nil
 }
 

@@ -1,0 +1,213 @@
+package stress
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+
+	"gonum.org/v1/gonum/stat"
+
+	"wxstress/calendar"
+	"wxstress/calibrate"
+	"wxstress/model"
+	"wxstress/sim"
+)
+
+// MaxSeasonGaps is the largest share of missing days a historical season may
+// have; its missing days take the model's mean for the date.
+const MaxSeasonGaps = 0.1
+
+// sdBandDraws is the number of resampled sets of seasons behind the band of
+// the historical sd.
+const sdBandDraws = 2000
+
+// Season is one complete historical period of the record with its
+// temperatures moved along the fitted trend to the target year.
+type Season struct {
+	Year    int       // the year the period ends in
+	Missing int       // days without a value (filled with the model's mean)
+	Values  []float64 // temperature indices, indexed by sim.Index
+}
+
+// WorstSeason is one of the record's worst seasons of an index with the
+// model's probability of a season at least as bad.
+type WorstSeason struct {
+	Year   int
+	Value  float64
+	Prob   float64 // share of simulated years at least as bad
+	ProbSE float64 // binomial Monte Carlo s.e.
+}
+
+// HistoryRow compares one index of one period over the record's seasons
+// with the simulated distribution.
+type HistoryRow struct {
+	Period string
+	Index  sim.Index
+	Years  []int
+	Values []float64 // the seasons' values, moved to the target year
+
+	Mean, SD, P5, P50, P95 float64
+	Worst                  []WorstSeason // the three worst, worst first
+	ModelMean, ModelSD     float64
+	// SDBand is the 5–95 % range of the sd of len(Values) seasons drawn at
+	// random from the simulated years: a historical SD outside it is
+	// evidence that the model's spread is wrong for this index.
+	SDBand [2]float64
+	// SDVerdict is "inside", "model too narrow" or "model too wide".
+	SDVerdict string
+}
+
+// HistoricalSeasons is the record's own seasons beside the model.
+type HistoricalSeasons struct {
+	TargetYear int
+	// ShiftPerYear is the trend moved per year of distance to the target
+	// year (0 without a trend), in the data's units.
+	ShiftPerYear float64
+	Seasons      map[string][]Season // by period name
+	Rows         []HistoryRow
+}
+
+// Historical takes every complete period of set's configuration in the
+// record s (the days before the model's data end), moves each day by the
+// fitted trend to set's target year, T + b·(Y − y) with y the year the
+// period ends in, computes the temperature indices with set's bases, and
+// compares their distribution with the simulated one. Seasons missing more
+// than MaxSeasonGaps of their days are left out.
+func Historical(s *calibrate.Series, m *model.File, set *Set) (*HistoricalSeasons, error) {
+	cfg := set.Config
+	h := &HistoricalSeasons{TargetYear: cfg.Year, Seasons: map[string][]Season{}}
+	if m.Trend.Kind == "linear" {
+		h.ShiftPerYear = m.Trend.SlopePerYear
+	}
+	last := s.End()
+	for _, name := range cfg.Periods {
+		for y := s.Start.Year(); y <= last.Year(); y++ {
+			p, err := sim.ParsePeriod(name, y)
+			if err != nil {
+				return nil, err
+			}
+			if p.From < s.Start || p.To > last {
+				continue
+			}
+			shift := h.ShiftPerYear * float64(cfg.Year-y)
+			days := make([]float64, 0, p.Days())
+			missing := 0
+			for d := p.From; d <= p.To; d++ {
+				v := s.Temps[int(d-s.Start)]
+				if math.IsNaN(v) {
+					v = m.Mean(d.ModelTime())
+					missing++
+				}
+				days = append(days, v+shift)
+			}
+			if float64(missing) > MaxSeasonGaps*float64(len(days)) {
+				continue
+			}
+			h.Seasons[name] = append(h.Seasons[name], Season{Year: y, Missing: missing, Values: sim.TempIndices(days, cfg.Bases)})
+		}
+	}
+	for _, name := range cfg.Periods {
+		seasons := h.Seasons[name]
+		if len(seasons) < 2 {
+			continue
+		}
+		for _, x := range sim.TempIndexList() {
+			col := column(set.Base, x, name)
+			if col == nil {
+				continue
+			}
+			row := HistoryRow{Period: name, Index: x}
+			for _, se := range seasons {
+				row.Years = append(row.Years, se.Year)
+				row.Values = append(row.Values, se.Values[x])
+			}
+			summarizeHistory(&row, col, x.Info().HighIsAdverse, cfg.Seed)
+			h.Rows = append(h.Rows, row)
+		}
+	}
+	if len(h.Rows) == 0 {
+		return nil, fmt.Errorf("stress: the record (%s to %s) holds fewer than two complete seasons of any period simulated", s.Start, last)
+	}
+	return h, nil
+}
+
+// column returns the baseline's values of index x for the named period.
+func column(r *sim.Result, x sim.Index, period string) []float64 {
+	for _, a := range r.Aggregates {
+		if a.Index == x && a.Period.Name == period {
+			return a.Values
+		}
+	}
+	return nil
+}
+
+func summarizeHistory(row *HistoryRow, sims []float64, high bool, seed uint64) {
+	v := row.Values
+	row.Mean, row.SD = stat.MeanStdDev(v, nil)
+	sorted := slices.Clone(v)
+	slices.Sort(sorted)
+	q := func(p float64) float64 { return stat.Quantile(p, stat.LinInterp, sorted, nil) }
+	row.P5, row.P50, row.P95 = q(0.05), q(0.5), q(0.95)
+	row.ModelMean, row.ModelSD = stat.MeanStdDev(sims, nil)
+
+	order := make([]int, len(v))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int {
+		if high {
+			return cmpFloat(v[b], v[a])
+		}
+		return cmpFloat(v[a], v[b])
+	})
+	n := float64(len(sims))
+	for _, i := range order[:min(3, len(order))] {
+		k := 0
+		for _, s := range sims {
+			if high && s >= v[i] || !high && s <= v[i] {
+				k++
+			}
+		}
+		p := float64(k) / n
+		row.Worst = append(row.Worst, WorstSeason{Year: row.Years[i], Value: v[i], Prob: p, ProbSE: math.Sqrt(p * (1 - p) / n)})
+	}
+
+	// The sampling range of the sd of len(v) seasons under the model.
+	r := rand.New(rand.NewPCG(seed, 0x4157))
+	sds := make([]float64, sdBandDraws)
+	draw := make([]float64, len(v))
+	for b := range sds {
+		for j := range draw {
+			draw[j] = sims[r.IntN(len(sims))]
+		}
+		sds[b] = stat.StdDev(draw, nil)
+	}
+	slices.Sort(sds)
+	row.SDBand = [2]float64{stat.Quantile(0.05, stat.LinInterp, sds, nil), stat.Quantile(0.95, stat.LinInterp, sds, nil)}
+	switch {
+	case row.SD > row.SDBand[1]:
+		row.SDVerdict = "model too narrow"
+	case row.SD < row.SDBand[0]:
+		row.SDVerdict = "model too wide"
+	default:
+		row.SDVerdict = "inside"
+	}
+}
+
+func cmpFloat(a, b float64) int {
+	switch {
+	case a < b:
+		return -1
+	case a > b:
+		return 1
+	}
+	return 0
+}
+
+// SeasonDates returns the first and last day of the named period ending in
+// year y (for reports).
+func SeasonDates(name string, y int) (calendar.Date, calendar.Date, error) {
+	p, err := sim.ParsePeriod(name, y)
+	return p.From, p.To, err
+}

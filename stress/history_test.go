@@ -1,0 +1,96 @@
+package stress
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"math"
+	"strconv"
+	"testing"
+	"time"
+
+	"wxstress/calibrate"
+	"wxstress/demo"
+	"wxstress/sim"
+)
+
+// TestHistoricalSeasonsRecomputed recomputes each heating season's HDD of
+// the demo record straight from its CSV text (encoding/csv and time.Parse,
+// not the project's reader), moved along the fitted trend to the target
+// year, and compares with the pipeline's historical seasons.
+func TestHistoricalSeasonsRecomputed(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the 71-year demo record")
+	}
+	t.Parallel()
+	series, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), &Job{Temps: series, Fit: &calibrate.Settings{},
+		Config: sim.Config{Paths: 4000, Seed: 1, Periods: []string{"heating", "year"}, Bases: sim.DefaultBases("C")},
+		History: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := res.History
+	target := res.Set.Config.Year
+	slope := res.Model.Trend.SlopePerYear
+
+	rows, err := csv.NewReader(bytes.NewReader(demo.Station())).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	temp := map[string]float64{}
+	for _, r := range rows[1:] {
+		if r[1] != "" {
+			v, err := strconv.ParseFloat(r[1], 64)
+			if err != nil {
+				t.Fatal(err)
+			}
+			temp[r[0]] = v
+		}
+	}
+	seasons := h.Seasons["heating"]
+	// The record runs 1955-01-01 to 2025-12-31: heating seasons ending in
+	// 1956 … 2025 are complete.
+	if len(seasons) != 70 || seasons[0].Year != 1956 || seasons[len(seasons)-1].Year != 2025 {
+		t.Fatalf("%d heating seasons from %d; want 70 ending 1956..2025", len(seasons), seasons[0].Year)
+	}
+	for _, se := range seasons {
+		hdd, missing := 0.0, 0
+		for d := time.Date(se.Year-1, 11, 1, 0, 0, 0, 0, time.UTC); !d.After(time.Date(se.Year, 3, 31, 0, 0, 0, 0, time.UTC)); d = d.AddDate(0, 0, 1) {
+			v, ok := temp[d.Format("2006-01-02")]
+			if !ok {
+				missing++
+				continue
+			}
+			hdd += math.Max(18-(v+slope*float64(target-se.Year)), 0)
+		}
+		if missing != se.Missing {
+			t.Errorf("season %d: %d missing days, recomputed %d", se.Year, se.Missing, missing)
+		}
+		if missing == 0 && math.Abs(hdd-se.Values[sim.HDD]) > 1e-9 {
+			t.Errorf("season %d: HDD %.6f, recomputed from the CSV %.6f", se.Year, se.Values[sim.HDD], hdd)
+		}
+	}
+	found := false
+	for _, r := range h.Rows {
+		if r.Period == "heating" && r.Index == sim.HDD {
+			found = true
+			t.Logf("heating HDD: record sd %.1f, model sd %.1f, band %.1f–%.1f (%s); worst %d %.0f p=%.4f",
+				r.SD, r.ModelSD, r.SDBand[0], r.SDBand[1], r.SDVerdict, r.Worst[0].Year, r.Worst[0].Value, r.Worst[0].Prob)
+			if r.SDVerdict != "inside" {
+				t.Errorf("the slow-part model's heating HDD sd %.1f against the record's %.1f: %s", r.ModelSD, r.SD, r.SDVerdict)
+			}
+			// The record's worst winter should not be a freak of the model:
+			// with 70 seasons it is about a 1-in-70 event.
+			if p := r.Worst[0].Prob; p < 1.0/1000 {
+				t.Errorf("the record's worst winter (%d) has model probability %.5f", r.Worst[0].Year, p)
+			}
+		}
+	}
+	if !found {
+		t.Fatal("no heating HDD row")
+	}
+}
