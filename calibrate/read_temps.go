@@ -1,23 +1,70 @@
 package calibrate
 
 import (
-	"bufio"
-	"crypto/sha256"
-	"encoding/csv"
-	"encoding/hex"
-	"errors"
 	"fmt"
-	"hash"
 	"io"
 	"math"
-	"os"
-	"sort"
-	"strconv"
 	"strings"
-	"unicode/utf8"
 
 	"wxstress/calendar"
 )
+
+// Units of a temperature series: degrees Celsius or Fahrenheit.
+type Units string
+
+const (
+	Celsius    Units = "C"
+	Fahrenheit Units = "F"
+)
+
+// Symbol returns "°C" or "°F".
+func (u Units) Symbol() string { return "°" + string(u) }
+
+// FromCelsius converts a temperature (not a difference) given in °C to these units.
+func (u Units) FromCelsius(c float64) float64 {
+	if u == Fahrenheit {
+		return c*9/5 + 32
+	}
+	return c
+}
+
+// Series is a daily mean temperature record on a complete daily grid: Temps[i]
+// is the mean of day Start+i, and NaN marks a missing day (a gap), whether the
+// row was absent or its value was missing.
+type Series struct {
+	Name  string        // the file name, for messages and the manifest
+	Start calendar.Date // first day with a value
+	Temps []float64     // daily means in Units; NaN = missing; first and last are never NaN
+	Units Units
+	// MeanFrom says how the daily mean was obtained, e.g.
+	// "(max + min)/2 from columns TMAX, TMIN" or "column tavg".
+	MeanFrom string
+	Warnings []string // things the user should know (inferred units, ...)
+	SHA256   string   // hex SHA-256 of the input bytes, for the manifest
+}
+
+// End returns the last day of the series.
+func (s *Series) End() calendar.Date { return s.Start + calendar.Date(len(s.Temps)-1) }
+
+// Date returns the date of index i.
+func (s *Series) Date(i int) calendar.Date { return s.Start + calendar.Date(i) }
+
+func (s *Series) setSHA256(hex string) { s.SHA256 = hex }
+
+// Gaps returns the number of missing days and the longest run of them.
+func (s *Series) Gaps() (missing, longest int) {
+	run := 0
+	for _, v := range s.Temps {
+		if math.IsNaN(v) {
+			missing++
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
+	}
+	return missing, longest
+}
 
 // ReadOptions controls how ReadCSV interprets a file. The zero value reads a
 // file of undeclared units with the default choice of mean.
@@ -31,9 +78,9 @@ type ReadOptions struct {
 	MeanColumn string
 }
 
-// Accepted column names, in order of preference, compared case-insensitively.
+// Accepted column names of a temperature file (besides dateNames), in order
+// of preference, compared case-insensitively.
 var (
-	dateNames = []string{"date", "day"}
 	meanNames = []string{"tavg", "tmean", "temp", "temp_mean", "mean", "tas"}
 	maxNames  = []string{"tmax", "temp_max", "max", "tx", "maximum"}
 	minNames  = []string{"tmin", "temp_min", "min", "tn", "minimum"}
@@ -56,16 +103,6 @@ const fahrenheitHint = 45.0
 // a gap of more than a year usually means a mistyped date.
 const longGap = 365
 
-// missingCode is the numeric missing-value sentinel; any spelling that parses
-// to it (-9999, -9999.0, ...) marks a gap.
-const missingCode = -9999.0
-
-// Limits on how much of a pathological file is echoed back in messages.
-const (
-	maxQuoted = 40 // bytes of a field shown in a message
-	maxListed = 20 // column names listed in a message
-)
-
 // ParseUnits reads a units name: C or F in any case, also degC, degF, °C and
 // °F.
 func ParseUnits(s string) (Units, error) {
@@ -81,46 +118,6 @@ func ParseUnits(s string) (Units, error) {
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
 func ReadFile(path string, opt ReadOptions) (*Series, error) {
 	return readPath(path, func(r io.Reader) (*Series, error) { return ReadCSV(r, path, opt) })
-}
-
-// readPath opens path and hands it to read.
-func readPath[T any](path string, read func(io.Reader) (T, error)) (T, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		var zero T
-		return zero, fmt.Errorf("calibrate: %w", err)
-	}
-	defer f.Close()
-	return read(f)
-}
-
-// csvInput is a CSV reader over an input that skips a UTF-8 byte order mark
-// and hashes every byte it reads.
-type csvInput struct {
-	hash hash.Hash
-	br   *bufio.Reader
-	cr   *csv.Reader
-}
-
-func newCSVInput(r io.Reader) *csvInput {
-	in := &csvInput{hash: sha256.New()}
-	in.br = bufio.NewReader(io.TeeReader(r, in.hash))
-	if b, err := in.br.Peek(3); err == nil && string(b) == "\uFEFF" {
-		in.br.Discard(3)
-	}
-	in.cr = csv.NewReader(in.br)
-	in.cr.ReuseRecord = true
-	in.cr.TrimLeadingSpace = true
-	return in
-}
-
-// finish drains what the CSV reader left unread, so that the hash covers
-// every byte, and returns the input's hex SHA-256.
-func (in *csvInput) finish(name string) (string, error) {
-	if _, err := io.Copy(io.Discard, in.br); err != nil {
-		return "", fmt.Errorf("calibrate: reading %s: %w", name, err)
-	}
-	return hex.EncodeToString(in.hash.Sum(nil)), nil
 }
 
 // ReadCSV reads a daily temperature record from r; name is used in messages
@@ -149,131 +146,33 @@ func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
 	default:
 		return nil, fmt.Errorf("calibrate: unknown units %q in read options: valid choices are %q and %q", string(opt.Units), string(Celsius), string(Fahrenheit))
 	}
-	in := newCSVInput(r)
-	p := &parser{name: name, opt: opt, cr: in.cr}
-	if err := p.readHeader(); err != nil {
-		return nil, err
-	}
-	if err := p.readRows(); err != nil {
-		return nil, err
-	}
-	s, err := p.series()
-	if err != nil {
-		return nil, err
-	}
-	if s.SHA256, err = in.finish(name); err != nil {
-		return nil, err
-	}
-	return s, nil
+	p := &tempParser{rowScanner: newRowScanner(r, name), opt: opt}
+	return readTable(&p.rowScanner, p.readHeader, p.readRow, p.series)
 }
 
-// parser holds the state of one ReadCSV call.
-type parser struct {
-	name string
-	opt  ReadOptions
-	cr   *csv.Reader
+// tempParser holds the state of one ReadCSV call.
+type tempParser struct {
+	rowScanner
+	opt ReadOptions
 
-	header     []string // trimmed column names as written
-	headerLine int
-	date       int // column index of the date
-	mean       int // column index of the mean, or -1 when using max/min
-	hi, lo     int // column indexes of max and min, or -1
-	meanFrom   string
-	warnings   []string
+	mean     int // column index of the mean, or -1 when using max/min
+	hi, lo   int // column indexes of max and min, or -1
+	meanFrom string
 
 	// Accepted rows, in strictly increasing date order.
 	dates []calendar.Date
 	lines []int32
 	temps []float64
-
-	errs ErrorList
-	// Past MaxErrors, errors are counted by record rather than kept:
-	// record numbers the records read, moreRows counts those with an error
-	// not listed, and droppedAt is the last of them.
-	record, moreRows, droppedAt int
 }
 
-// read reads the next CSV record.
-func (p *parser) read() ([]string, error) {
-	p.record++
-	return p.cr.Read()
-}
-
-func (p *parser) errorf(line, col int, field, format string, args ...any) {
-	if len(p.errs) >= MaxErrors {
-		if p.droppedAt != p.record {
-			p.moreRows++
-			p.droppedAt = p.record
-		}
-		return
-	}
-	p.errs = append(p.errs, &PosError{File: p.name, Line: line, Column: col, Field: field, Msg: fmt.Sprintf(format, args...)})
-}
-
-// errList returns the errors found, ending with a count of the bad rows not
-// listed when there were more than MaxErrors errors.
-func (p *parser) errList() ErrorList {
-	if p.moreRows == 0 {
-		return p.errs
-	}
-	return append(p.errs[:len(p.errs):len(p.errs)], &PosError{File: p.name,
-		Msg: fmt.Sprintf("… and %d more bad rows", p.moreRows), MoreRows: p.moreRows})
-}
-
-// csvError records a syntax error from encoding/csv, after which reading
-// goes on; any other error comes from the underlying reader and is returned,
-// to end reading.
-func (p *parser) csvError(err error, record []string) (fatal error) {
-	var pe *csv.ParseError
-	if !errors.As(err, &pe) {
-		return fmt.Errorf("calibrate: reading %s: %w", p.name, err)
-	}
-	if errors.Is(pe.Err, csv.ErrFieldCount) {
-		p.errorf(pe.Line, pe.Column, "", "wrong number of fields: %d, the header has %d", len(record), len(p.header))
-		return nil
-	}
-	if pe.StartLine != pe.Line {
-		p.errorf(pe.Line, pe.Column, "", "csv syntax: %v (in the record that starts on line %d)", pe.Err, pe.StartLine)
-		return nil
-	}
-	p.errorf(pe.Line, pe.Column, "", "csv syntax: %v", pe.Err)
-	return nil
-}
-
-// headerRow reads the header record into p.header and p.headerLine. It
-// returns false when there is no usable header, with the error to return:
-// the error list, or a failure of the input itself.
-func (p *parser) headerRow() (bool, error) {
-	record, err := p.read()
-	if err == io.EOF {
-		p.errorf(0, 0, "", "empty file: no header row")
-		return false, p.errList()
-	}
-	if err != nil {
-		if fatal := p.csvError(err, record); fatal != nil {
-			return false, fatal
-		}
-		return false, p.errList()
-	}
-	p.headerLine, _ = p.cr.FieldPos(0)
-	p.header = make([]string, len(record))
-	for i, h := range record {
-		p.header[i] = strings.TrimSpace(h)
-	}
-	return true, nil
-}
-
-func (p *parser) readHeader() error {
+func (p *tempParser) readHeader() error {
 	if ok, err := p.headerRow(); !ok {
 		return err
 	}
 
 	p.date = p.find(dateNames, "the date", true)
 	p.mean, p.hi, p.lo = -1, -1, -1
-	if p.date < 0 {
-		p.errorf(p.headerLine, 0, "", "no date column (accepted names: %s); columns found: %s",
-			strings.Join(dateNames, ", "), p.listColumns())
-	}
+	p.needColumn(p.date, "date", dateNames)
 	hi, lo := p.find(maxNames, "", false), p.find(minNames, "", false)
 	switch {
 	case p.opt.MeanColumn != "":
@@ -310,110 +209,16 @@ func (p *parser) readHeader() error {
 	return nil
 }
 
-// find returns the index of the header column whose name comes first in
-// names, or -1; with warn set, it warns when other columns could have served
-// as role.
-func (p *parser) find(names []string, role string, warn bool) int {
-	best, rank := -1, len(names)
-	var also []string
-	for i, h := range p.header {
-		r := slicesIndexFold(names, h)
-		if r < 0 {
-			continue
-		}
-		if best >= 0 {
-			if r < rank {
-				also = append(also, p.header[best])
-			} else {
-				also = append(also, h)
-				continue
-			}
-		}
-		best, rank = i, r
-	}
-	if warn && len(also) > 0 {
-		p.warnings = append(p.warnings, fmt.Sprintf("columns %s could also be %s; using column %s",
-			strings.Join(also, ", "), role, p.header[best]))
-	}
-	return best
-}
-
-func slicesIndexFold(list []string, s string) int {
-	for i, v := range list {
-		if strings.EqualFold(v, s) {
-			return i
-		}
-	}
-	return -1
-}
-
-func (p *parser) listColumns() string {
-	n := min(len(p.header), maxListed)
-	names := make([]string, n)
-	for i := range n {
-		names[i] = quote(p.header[i])
-	}
-	s := strings.Join(names, ", ")
-	if len(p.header) > n {
-		s += fmt.Sprintf(" (and %d more)", len(p.header)-n)
-	}
-	return s
-}
-
-// quote quotes s for a message, shortening it when it is long.
-func quote(s string) string {
-	if len(s) <= maxQuoted {
-		return strconv.Quote(s)
-	}
-	cut := maxQuoted
-	for cut > 0 && !utf8.RuneStart(s[cut]) {
-		cut--
-	}
-	return strconv.Quote(s[:cut]) + "…"
-}
-
 // implausible reports whether v, in the declared units, is beyond ±60 °C.
-func (p *parser) implausible(v float64) bool {
+func (p *tempParser) implausible(v float64) bool {
 	if p.opt.Units == Fahrenheit {
 		v = (v - 32) * 5 / 9
 	}
 	return math.Abs(v) > plausibleC
 }
 
-func (p *parser) readRows() error {
-	for {
-		record, err := p.read()
-		if err == io.EOF {
-			break
-		}
-		if (err == nil || errors.Is(err, csv.ErrFieldCount)) && blank(record) {
-			continue // a line of spaces or empty fields
-		}
-		if err != nil {
-			if fatal := p.csvError(err, record); fatal != nil {
-				return fatal
-			}
-			continue
-		}
-		p.readRow(record)
-	}
-	if len(p.errs) > 0 {
-		return p.errList()
-	}
-	return nil
-}
-
-func blank(record []string) bool {
-	for _, f := range record {
-		if strings.TrimSpace(f) != "" {
-			return false
-		}
-	}
-	return true
-}
-
 // readRow checks one data row and, when its date is usable, appends it.
-func (p *parser) readRow(record []string) {
+func (p *tempParser) readRow(record []string) {
 	before := len(p.errs)
 	defer func() { sortByColumn(p.errs[before:]) }()
 
@@ -424,59 +229,26 @@ func (p *parser) readRow(record []string) {
 		hi := p.value(record, p.hi)
 		lo := p.value(record, p.lo)
 		if hi < lo {
-			line, col := p.cr.FieldPos(p.lo)
-			p.errorf(line, col, p.header[p.lo], "minimum %s is above the maximum %s (column %s)",
+			p.fieldErrorf(p.lo, "minimum %s is above the maximum %s (column %s)",
 				quote(strings.TrimSpace(record[p.lo])), quote(strings.TrimSpace(record[p.hi])), p.header[p.hi])
 		}
 		t = (hi + lo) / 2 // NaN when either is missing
 	}
 
-	raw := strings.TrimSpace(record[p.date])
-	line, col := p.cr.FieldPos(p.date)
-	field := p.header[p.date]
-	d, err := calendar.Parse(raw)
-	if err != nil {
-		if raw == "" {
-			p.errorf(line, col, field, "missing date")
-		} else {
-			p.errorf(line, col, field, "not a date of the form YYYY-MM-DD: %s", quote(raw))
-		}
-		return
-	}
-	if n := len(p.dates); n > 0 && d <= p.dates[n-1] {
-		if i := sort.Search(n, func(i int) bool { return p.dates[i] >= d }); p.dates[i] == d {
-			p.errorf(line, col, field, "duplicate date %s, first on line %d", quote(raw), p.lines[i])
-		} else {
-			p.errorf(line, col, field, "date %s is out of order: it follows %s on line %d",
-				quote(raw), p.dates[n-1], p.lines[n-1])
-		}
+	d, line, _, ok := p.rowDate(record, p.dates, p.lines)
+	if !ok {
 		return
 	}
 	p.dates = append(p.dates, d)
-	p.lines = append(p.lines, int32(min(line, math.MaxInt32)))
+	p.lines = append(p.lines, lineNumber(line))
 	p.temps = append(p.temps, t)
 }
 
 // value parses field i of record: NaN for a missing value, and NaN with an
-// error recorded for a bad one.
-func (p *parser) value(record []string, i int) float64 {
-	raw := strings.TrimSpace(record[i])
-	if isMissing(raw) {
-		return math.NaN()
-	}
-	line, col := p.cr.FieldPos(i)
-	field := p.header[i]
-	v, err := strconv.ParseFloat(raw, 64)
-	switch {
-	case err == nil && !math.IsInf(v, 0) && !math.IsNaN(v) && !strings.ContainsAny(raw, "_xX"):
-	case errors.Is(err, strconv.ErrRange) || (err == nil && (math.IsInf(v, 0) || math.IsNaN(v))):
-		p.errorf(line, col, field, "not a finite number: %s", quote(raw))
-		return math.NaN()
-	default:
-		p.errorf(line, col, field, "not a number: %s", quote(raw))
-		return math.NaN()
-	}
-	if v == missingCode {
+// error recorded for a bad or implausible one.
+func (p *tempParser) value(record []string, i int) float64 {
+	v, raw, ok := p.number(record, i)
+	if !ok {
 		return math.NaN()
 	}
 	if p.implausible(v) {
@@ -487,29 +259,15 @@ func (p *parser) value(record []string, i int) float64 {
 		if p.opt.Units == Fahrenheit {
 			limits = "−76 to 140 °F (±60 °C)"
 		}
-		p.errorf(line, col, field, "implausible temperature %s: beyond %s%s", quote(raw), limits, hint)
+		p.fieldErrorf(i, "implausible temperature %s: beyond %s%s", quote(raw), limits, hint)
 		return math.NaN()
 	}
 	return v
 }
 
-func isMissing(s string) bool {
-	return s == "" || strings.EqualFold(s, "na") || strings.EqualFold(s, "nan") || strings.EqualFold(s, "null")
-}
-
-// sortByColumn puts the errors of one row in column order (insertion sort:
-// a row has at most a few).
-func sortByColumn(errs []*PosError) {
-	for i := 1; i < len(errs); i++ {
-		for j := i; j > 0 && errs[j].Column < errs[j-1].Column; j-- {
-			errs[j], errs[j-1] = errs[j-1], errs[j]
-		}
-	}
-}
-
 // series lays the accepted rows on a daily grid, trims missing ends and
 // checks what needs the whole record.
-func (p *parser) series() (*Series, error) {
+func (p *tempParser) series() (*Series, error) {
 	if len(p.dates) == 0 {
 		p.errorf(0, 0, "", "no data rows after the header")
 		return nil, p.errList()
