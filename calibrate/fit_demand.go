@@ -184,7 +184,7 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 	}
 	fit, err := f.olsAt(chosen, b.tbH, b.tbC)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w: %s form at the chosen balance points: %v", name, ErrFit, chosen, err)
+		return nil, fmt.Errorf("%s: %w: %s form at the chosen balance points: %w", name, ErrFit, chosen, err)
 	}
 	f.fill(m, chosen, fit, b.tbH, b.tbC)
 
@@ -369,7 +369,7 @@ func fitNoise(m *model.Demand, dates []calendar.Date, r []float64) error {
 	}
 	ar, err := ols(mat.NewDense(len(x), 1, x), y)
 	if err != nil {
-		return fmt.Errorf("%w: residual AR(1): %v", ErrFit, err)
+		return fmt.Errorf("%w: residual AR(1): %w", ErrFit, err)
 	}
 	phi := ar.Beta[0]
 	if !(math.Abs(phi) < 1) {

@@ -164,7 +164,7 @@ func quantile7(x []float64, p float64) float64 {
 func (f *demandFitter) project(v []float64) ([]float64, error) {
 	var w mat.Dense
 	if err := f.qr.SolveTo(&w, false, mat.NewVecDense(f.n, v)); err != nil {
-		return nil, fmt.Errorf("%w: weekday and holiday terms: %v", ErrFit, errRankDeficient)
+		return nil, fmt.Errorf("%w: weekday and holiday terms: %w", ErrFit, errRankDeficient)
 	}
 	out := make([]float64, f.k)
 	for j := range out {

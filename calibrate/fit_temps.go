@@ -135,7 +135,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	for K := 1; K <= MaxHarmonics; K++ {
 		fit, err := ols(design(s, obs, K, trendKind == "linear", calendar.DaysPerYear), values(s, obs))
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %v", s.Name, ErrFit, K, err)
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, K, err)
 		}
 		d.HarmonicsTable = append(d.HarmonicsTable, model.OrderScore{Order: K, BIC: fit.BIC()})
 		if set.Harmonics == 0 && (K == 1 || fit.BIC() < mean.BIC()) || set.Harmonics == K {
@@ -154,7 +154,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 			"so extrapolating it would add more error than it removes", annual, annualSE)
 		var err error
 		if mean, err = ols(design(s, obs, k, false, calendar.DaysPerYear), values(s, obs)); err != nil {
-			return nil, fmt.Errorf("%s: %w: mean model: %v", s.Name, ErrFit, err)
+			return nil, fmt.Errorf("%s: %w: mean model: %w", s.Name, ErrFit, err)
 		}
 		f.Trend, f.Seasonal = meanParams(mean, k, false, calendar.DaysPerYear)
 	}
@@ -167,7 +167,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	if trendKind != "linear" {
 		var err error
 		if withTrend, err = ols(design(s, obs, k, true, calendar.DaysPerYear), values(s, obs)); err != nil {
-			return nil, fmt.Errorf("%s: %w: trend estimate: %v", s.Name, ErrFit, err)
+			return nil, fmt.Errorf("%s: %w: trend estimate: %w", s.Name, ErrFit, err)
 		}
 	}
 
@@ -190,7 +190,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		xm, y := lagged(x, q, q)
 		fit, err := ols(xm, y)
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+			return nil, fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, q, err)
 		}
 		clsPhi[q-1] = fit.Beta
 		if model.SpectralRadius(fit.Beta) >= 0.999 {
@@ -203,7 +203,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	}
 	proj, err := newProjector(design(s, obs, k, trendKind == "linear", calendar.DaysPerYear), obs)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", s.Name, ErrFit, err)
+		return nil, fmt.Errorf("%s: %w: %w", s.Name, ErrFit, err)
 	}
 	if set.Method == "cls" {
 		if err := fitCLS(s, x, set, f, d); err != nil {
@@ -627,14 +627,14 @@ func fitCLS(s *Series, x []float64, set *Settings, f *model.File, d *model.Diagn
 		xm, y := lagged(x, q, MaxAROrder)
 		fit, err := ols(xm, y)
 		if err != nil {
-			return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+			return fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, q, err)
 		}
 		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: fit.BIC(), Chosen: q == p})
 	}
 	xm, y := lagged(x, p, p)
 	ar, err := ols(xm, y)
 	if err != nil {
-		return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, p, err)
+		return fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, p, err)
 	}
 	d.ARPairs = ar.N
 	f.AR = model.AR{Phi: ar.Beta, PhiSE: ar.SE, Last: lastAnomalies(x, p)}
