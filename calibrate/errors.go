@@ -9,6 +9,10 @@ import (
 // ErrBadInput is the cause wrapped by every positioned input error.
 var ErrBadInput = errors.New("bad input")
 
+// ErrFit is wrapped by errors that come from the data being unfit for the
+// model (too short, too many gaps in a month, degenerate values).
+var ErrFit = errors.New("cannot fit")
+
 // PosError is an input error at a position in a file: file:line:column: message.
 // Line and Column are 1-based; a zero Column means the whole line, a zero Line
 // the whole file.

@@ -1,7 +1,6 @@
 package calibrate
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -57,10 +56,6 @@ const (
 // the columns of comparable size, which conditions the QR solve.
 const decade = 10 * calendar.DaysPerYear
 
-// ErrFit is wrapped by errors that come from the data being unfit for the
-// model (too short, too many gaps in a month, degenerate values).
-var ErrFit = errors.New("cannot fit")
-
 // Validate checks the settings and names the valid choices.
 func (s *Settings) Validate() error {
 	if s.Harmonics < 0 || s.Harmonics > MaxHarmonics {
@@ -105,8 +100,18 @@ type Result struct {
 	Z       []float64 // standardized innovations on the grid, NaN where undefined
 }
 
-// Fit calibrates the temperature model to s. The model's tool_version is
-// left for the caller to set.
+// Fit calibrates the temperature model (see model.File) to s:
+//
+//	T(t) = S(t) + X(t),  X(t) = Y(t) + F(t)
+//	S(t) = a + b·t + Σₖ [cₖ cos(kωt) + sₖ sin(kωt)],  ω = 2π/365.25
+//	Y(t) = Σᵢ φᵢ Y(t−i) + σ(month of t)·ε(t)
+//	F(t) = φ_s F(t−1) + s_F √(1 − φ_s²)·η(t)
+//
+// S by least squares (harmonics and trend per set), the fast AR Y and the
+// slow part F by exact likelihood (package statespace; with Method "cls",
+// Y alone by conditional least squares), and the family of the unit-variance
+// shocks ε by maximum likelihood on the standardized innovations. The
+// model's tool_version is left for the caller to set.
 func Fit(s *Series, set *Settings) (*Result, error) {
 	if set == nil {
 		set = &Settings{}
