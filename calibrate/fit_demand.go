@@ -111,7 +111,9 @@ func JoinDemand(d *DemandSeries, s *Series) (*DemandDays, error) {
 	return out, nil
 }
 
-// DemandResult is a fitted demand model with the days it was fitted to.
+// DemandResult is a fitted demand model with the days it was fitted to:
+// Fitted is D(t) − u(t), the load the model expects on each day, and
+// Residual is u(t).
 type DemandResult struct {
 	Model    *model.Demand
 	Days     *DemandDays
