@@ -63,7 +63,7 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 	months := monthsOf(s)
 	consider := set.Slow != SlowNone
 	fail := func(what string, err error) error {
-		return fmt.Errorf("%s: %w: %s: %v", s.Name, ErrFit, what, err)
+		return fmt.Errorf("%s: %w: %s: %w", s.Name, ErrFit, what, err)
 	}
 
 	// Order table: AR(1) fitted in full, higher orders profiled with the

@@ -82,3 +82,6 @@ func ols(x *mat.Dense, y []float64) (olsFit, error) {
 	}
 	return f, nil
 }
+
+// k returns the number of regression coefficients of a fit.
+func (o olsFit) k() int { return len(o.Beta) }

@@ -3,69 +3,15 @@ package calibrate
 import (
 	"errors"
 	"fmt"
-	"math"
 	"strings"
-
-	"wxstress/calendar"
 )
-
-// Units of a temperature series: degrees Celsius or Fahrenheit.
-type Units string
-
-const (
-	Celsius    Units = "C"
-	Fahrenheit Units = "F"
-)
-
-// Symbol returns "°C" or "°F".
-func (u Units) Symbol() string { return "°" + string(u) }
-
-// FromCelsius converts a temperature (not a difference) given in °C to these units.
-func (u Units) FromCelsius(c float64) float64 {
-	if u == Fahrenheit {
-		return c*9/5 + 32
-	}
-	return c
-}
-
-// Series is a daily mean temperature record on a complete daily grid: Temps[i]
-// is the mean of day Start+i, and NaN marks a missing day (a gap), whether the
-// row was absent or its value was missing.
-type Series struct {
-	Name  string        // the file name, for messages and the manifest
-	Start calendar.Date // first day with a value
-	Temps []float64     // daily means in Units; NaN = missing; first and last are never NaN
-	Units Units
-	// MeanFrom says how the daily mean was obtained, e.g.
-	// "(max + min)/2 from columns TMAX, TMIN" or "column tavg".
-	MeanFrom string
-	Warnings []string // things the user should know (inferred units, ...)
-	SHA256   string   // hex SHA-256 of the input bytes, for the manifest
-}
-
-// End returns the last day of the series.
-func (s *Series) End() calendar.Date { return s.Start + calendar.Date(len(s.Temps)-1) }
-
-// Date returns the date of index i.
-func (s *Series) Date(i int) calendar.Date { return s.Start + calendar.Date(i) }
-
-// Gaps returns the number of missing days and the longest run of them.
-func (s *Series) Gaps() (missing, longest int) {
-	run := 0
-	for _, v := range s.Temps {
-		if math.IsNaN(v) {
-			missing++
-			run++
-			longest = max(longest, run)
-		} else {
-			run = 0
-		}
-	}
-	return missing, longest
-}
 
 // ErrBadInput is the cause wrapped by every positioned input error.
 var ErrBadInput = errors.New("bad input")
+
+// ErrFit is wrapped by errors that come from the data being unfit for the
+// model (too short, too many gaps in a month, degenerate values).
+var ErrFit = errors.New("cannot fit")
 
 // PosError is an input error at a position in a file: file:line:column: message.
 // Line and Column are 1-based; a zero Column means the whole line, a zero Line

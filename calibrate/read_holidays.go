@@ -1,8 +1,6 @@
 package calibrate
 
 import (
-	"bufio"
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -78,42 +76,23 @@ func ReadHolidaysFile(path string) (*Holidays, error) {
 // reported as an ErrorList of *PosError, like ReadCSV's, each naming the
 // line and column and what is accepted.
 func ReadHolidays(r io.Reader, name string) (*Holidays, error) {
-	br := bufio.NewReader(r)
-	if b, err := br.Peek(3); err == nil && string(b) == "\uFEFF" {
-		br.Discard(3)
-	}
-	cr := csv.NewReader(br)
-	cr.FieldsPerRecord = -1
-	cr.TrimLeadingSpace = true
-	cr.Comment = '#'
-	hp := &holidayParser{parser: parser{name: name, cr: cr}, date: -1, rule: -1, label: -1}
+	hp := &holidayParser{rowScanner: newRowScanner(r, name), rule: -1, label: -1}
+	hp.cr.FieldsPerRecord = -1 // rows may have any number of fields
+	hp.cr.Comment = '#'
 	header := false
-	for {
-		record, err := hp.read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			if fatal := hp.csvError(err, record); fatal != nil {
-				return nil, fatal
-			}
-			continue
-		}
-		if blank(record) {
-			continue
-		}
+	err := hp.scanRows(func(record []string) {
 		if !header {
 			header = true
 			if hp.readHeader(record) {
-				continue
+				return
 			}
 			hp.date = 0 // a plain list: the entry is the first field
 			hp.plain = true
 		}
 		hp.readRow(record)
-	}
-	if len(hp.errs) > 0 {
-		return nil, hp.errList()
+	})
+	if err != nil {
+		return nil, err
 	}
 	if len(hp.dates) == 0 && len(hp.h.Rules) == 0 {
 		hp.errorf(0, 0, "", "no holiday dates or rules")
@@ -138,11 +117,11 @@ type namedDate struct {
 
 // holidayParser holds the state of one ReadHolidays call.
 type holidayParser struct {
-	parser
-	plain             bool // a list without a header
-	date, rule, label int  // column indexes, -1 when absent
-	dates             []namedDate
-	h                 Holidays
+	rowScanner
+	plain       bool // a list without a header
+	rule, label int  // column indexes, -1 when absent (the date's is rowScanner.date)
+	dates       []namedDate
+	h           Holidays
 }
 
 // readHeader reports whether record is a header row (it names a date or a

@@ -1,14 +1,10 @@
 package calibrate
 
 import (
-	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
 	"slices"
-	"sort"
-	"strconv"
 	"strings"
 
 	"wxstress/calendar"
@@ -56,6 +52,8 @@ type DemandSeries struct {
 // DaysWithLoad returns the number of rows with a load.
 func (d *DemandSeries) DaysWithLoad() int { return len(d.Dates) - d.Missing }
 
+func (d *DemandSeries) setSHA256(hex string) { d.SHA256 = hex }
+
 // Accepted column names of a demand file, compared case-insensitively.
 var (
 	loadNames    = []string{"load", "demand", "consumption", "value"}
@@ -91,28 +89,13 @@ func ReadDemandFile(path string, opt DemandReadOptions) (*DemandSeries, error) {
 // found, each with its line and column (the first MaxErrors, then a count of
 // the further bad rows); the list wraps ErrBadInput. A failure of r itself is returned wrapped, without ErrBadInput.
 func ReadDemand(r io.Reader, name string, opt DemandReadOptions) (*DemandSeries, error) {
-	in := newCSVInput(r)
-	p := &demandParser{parser: parser{name: name, cr: in.cr}, opt: opt}
-	if err := p.readHeader(); err != nil {
-		return nil, err
-	}
-	if err := p.readRows(); err != nil {
-		return nil, err
-	}
-	d, err := p.series()
-	if err != nil {
-		return nil, err
-	}
-	if d.SHA256, err = in.finish(name); err != nil {
-		return nil, err
-	}
-	return d, nil
+	p := &demandParser{rowScanner: newRowScanner(r, name), opt: opt}
+	return readTable(&p.rowScanner, p.readHeader, p.readRow, p.series)
 }
 
-// demandParser holds the state of one ReadDemand call. It shares the
-// temperature reader's error handling and column search.
+// demandParser holds the state of one ReadDemand call.
 type demandParser struct {
-	parser
+	rowScanner
 	opt     DemandReadOptions
 	load    int // column index of the load
 	holiday int // column index of the holiday flag, or -1
@@ -126,14 +109,8 @@ func (p *demandParser) readHeader() error {
 	p.date = p.find(dateNames, "the date", true)
 	p.load = p.find(loadNames, "the load", true)
 	p.holiday = p.find(holidayNames, "the holiday flag", true)
-	if p.date < 0 {
-		p.errorf(p.headerLine, 0, "", "no date column (accepted names: %s); columns found: %s",
-			strings.Join(dateNames, ", "), p.listColumns())
-	}
-	if p.load < 0 {
-		p.errorf(p.headerLine, 0, "", "no load column (accepted names: %s); columns found: %s",
-			strings.Join(loadNames, ", "), p.listColumns())
-	}
+	p.needColumn(p.date, "date", dateNames)
+	p.needColumn(p.load, "load", loadNames)
 	if len(p.errs) > 0 {
 		return p.errList()
 	}
@@ -141,29 +118,6 @@ func (p *demandParser) readHeader() error {
 	p.d.LoadColumn = p.header[p.load]
 	if p.holiday >= 0 {
 		p.d.HolidayColumn = p.header[p.holiday]
-	}
-	return nil
-}
-
-func (p *demandParser) readRows() error {
-	for {
-		record, err := p.read()
-		if err == io.EOF {
-			break
-		}
-		if (err == nil || errors.Is(err, csv.ErrFieldCount)) && blank(record) {
-			continue
-		}
-		if err != nil {
-			if fatal := p.csvError(err, record); fatal != nil {
-				return fatal
-			}
-			continue
-		}
-		p.readRow(record)
-	}
-	if len(p.errs) > 0 {
-		return p.errList()
 	}
 	return nil
 }
@@ -178,59 +132,26 @@ func (p *demandParser) readRow(record []string) {
 	if p.holiday >= 0 {
 		hol = p.holidayValue(record)
 	}
-	raw := strings.TrimSpace(record[p.date])
-	line, col := p.cr.FieldPos(p.date)
-	field := p.header[p.date]
-	d, err := calendar.Parse(raw)
-	if err != nil {
-		if raw == "" {
-			p.errorf(line, col, field, "missing date")
-		} else {
-			p.errorf(line, col, field, "not a date of the form YYYY-MM-DD: %s", quote(raw))
-		}
-		return
-	}
-	dates := p.d.Dates
-	if n := len(dates); n > 0 && d <= dates[n-1] {
-		if i := sort.Search(n, func(i int) bool { return dates[i] >= d }); dates[i] == d {
-			p.errorf(line, col, field, "duplicate date %s, first on line %d", quote(raw), p.d.Line[i])
-		} else {
-			p.errorf(line, col, field, "date %s is out of order: it follows %s on line %d",
-				quote(raw), dates[n-1], p.d.Line[n-1])
-		}
+	d, line, col, ok := p.rowDate(record, p.d.Dates, p.d.Line)
+	if !ok {
 		return
 	}
 	p.d.Dates = append(p.d.Dates, d)
 	p.d.Load = append(p.d.Load, load)
 	p.d.Holiday = append(p.d.Holiday, hol)
-	p.d.Line = append(p.d.Line, int32(min(line, math.MaxInt32)))
-	p.d.Column = append(p.d.Column, int32(min(col, math.MaxInt32)))
+	p.d.Line = append(p.d.Line, lineNumber(line))
+	p.d.Column = append(p.d.Column, lineNumber(col))
 }
 
 // loadValue parses the load field: NaN for a missing value, and NaN with an
 // error recorded for a bad one.
 func (p *demandParser) loadValue(record []string) float64 {
-	raw := strings.TrimSpace(record[p.load])
-	if isMissing(raw) {
-		return math.NaN()
-	}
-	line, col := p.cr.FieldPos(p.load)
-	field := p.header[p.load]
-	v, err := strconv.ParseFloat(raw, 64)
-	switch {
-	case err == nil && !math.IsInf(v, 0) && !math.IsNaN(v) && !strings.ContainsAny(raw, "_xX"):
-	case errors.Is(err, strconv.ErrRange) || (err == nil && (math.IsInf(v, 0) || math.IsNaN(v))):
-		p.errorf(line, col, field, "not a finite number: %s", quote(raw))
-		return math.NaN()
-	default:
-		p.errorf(line, col, field, "not a number: %s", quote(raw))
-		return math.NaN()
-	}
-	if v == missingCode {
+	v, raw, ok := p.number(record, p.load)
+	if !ok {
 		return math.NaN()
 	}
 	if v < 0 {
-		p.errorf(line, col, field, "negative load %s: a load must be zero or more (leave it empty if it is missing)", quote(raw))
+		p.fieldErrorf(p.load, "negative load %s: a load must be zero or more (leave it empty if it is missing)", quote(raw))
 		return math.NaN()
 	}
 	return v
@@ -246,8 +167,7 @@ func (p *demandParser) holidayValue(record []string) bool {
 	case "1", "true", "yes":
 		return true
 	}
-	line, col := p.cr.FieldPos(p.holiday)
-	p.errorf(line, col, p.header[p.holiday], "not a holiday flag: %s (want 1/0, true/false, yes/no or empty)", quote(raw))
+	p.fieldErrorf(p.holiday, "not a holiday flag: %s (want 1/0, true/false, yes/no or empty)", quote(raw))
 	return false
 }
 

@@ -1,7 +1,6 @@
 package calibrate
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -57,10 +56,6 @@ const (
 // the columns of comparable size, which conditions the QR solve.
 const decade = 10 * calendar.DaysPerYear
 
-// ErrFit is wrapped by errors that come from the data being unfit for the
-// model (too short, too many gaps in a month, degenerate values).
-var ErrFit = errors.New("cannot fit")
-
 // Validate checks the settings and names the valid choices.
 func (s *Settings) Validate() error {
 	if s.Harmonics < 0 || s.Harmonics > MaxHarmonics {
@@ -105,8 +100,18 @@ type Result struct {
 	Z       []float64 // standardized innovations on the grid, NaN where undefined
 }
 
-// Fit calibrates the temperature model to s. The model's tool_version is
-// left for the caller to set.
+// Fit calibrates the temperature model (see model.File) to s:
+//
+//	T(t) = S(t) + X(t),  X(t) = Y(t) + F(t)
+//	S(t) = a + b·t + Σₖ [cₖ cos(kωt) + sₖ sin(kωt)],  ω = 2π/365.25
+//	Y(t) = Σᵢ φᵢ Y(t−i) + σ(month of t)·ε(t)
+//	F(t) = φ_s F(t−1) + s_F √(1 − φ_s²)·η(t)
+//
+// S by least squares (harmonics and trend per set), the fast AR Y and the
+// slow part F by exact likelihood (package statespace; with Method "cls",
+// Y alone by conditional least squares), and the family of the unit-variance
+// shocks ε by maximum likelihood on the standardized innovations. The
+// model's tool_version is left for the caller to set.
 func Fit(s *Series, set *Settings) (*Result, error) {
 	if set == nil {
 		set = &Settings{}
@@ -135,7 +140,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	for K := 1; K <= MaxHarmonics; K++ {
 		fit, err := ols(design(s, obs, K, trendKind == "linear", calendar.DaysPerYear), values(s, obs))
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %v", s.Name, ErrFit, K, err)
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, K, err)
 		}
 		d.HarmonicsTable = append(d.HarmonicsTable, model.OrderScore{Order: K, BIC: fit.BIC()})
 		if set.Harmonics == 0 && (K == 1 || fit.BIC() < mean.BIC()) || set.Harmonics == K {
@@ -154,7 +159,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 			"so extrapolating it would add more error than it removes", annual, annualSE)
 		var err error
 		if mean, err = ols(design(s, obs, k, false, calendar.DaysPerYear), values(s, obs)); err != nil {
-			return nil, fmt.Errorf("%s: %w: mean model: %v", s.Name, ErrFit, err)
+			return nil, fmt.Errorf("%s: %w: mean model: %w", s.Name, ErrFit, err)
 		}
 		f.Trend, f.Seasonal = meanParams(mean, k, false, calendar.DaysPerYear)
 	}
@@ -167,7 +172,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	if trendKind != "linear" {
 		var err error
 		if withTrend, err = ols(design(s, obs, k, true, calendar.DaysPerYear), values(s, obs)); err != nil {
-			return nil, fmt.Errorf("%s: %w: trend estimate: %v", s.Name, ErrFit, err)
+			return nil, fmt.Errorf("%s: %w: trend estimate: %w", s.Name, ErrFit, err)
 		}
 	}
 
@@ -190,7 +195,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		xm, y := lagged(x, q, q)
 		fit, err := ols(xm, y)
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+			return nil, fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, q, err)
 		}
 		clsPhi[q-1] = fit.Beta
 		if model.SpectralRadius(fit.Beta) >= 0.999 {
@@ -203,7 +208,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	}
 	proj, err := newProjector(design(s, obs, k, trendKind == "linear", calendar.DaysPerYear), obs)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", s.Name, ErrFit, err)
+		return nil, fmt.Errorf("%s: %w: %w", s.Name, ErrFit, err)
 	}
 	if set.Method == "cls" {
 		if err := fitCLS(s, x, set, f, d); err != nil {
@@ -627,14 +632,14 @@ func fitCLS(s *Series, x []float64, set *Settings, f *model.File, d *model.Diagn
 		xm, y := lagged(x, q, MaxAROrder)
 		fit, err := ols(xm, y)
 		if err != nil {
-			return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, q, err)
+			return fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, q, err)
 		}
 		d.ARTable = append(d.ARTable, model.OrderScore{Order: q, BIC: fit.BIC(), Chosen: q == p})
 	}
 	xm, y := lagged(x, p, p)
 	ar, err := ols(xm, y)
 	if err != nil {
-		return fmt.Errorf("%s: %w: AR(%d): %v", s.Name, ErrFit, p, err)
+		return fmt.Errorf("%s: %w: AR(%d): %w", s.Name, ErrFit, p, err)
 	}
 	d.ARPairs = ar.N
 	f.AR = model.AR{Phi: ar.Beta, PhiSE: ar.SE, Last: lastAnomalies(x, p)}
