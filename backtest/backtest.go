@@ -52,7 +52,9 @@ type Options struct {
 	Bases   sim.Bases // zero: the units' defaults
 	Fit     *calibrate.Settings
 	Workers int // origins fitted at once; 0 = GOMAXPROCS
-	// Refit fits one origin's record; nil means calibrate.Fit with Fit.
+	// Refit fits one origin's record; nil means: the structure chosen by
+	// calibrate.Fit with Fit on the record before the earliest origin, then
+	// a lean refit of that structure for every origin.
 	Refit func(*calibrate.Series, *calibrate.Settings) (*model.File, error)
 }
 
@@ -99,19 +101,6 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 	if opt.Bases == (sim.Bases{}) {
 		opt.Bases = sim.DefaultBases(string(s.Units))
 	}
-	if opt.Refit == nil {
-		opt.Refit = func(s *calibrate.Series, set *calibrate.Settings) (*model.File, error) {
-			r, err := calibrate.Fit(s, set)
-			if err != nil {
-				return nil, err
-			}
-			return r.Model, nil
-		}
-	}
-	type job struct {
-		period string
-		p      sim.Period
-	}
 	var jobs []job
 	for _, name := range opt.Periods {
 		n := 0
@@ -132,6 +121,12 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 	}
 	if len(jobs) == 0 {
 		return nil, fmt.Errorf("%w: %s to %s has no complete period after %d years of record", ErrShort, s.Start, s.End(), MinTrainYears)
+	}
+	if opt.Refit == nil {
+		var err error
+		if opt.Refit, err = leanRefit(s, jobs[0].p.From, jobs, opt.Fit); err != nil {
+			return nil, err
+		}
 	}
 
 	// One fit per cut date: periods that start on the same day share it.
@@ -284,6 +279,43 @@ func (c *climate) before(year int, x sim.Index) []float64 {
 		return nil
 	}
 	return v
+}
+
+type job struct {
+	period string
+	p      sim.Period
+}
+
+// leanRefit chooses the model's structure (harmonics, AR order, slow part,
+// shock family) with the full automatic fit on the record before the
+// earliest origin, so that no origin's choices see its own period, and
+// returns a refit of that structure by the lean path, started from that
+// fit.
+func leanRefit(s *calibrate.Series, _ calendar.Date, jobs []job, set *calibrate.Settings) (func(*calibrate.Series, *calibrate.Settings) (*model.File, error), error) {
+	first := jobs[0].p.From
+	for _, j := range jobs {
+		first = min(first, j.p.From)
+	}
+	base, err := calibrate.Fit(truncate(s, first), set)
+	if err != nil {
+		return nil, fmt.Errorf("backtest: fit on the record to %s: %w", first-1, err)
+	}
+	m := base.Model
+	lean := calibrate.Settings{Harmonics: len(m.Seasonal.Harmonics), AROrder: len(m.AR.Phi), Slow: calibrate.SlowNone,
+		Trend: m.Trend.Kind, Shocks: m.Shocks.Family, Lean: true, Start: m}
+	if m.Slow != nil {
+		lean.Slow = calibrate.SlowOn
+	}
+	if lean.Shocks == model.FamilyBootstrap {
+		lean.Shocks = m.Diagnostics.KSFamily // the best parametric family
+	}
+	return func(tr *calibrate.Series, _ *calibrate.Settings) (*model.File, error) {
+		r, err := calibrate.Fit(tr, &lean)
+		if err != nil {
+			return nil, err
+		}
+		return r.Model, nil
+	}, nil
 }
 
 // fitOnce fits one cut date once, whichever origin asks first.

@@ -29,6 +29,14 @@ type Settings struct {
 	// least squares for a fast AR alone (order table on one common sample,
 	// monthly σ from the residuals), no slow part and no spread bands.
 	Method string
+	// Lean is the path for repeated refits (backtests, bootstraps): the
+	// structure is given — Harmonics, AROrder, Slow ("on" or "none") and a
+	// parametric Shocks family must be set — and the fit skips the order
+	// tables, the likelihood-ratio test, the spread bands, the standard
+	// errors and the residual diagnostics (Diagnostics is nil). Start, when
+	// set, is a previous fit of the same structure to start from.
+	Lean  bool
+	Start *model.File
 }
 
 // Limits and rules of the fit.
@@ -68,6 +76,10 @@ func (s *Settings) Validate() error {
 	case "", SlowAuto, SlowOn, SlowNone:
 	default:
 		return fmt.Errorf("calibrate: slow %q: want auto, on or none", s.Slow)
+	}
+	if s.Lean && (s.Harmonics == 0 || s.AROrder == 0 || (s.Slow != SlowOn && s.Slow != SlowNone) ||
+		s.Shocks == "" || s.Shocks == "auto" || s.Shocks == model.FamilyBootstrap || s.Method == "cls") {
+		return fmt.Errorf("calibrate: the lean fit needs the harmonics, the AR order, --slow on or none and a parametric shock family")
 	}
 	switch s.Method {
 	case "", "exact":
@@ -138,6 +150,10 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	var mean olsFit
 	k := set.Harmonics
 	for K := 1; K <= MaxHarmonics; K++ {
+		if set.Lean && K != set.Harmonics {
+			d.HarmonicsTable = append(d.HarmonicsTable, model.OrderScore{Order: K})
+			continue
+		}
 		fit, err := ols(design(s, obs, K, trendKind == "linear", calendar.DaysPerYear), values(s, obs))
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, K, err)
@@ -177,6 +193,9 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	}
 
 	res := &Result{Model: f, Series: s, Fitted: make([]float64, len(s.Temps)), Anomaly: make([]float64, len(s.Temps))}
+	if set.Lean {
+		return fitLean(res, s, set, f)
+	}
 	for i := range s.Temps {
 		res.Fitted[i] = f.Mean(s.Date(i).ModelTime())
 		res.Anomaly[i] = s.Temps[i] - res.Fitted[i]

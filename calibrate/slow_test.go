@@ -133,3 +133,47 @@ func TestSlowNotSelectedOnPureAR1(t *testing.T) {
 		t.Errorf("slow part kept on a pure AR(1) and moves the annual HDD sd by %.1f %% (%s)", 100*(a/b-1), c.Rule)
 	}
 }
+
+// TestLeanFitMatchesFull fits the demo record both ways with the same
+// structure: the lean path must land on the same maximum (parameters to a
+// small fraction of their standard errors).
+func TestLeanFitMatchesFull(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 71 years twice")
+	}
+	t.Parallel()
+	s, err := ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, ReadOptions{Units: Celsius})
+	if err != nil {
+		t.Fatal(err)
+	}
+	set := &Settings{Harmonics: 2, AROrder: 1, Slow: SlowOn, Shocks: model.FamilySkewT}
+	full, err := Fit(s, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lean := *set
+	lean.Lean = true
+	for _, start := range []*model.File{nil, full.Model} {
+		lean.Start = start
+		got, err := Fit(s, &lean)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a, b := full.Model, got.Model
+		for _, c := range []struct {
+			what      string
+			x, y, tol float64
+		}{
+			{"φ", a.AR.Phi[0], b.AR.Phi[0], 0.2 * a.AR.PhiSE[0]},
+			{"φ_slow", a.Slow.Phi, b.Slow.Phi, 0.2 * a.Slow.PhiSE},
+			{"s_F", a.Slow.SD, b.Slow.SD, 0.2 * a.Slow.SDSE},
+			{"σ January", a.Volatility.Monthly[0], b.Volatility.Monthly[0], 0.01},
+			{"ν", a.Shocks.DF, b.Shocks.DF, 0.1},
+			{"ξ", a.Shocks.Skew, b.Shocks.Skew, 0.005},
+		} {
+			if math.Abs(c.x-c.y) > c.tol {
+				t.Errorf("start %v: lean %s %.5f, full %.5f (tolerance %.5f)", start != nil, c.what, c.y, c.x, c.tol)
+			}
+		}
+	}
+}

@@ -91,6 +91,55 @@ func Fit(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
 	return newFitted(x, month, prm, -best.F, slow), nil
 }
 
+// FitLean is the lean path of Fit for repeated refits (backtests,
+// bootstraps): BFGS from start (a previous fit's parameters) and, with the
+// slow part, also from an e-folding time of 180 days (on short records the
+// likelihood of a slow part has a second maximum that a single warm start
+// can miss), keeping the better; no standard errors (SE is nil).
+func FitLean(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
+	start.check()
+	p := len(start.Phi)
+	starts := []Params{start}
+	if !slow {
+		starts[0].SDSlow, starts[0].PhiSlow = 0, 0
+	} else {
+		alt := start
+		alt.PhiSlow, alt.SDSlow = math.Exp(-1/180.0), 0.25*meanSigma(start.Sigma)
+		if tau := start.EFolding(); !start.HasSlow() || !(tau > MinEFolding && tau < MaxEFolding) {
+			starts = starts[:0]
+		}
+		starts = append(starts, alt)
+	}
+	nll := func(th []float64) float64 {
+		prm, ok := decode(th, p, slow)
+		if !ok {
+			return math.Inf(1)
+		}
+		return -LogLik(x, month, prm)
+	}
+	var best *optimize.Result
+	var firstErr error
+	for _, st := range starts {
+		res, err := minimize(nll, encode(st, slow), 1e-9)
+		if err != nil {
+			firstErr = err
+			continue
+		}
+		if best == nil || res.F < best.F {
+			best = res
+		}
+	}
+	if best == nil {
+		return nil, firstErr
+	}
+	prm, _ := decode(best.X, p, slow)
+	out := &Fitted{Params: prm, LogLik: -best.F, N: countObserved(x), K: p + 12}
+	if slow {
+		out.K += 2
+	}
+	return out, nil
+}
+
 // ProfileOrder returns the log-likelihood of a fast AR of order q with the
 // slow part and the shape of the monthly σ held at base's estimates: the
 // φ are maximised by BFGS and the common scale of all variances in closed
