@@ -28,7 +28,7 @@ func TestHistoricalSeasonsRecomputed(t *testing.T) {
 		t.Fatal(err)
 	}
 	res, err := Run(context.Background(), &Job{Temps: series, Fit: &calibrate.Settings{},
-		Config: sim.Config{Paths: 4000, Seed: 1, Periods: []string{"heating", "year"}, Bases: sim.DefaultBases("C")},
+		Config:  sim.Config{Paths: 4000, Seed: 1, Periods: []string{"heating", "year"}, Bases: sim.DefaultBases("C")},
 		History: true})
 	if err != nil {
 		t.Fatal(err)
