@@ -37,6 +37,7 @@ func commands() []command {
 		{"fit", "calibrate a temperature model to a daily CSV", runFitCmd},
 		{"fit-demand", "fit a change-point demand model to daily load and temperature", runFitDemandCmd},
 		{"simulate", "draw synthetic years and report degree-day and demand tail tables", runSimulateCmd},
+		{"backtest", "check the pipeline out of sample on the record's last seasons", runBacktestCmd},
 		{"scenarios", "list the built-in scenarios, or check scenario files", runScenariosCmd},
 		{"version", "print the tool version", runVersionCmd},
 		{"help", "show help for wxstress or a subcommand", runHelpCmd},

@@ -1,0 +1,121 @@
+package main
+
+import (
+	"context"
+	"io"
+	"math"
+
+	"github.com/spf13/pflag"
+
+	"wxstress/backtest"
+	"wxstress/calibrate"
+	"wxstress/cmd/wxstress/render"
+	"wxstress/sim"
+)
+
+var backtestUsage = helpText{
+	usage: "wxstress backtest --temps FILE.csv [--origins N] [--period P ...] [--paths M] [flags]",
+	about: `Check the whole pipeline out of sample. For each of the last N complete periods
+of the record (default 30 of each kind, fewer when the record is short; the
+first needs 5 years of record before it), fit the model to the data that end
+the day before the period starts, simulate the period from that day
+(conditional start), and place the realised HDD and CDD in the simulated
+distribution. The model's structure (harmonics, AR order, slow part, shock
+family) is chosen once, by the automatic fit on the record before the
+earliest origin; each origin is then refitted with that structure. Reports the
+coverage of the central 50 % and 90 % bands with binomial p-values, the
+Kolmogorov–Smirnov test and the sd of probit(PIT), and the CRPS of the model
+against the climatology of the earlier seasons.`,
+	examples: `  wxstress backtest --temps station.csv
+  wxstress backtest --temps station.csv --units F --origins 40 --period year --period heating --period jan
+  wxstress backtest --temps station.csv --paths 5000 --format json > backtest.json`,
+}
+
+type backtestOptions struct {
+	temps, units, format string
+	origins, paths       int
+	seed                 uint64
+	periods              []string
+	hddBase, cddBase     float64
+	fs                   *pflag.FlagSet
+	readOpts             calibrate.ReadOptions
+}
+
+func newBacktestFlags(o *backtestOptions) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("backtest", pflag.ContinueOnError)
+	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
+	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C, with a warning if the data look like °F)")
+	fs.IntVar(&o.origins, "origins", backtest.DefaultOrigins, "the last N complete periods of each kind")
+	fs.StringArrayVar(&o.periods, "period", nil, "period to backtest, repeatable (default: year, heating); "+sim.PeriodForms)
+	fs.IntVar(&o.paths, "paths", backtest.DefaultPaths, "simulated years per origin")
+	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
+	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F)")
+	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
+	fs.StringVar(&o.format, "format", "table", "output: table or json")
+	o.fs = fs
+	return fs
+}
+
+func (o *backtestOptions) validate() error {
+	if o.temps == "" {
+		return usagef("backtest: --temps is required")
+	}
+	if o.format != "table" && o.format != "json" {
+		return usagef("backtest: --format %q: want table or json", o.format)
+	}
+	if o.origins < 3 || o.origins > 500 {
+		return usagef("backtest: --origins %d: want 3..500", o.origins)
+	}
+	if o.paths < 100 || o.paths > 1_000_000 {
+		return usagef("backtest: --paths %d: want 100..1000000", o.paths)
+	}
+	for _, p := range o.periods {
+		if _, err := sim.ParsePeriod(p, 2000); err != nil {
+			return usagef("backtest: --period: %v", err)
+		}
+	}
+	for _, v := range []float64{o.hddBase, o.cddBase} {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return usagef("backtest: degree-day bases must be finite numbers")
+		}
+	}
+	if o.units != "" {
+		u, err := calibrate.ParseUnits(o.units)
+		if err != nil {
+			return usagef("backtest: --units: %v", err)
+		}
+		o.readOpts.Units = u
+	}
+	return nil
+}
+
+func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) error {
+	var o backtestOptions
+	if err := parseFlags(newBacktestFlags(&o), backtestUsage, args, stdout); err != nil {
+		return err
+	}
+	if err := o.validate(); err != nil {
+		return err
+	}
+	series, err := calibrate.ReadFile(o.temps, o.readOpts)
+	if err != nil {
+		return err
+	}
+	b := sim.DefaultBases(string(series.Units))
+	if o.fs.Changed("hdd-base") {
+		b.HDD = o.hddBase
+	}
+	if o.fs.Changed("cdd-base") {
+		b.CDD = o.cddBase
+	}
+	res, err := backtest.Run(ctx, series, backtest.Options{Origins: o.origins, Periods: o.periods, Paths: o.paths,
+		Seed: o.seed, Bases: b})
+	if err != nil {
+		return err
+	}
+	if o.format == "json" {
+		return render.BacktestJSON(stdout, res, map[string]any{"tool": "wxstress", "tool_version": version,
+			"data_file": o.temps, "data_sha256": series.SHA256, "seed": o.seed, "paths": o.paths, "caution": render.Caution})
+	}
+	return render.BacktestTables(stdout, res, o.temps, string(series.Units))
+}
