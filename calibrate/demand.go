@@ -327,7 +327,7 @@ func chooseForm(m *model.Demand, setting string, constant model.FormScore) (stri
 // balance points at the edge of the search range.
 func warnFit(m *model.Demand, f *demandFitter, setting string) {
 	warn := func(format string, a ...any) { m.Warnings = append(m.Warnings, fmt.Sprintf(format, a...)) }
-	u := "°" + m.TemperatureUnits
+	u := model.Units(m.TemperatureUnits).Symbol()
 	for _, side := range []struct {
 		name, sense string
 		c           model.ChangePoint

@@ -17,6 +17,7 @@ import (
 	"unicode/utf8"
 
 	"wxstress/calendar"
+	"wxstress/model"
 )
 
 // ReadOptions controls how ReadCSV interprets a file. The zero value reads a
@@ -68,14 +69,14 @@ const (
 
 // ParseUnits reads a units name: C or F in any case, also degC, degF, °C and
 // °F.
+//
+// Deprecated: use model.ParseUnits.
 func ParseUnits(s string) (Units, error) {
-	switch strings.ToLower(strings.TrimSpace(s)) {
-	case "c", "degc", "°c":
-		return Celsius, nil
-	case "f", "degf", "°f":
-		return Fahrenheit, nil
+	u, err := model.ParseUnits(s)
+	if err != nil {
+		return "", fmt.Errorf("calibrate: unknown units %q: valid choices are C and F (also degC, degF, °C, °F)", s)
 	}
-	return "", fmt.Errorf("calibrate: unknown units %q: valid choices are C and F (also degC, degF, °C, °F)", s)
+	return u, nil
 }
 
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
@@ -144,9 +145,7 @@ func (in *csvInput) finish(name string) (string, error) {
 // the further bad rows); the list wraps ErrBadInput. A failure
 // of r itself is returned wrapped, without ErrBadInput.
 func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
-	switch opt.Units {
-	case "", Celsius, Fahrenheit:
-	default:
+	if opt.Units != "" && !opt.Units.Valid() {
 		return nil, fmt.Errorf("calibrate: unknown units %q in read options: valid choices are %q and %q", string(opt.Units), string(Celsius), string(Fahrenheit))
 	}
 	in := newCSVInput(r)
@@ -375,7 +374,7 @@ func quote(s string) string {
 // implausible reports whether v, in the declared units, is beyond ±60 °C.
 func (p *parser) implausible(v float64) bool {
 	if p.opt.Units == Fahrenheit {
-		v = (v - 32) * 5 / 9
+		v = Fahrenheit.Convert(v, Celsius)
 	}
 	return math.Abs(v) > plausibleC
 }
@@ -481,7 +480,7 @@ func (p *parser) value(record []string, i int) float64 {
 	}
 	if p.implausible(v) {
 		hint, limits := "", "±60 °C"
-		if p.opt.Units == "" && math.Abs((v-32)*5/9) <= plausibleC {
+		if p.opt.Units == "" && math.Abs(Fahrenheit.Convert(v, Celsius)) <= plausibleC {
 			hint = "; if the file is in °F, pass --units F"
 		}
 		if p.opt.Units == Fahrenheit {

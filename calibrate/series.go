@@ -7,26 +7,17 @@ import (
 	"strings"
 
 	"wxstress/calendar"
+	"wxstress/model"
 )
 
-// Units of a temperature series: degrees Celsius or Fahrenheit.
-type Units string
+// Units of a temperature series: model.Units, whose home is package model.
+type Units = model.Units
 
+// The temperature units, as in package model.
 const (
-	Celsius    Units = "C"
-	Fahrenheit Units = "F"
+	Celsius    = model.Celsius
+	Fahrenheit = model.Fahrenheit
 )
-
-// Symbol returns "°C" or "°F".
-func (u Units) Symbol() string { return "°" + string(u) }
-
-// FromCelsius converts a temperature (not a difference) given in °C to these units.
-func (u Units) FromCelsius(c float64) float64 {
-	if u == Fahrenheit {
-		return c*9/5 + 32
-	}
-	return c
-}
 
 // Series is a daily mean temperature record on a complete daily grid: Temps[i]
 // is the mean of day Start+i, and NaN marks a missing day (a gap), whether the

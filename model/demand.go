@@ -60,7 +60,7 @@ type Demand struct {
 	SchemaVersion    int    `json:"schema_version"`
 	ToolVersion      string `json:"tool_version"`
 	Unit             string `json:"unit"`              // demand unit as the user stated it, e.g. "GJ/day"
-	TemperatureUnits string `json:"temperature_units"` // "C" or "F"
+	TemperatureUnits string `json:"temperature_units"` // a Units: "C" or "F"
 	Form             string `json:"form"`              // one of DemandForms
 	FormRule         string `json:"form_rule"`         // how the form was chosen
 
@@ -287,12 +287,12 @@ func (d *Demand) Expected(t float64, weekday time.Weekday, holiday bool) float64
 	return v
 }
 
-// CheckUnits returns an error unless units ("C" or "F", a temperature
-// model's data.units) are the demand model's temperature units.
+// CheckUnits returns an error unless units (a temperature model's
+// data.units, "C" or "F") are the demand model's temperature units.
 func (d *Demand) CheckUnits(units string) error {
 	if units != d.TemperatureUnits {
-		return fmt.Errorf("model: the demand model's balance points are in °%s but the temperatures are in °%s: refit one of them in the other's units",
-			d.TemperatureUnits, units)
+		return fmt.Errorf("model: the demand model's balance points are in %s but the temperatures are in %s: refit one of them in the other's units",
+			Units(d.TemperatureUnits).Symbol(), Units(units).Symbol())
 	}
 	return nil
 }
@@ -370,7 +370,7 @@ func (d *Demand) Validate(name string) error {
 	if strings.TrimSpace(d.Unit) == "" {
 		return bad("unit", "empty: state the demand unit, e.g. \"GJ/day\"")
 	}
-	if d.TemperatureUnits != "C" && d.TemperatureUnits != "F" {
+	if !Units(d.TemperatureUnits).Valid() {
 		return bad("temperature_units", "is %q, want \"C\" or \"F\"", d.TemperatureUnits)
 	}
 	if !slices.Contains(DemandForms, d.Form) {

@@ -183,7 +183,7 @@ func (f *File) Validate(name string) error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{name, key, fmt.Sprintf(format, a...)}
 	}
-	if f.Data.Units != "C" && f.Data.Units != "F" {
+	if !Units(f.Data.Units).Valid() {
 		return bad("data.units", "is %q, want \"C\" or \"F\"", f.Data.Units)
 	}
 	if f.Data.LastDate < f.Data.FirstDate {

@@ -80,7 +80,7 @@ type Data struct {
 	SHA256      string        `json:"sha256"`
 	FirstDate   calendar.Date `json:"first_date"`
 	LastDate    calendar.Date `json:"last_date"`
-	Units       string        `json:"units"` // "C" or "F"
+	Units       string        `json:"units"` // a Units: "C" or "F"
 	MeanFrom    string        `json:"mean_from"`
 	Days        int           `json:"days"`    // days from first to last date
 	Missing     int           `json:"missing"` // of which without a value

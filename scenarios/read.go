@@ -110,9 +110,7 @@ func (s *Scenario) check() error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{Key: key, Msg: fmt.Sprintf(format, a...)}
 	}
-	switch s.Units {
-	case "", "C", "F":
-	default:
+	if s.Units != "" && !s.Units.Valid() {
 		return bad("units", "%q: want C or F", s.Units)
 	}
 	degrees := func(key string, v, limit float64) error {

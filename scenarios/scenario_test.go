@@ -40,7 +40,7 @@ func simulate(t *testing.T, m *model.File, periods ...string) *sim.Result {
 		periods = []string{"year"}
 	}
 	res, err := sim.Run(context.Background(), m, sim.Config{Paths: 2000, Seed: 99, Year: 2025, Periods: periods,
-		Bases: sim.DefaultBases("C")})
+		Bases: sim.BasesFor(model.Celsius)})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -34,7 +34,7 @@ func TestDemandAggregatesMatchBruteForce(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
 	cfg := Config{Paths: 1, Year: 2024, Periods: []string{"year", "heating", "jan", "07-01:07-31"},
-		Bases: DefaultBases("C"), Demand: testDemand(), Capacity: 95000,
+		Bases: BasesFor(model.Celsius), Demand: testDemand(), Capacity: 95000,
 		Holidays: []calendar.Date{calendar.FromYMD(2024, time.January, 1), calendar.FromYMD(2023, time.December, 25)}}
 	pl, ps, err := prepare(m, &cfg)
 	if err != nil {
@@ -125,12 +125,12 @@ func TestDemandKeepsTemperatureStreams(t *testing.T) {
 			}
 		}
 	}
-	if _, err := Run(context.Background(), m, Config{Paths: 10, Capacity: 5, Bases: DefaultBases("C")}); err == nil {
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Capacity: 5, Bases: BasesFor(model.Celsius)}); err == nil {
 		t.Error("a capacity without a demand model was accepted")
 	}
 	d := testDemand()
 	d.TemperatureUnits = "F"
-	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: DefaultBases("C")}); err == nil {
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: BasesFor(model.Celsius)}); err == nil {
 		t.Error("a °F demand model on a °C temperature model was accepted")
 	}
 }
@@ -151,7 +151,7 @@ func TestWeatherNormalize(t *testing.T) {
 		hist = append(hist, HistoryDay{Date: day, Temp: temp, Load: d.Expected(temp, day.Weekday(), false) + 500})
 	}
 	const paths = 500
-	out, err := WeatherNormalize(context.Background(), m, d, Config{Seed: 2, Bases: DefaultBases("C")}, hist, paths)
+	out, err := WeatherNormalize(context.Background(), m, d, Config{Seed: 2, Bases: BasesFor(model.Celsius)}, hist, paths)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -176,7 +176,7 @@ func TestWeatherNormalize(t *testing.T) {
 func TestLoadDurationFirstRankIsThePeak(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
-	cfg := Config{Seed: 6, Year: 2027, Bases: DefaultBases("C"), Demand: testDemand()}
+	cfg := Config{Seed: 6, Year: 2027, Bases: BasesFor(model.Celsius), Demand: testDemand()}
 	fan, err := RunFan(context.Background(), m, cfg, 600)
 	if err != nil {
 		t.Fatal(err)
@@ -232,7 +232,7 @@ func TestHolidayDates(t *testing.T) {
 func TestHolidaysAcrossHeatingSeason(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
-	cfg := Config{Paths: 200, Seed: 11, Year: 2025, Periods: []string{"heating"}, Bases: DefaultBases("C"), Demand: testDemand()}
+	cfg := Config{Paths: 200, Seed: 11, Year: 2025, Periods: []string{"heating"}, Bases: BasesFor(model.Celsius), Demand: testDemand()}
 	first, last, err := SimulatedYears(m, cfg)
 	if err != nil {
 		t.Fatal(err)

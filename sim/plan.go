@@ -27,14 +27,24 @@ type Bases struct {
 	ColdBelow float64 // a day is cold when its mean is below this
 }
 
-// DefaultBases returns 18 °C / 65 °F for both degree-day bases and a cold
-// threshold of 0 °C / 32 °F: the usual bases of degree-day indices (common
-// practice; 65 °F is the US convention, 18 °C the European one).
+// BasesFor returns the usual bases of degree-day indices in units u, 18 °C or
+// 65 °F for both degree-day bases, and the freezing point (0 °C, 32 °F) as
+// the cold threshold: see model.Units.DegreeDayBase and ColdThreshold. It
+// panics if u is not valid.
+func BasesFor(u model.Units) Bases {
+	b := u.DegreeDayBase()
+	return Bases{HDD: b, CDD: b, ColdBelow: u.ColdThreshold()}
+}
+
+// DefaultBases returns BasesFor the units "F", or for "C" given anything
+// else.
+//
+// Deprecated: use BasesFor.
 func DefaultBases(units string) Bases {
-	if units == "F" {
-		return Bases{HDD: 65, CDD: 65, ColdBelow: 32}
+	if model.Units(units) == model.Fahrenheit {
+		return BasesFor(model.Fahrenheit)
 	}
-	return Bases{HDD: 18, CDD: 18, ColdBelow: 0}
+	return BasesFor(model.Celsius)
 }
 
 // segment is a run of accumulated days [lo, hi) that no period boundary

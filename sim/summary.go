@@ -8,6 +8,8 @@ import (
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/stat"
+
+	"wxstress/model"
 )
 
 // Row is the tail table of one index of one period.
@@ -63,8 +65,8 @@ func IndexKeys() []string {
 
 // Summarize computes the tail table of every aggregate, in the order of
 // r.Aggregates, sorting the columns in parallel on r.Config.Workers
-// goroutines; units is the model's temperature unit ("C" or "F").
-func (r *Result) Summarize(units string, thresholds []Threshold) []Row {
+// goroutines; units are the model's temperature units.
+func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 	rows := make([]Row, len(r.Aggregates))
 	var g errgroup.Group
 	g.SetLimit(max(r.Config.Workers, 1))
