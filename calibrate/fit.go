@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
@@ -88,10 +89,10 @@ func (s *Settings) Validate() error {
 	default:
 		return fmt.Errorf("calibrate: trend %q: want auto, linear or none", s.Trend)
 	}
-	switch s.Shocks {
-	case "", "auto", model.FamilyNormal, model.FamilyStudentT, model.FamilySkewT, model.FamilyBootstrap:
-	default:
-		return fmt.Errorf("calibrate: shocks %q: want auto, normal, t, skew-t or bootstrap", s.Shocks)
+	if _, known := model.LookupFamily(s.Shocks); !known && s.Shocks != "" && s.Shocks != "auto" {
+		names := model.FamilyNames()
+		return fmt.Errorf("calibrate: shocks %q: want auto, %s or %s", s.Shocks,
+			strings.Join(names[:len(names)-1], ", "), names[len(names)-1])
 	}
 	return nil
 }
@@ -520,16 +521,20 @@ func monthlySigma(s *Series, e []float64, v *model.Volatility) error {
 // chooseShocks fits the parametric families, fills the family table and the
 // model's shocks, and returns the parametric distribution z is compared with.
 func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.File, d *model.Diagnostics) (shocks.Dist, error) {
-	fits := []shocks.Fit{shocks.FitNormal(z)}
-	t, err := shocks.FitStudentT(z)
-	if err != nil {
-		return nil, err
+	var (
+		fits   []shocks.Fit
+		params []model.Shocks
+	)
+	for _, fam := range model.Families() {
+		if !fam.Parametric() {
+			continue
+		}
+		fit, sh, err := fam.Fit(z)
+		if err != nil {
+			return nil, err
+		}
+		fits, params = append(fits, fit), append(params, sh)
 	}
-	st, err := shocks.FitSkewT(z)
-	if err != nil {
-		return nil, err
-	}
-	fits = append(fits, t, st)
 	best := 0
 	for i, fit := range fits {
 		if fit.AIC() < fits[best].AIC() {
@@ -537,41 +542,27 @@ func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.Fil
 		}
 	}
 	chosen := best
-	switch setting {
-	case model.FamilyNormal:
-		chosen = 0
-	case model.FamilyStudentT:
-		chosen = 1
-	case model.FamilySkewT:
-		chosen = 2
+	for i, sh := range params {
+		if sh.Family == setting {
+			chosen = i
+		}
 	}
 	for i, fit := range fits {
 		row := model.FamilyScore{
-			Family: model.Families[i], LogLik: fit.LogLik, Params: fit.Params, AIC: fit.AIC(),
+			Family: params[i].Family, LogLik: fit.LogLik, Params: fit.Params, AIC: fit.AIC(),
 			Chosen: i == chosen && setting != model.FamilyBootstrap,
 		}
-		row.DF, row.Skew = shape(fit.Dist)
+		row.DF, row.Skew = params[i].DF, params[i].Skew
 		d.ShockTable = append(d.ShockTable, row)
 	}
-	d.KSFamily = model.Families[chosen]
+	d.KSFamily = params[chosen].Family
 	if setting == model.FamilyBootstrap {
 		f.Shocks = model.Shocks{Family: model.FamilyBootstrap, ByMonth: byMonth}
 		d.ShockTable = append(d.ShockTable, model.FamilyScore{Family: model.FamilyBootstrap, Chosen: true})
 		return fits[chosen].Dist, nil
 	}
-	f.Shocks.Family = model.Families[chosen]
-	f.Shocks.DF, f.Shocks.Skew = shape(fits[chosen].Dist)
+	f.Shocks = params[chosen]
 	return fits[chosen].Dist, nil
-}
-
-func shape(d shocks.Dist) (df, skew float64) {
-	switch v := d.(type) {
-	case shocks.StudentT:
-		return v.Nu, 0
-	case shocks.SkewT:
-		return v.Nu, v.Xi
-	}
-	return 0, 0
 }
 
 func test(t diagnose.Test) model.Test { return model.Test{Stat: t.Stat, DF: t.DF, P: t.P} }

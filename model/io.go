@@ -303,16 +303,17 @@ func (f *File) Validate(name string) error {
 		}
 	}
 	sh := f.Shocks
-	switch sh.Family {
-	case FamilyNormal:
-	case FamilyStudentT, FamilySkewT:
-		if !(sh.DF > 2 && sh.DF <= MaxDF) {
-			return bad("shocks.df", "ν = %v, want 2 < ν ≤ %g (unit variance needs ν > 2)", sh.DF, MaxDF)
-		}
-		if sh.Family == FamilySkewT && !(sh.Skew >= MinSkew && sh.Skew <= MaxSkew) {
-			return bad("shocks.skew", "ξ = %v, want %g ≤ ξ ≤ %g (1 is symmetric)", sh.Skew, MinSkew, MaxSkew)
-		}
-	case FamilyBootstrap:
+	fam, ok := LookupFamily(sh.Family)
+	if !ok {
+		return bad("shocks.family", "is %q, want one of %s", sh.Family, strings.Join(FamilyNames(), ", "))
+	}
+	if fam.UsesDF && !(sh.DF > 2 && sh.DF <= MaxDF) {
+		return bad("shocks.df", "ν = %v, want 2 < ν ≤ %g (unit variance needs ν > 2)", sh.DF, MaxDF)
+	}
+	if fam.UsesSkew && !(sh.Skew >= MinSkew && sh.Skew <= MaxSkew) {
+		return bad("shocks.skew", "ξ = %v, want %g ≤ ξ ≤ %g (1 is symmetric)", sh.Skew, MinSkew, MaxSkew)
+	}
+	if !fam.Parametric() {
 		if len(sh.ByMonth) != 12 {
 			return bad("shocks.by_month", "has %d months, want 12", len(sh.ByMonth))
 		}
@@ -326,8 +327,6 @@ func (f *File) Validate(name string) error {
 				}
 			}
 		}
-	default:
-		return bad("shocks.family", "is %q, want one of %s", sh.Family, strings.Join(Families, ", "))
 	}
 	return nil
 }

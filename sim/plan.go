@@ -245,8 +245,11 @@ func periodStarting(ps []Period, d calendar.Date) string {
 }
 
 func (pl *plan) setShocks(s model.Shocks, months []int) error {
-	switch s.Family {
-	case model.FamilyBootstrap:
+	fam, ok := model.LookupFamily(s.Family)
+	if !ok {
+		return fmt.Errorf("sim: unknown shock family %q", s.Family)
+	}
+	if !fam.Parametric() {
 		offs := make([]int32, 12)
 		for m, z := range s.ByMonth {
 			offs[m] = int32(len(pl.pool))
@@ -258,15 +261,8 @@ func (pl *plan) setShocks(s model.Shocks, months []int) error {
 			pl.poolOff[i], pl.poolLen[i] = offs[m], uint64(len(s.ByMonth[m]))
 		}
 		return nil
-	case model.FamilyNormal:
-		pl.table = shocks.NewTable(shocks.Normal{})
-	case model.FamilyStudentT:
-		pl.table = shocks.NewTable(shocks.StudentT{Nu: s.DF})
-	case model.FamilySkewT:
-		pl.table = shocks.NewTable(shocks.SkewT{Nu: s.DF, Xi: s.Skew})
-	default:
-		return fmt.Errorf("sim: unknown shock family %q", s.Family)
 	}
+	pl.table = shocks.NewTable(fam.New(s))
 	// The table cuts the tails beyond 2⁻⁵⁴: negligible for ν ≥ 3, but for ν
 	// near 2 much of the variance lies out there. Rescale so the shocks
 	// simulated have unit variance whatever ν is.
