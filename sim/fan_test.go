@@ -25,7 +25,7 @@ func TestFanMatchesStationaryQuantiles(t *testing.T) {
 		t.Fatalf("fan covers %d days from %s", len(f.Dates), f.Dates[0])
 	}
 	sd := sigma / math.Sqrt(1-phi*phi)
-	for k, p := range FanProbs {
+	for k, p := range FanQuantileProbs() {
 		want := level + distuv.UnitNormal.Quantile(p)*sd
 		mean := 0.0
 		for _, v := range f.Q[k] {

@@ -22,7 +22,7 @@ type Config struct {
 	Year    int    // target year; 0 means the year after the data end
 	Start   string // StartClimate (default) or StartConditional
 	// Periods names the index periods (see ParsePeriod); nil means
-	// DefaultPeriods.
+	// DefaultPeriods().
 	Periods []string
 	Bases   Bases
 	// Demand, when set, adds daily demand D = Expected(T, weekday,
@@ -84,7 +84,7 @@ func (c *Config) Validate(m *model.File) error {
 		return fmt.Errorf("sim: start %q: want %s or %s", c.Start, StartClimate, StartConditional)
 	}
 	if len(c.Periods) == 0 {
-		c.Periods = DefaultPeriods
+		c.Periods = DefaultPeriods()
 	}
 	if c.Demand != nil {
 		if err := c.Demand.CheckUnits(m.Data.Units); err != nil {
