@@ -538,9 +538,9 @@ func fitNoise(m *model.Demand, dates []calendar.Date, r []float64) error {
 	}
 	dg := &model.DemandDiagnostics{
 		ACF1:                diagnose.ACF(grid, 1)[0],
-		LjungBoxResiduals:   test(diagnose.LjungBox(grid, 10, 0)),
-		LjungBoxInnovations: test(diagnose.LjungBox(innov, 10, 1)),
-		JarqueBera:          test(diagnose.JarqueBera(e)),
+		LjungBoxResiduals:   diagnose.LjungBox(grid, 10, 0),
+		LjungBoxInnovations: diagnose.LjungBox(innov, 10, 1),
+		JarqueBera:          diagnose.JarqueBera(e),
 		Skewness:            diagnose.Skewness(e),
 		ExcessKurtosis:      diagnose.ExcessKurtosis(e),
 	}

@@ -266,18 +266,18 @@ func finishFit(res *Result, s *Series, z []float64, set *Settings, f *model.File
 		return nil, fmt.Errorf("%s: %w", s.Name, err)
 	}
 
-	d.LjungBoxZ10 = test(diagnose.LjungBox(z, 10, p))
-	d.LjungBoxZ20 = test(diagnose.LjungBox(z, 20, p))
+	d.LjungBoxZ10 = diagnose.LjungBox(z, 10, p)
+	d.LjungBoxZ20 = diagnose.LjungBox(z, 20, p)
 	z2 := make([]float64, len(z))
 	for i, v := range z {
 		z2[i] = v * v
 	}
-	d.LjungBoxZ210 = test(diagnose.LjungBox(z2, 10, 0))
-	d.LjungBoxZ220 = test(diagnose.LjungBox(z2, 20, 0))
-	d.JarqueBera = test(diagnose.JarqueBera(zc))
+	d.LjungBoxZ210 = diagnose.LjungBox(z2, 10, 0)
+	d.LjungBoxZ220 = diagnose.LjungBox(z2, 20, 0)
+	d.JarqueBera = diagnose.JarqueBera(zc)
 	d.Skewness = diagnose.Skewness(zc)
 	d.ExcessKurtosis = diagnose.ExcessKurtosis(zc)
-	d.KS = test(diagnose.KolmogorovSmirnov(zc, dist.CDF))
+	d.KS = diagnose.KolmogorovSmirnov(zc, dist.CDF)
 	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
 	d.Climatology = climatology(s)
 	return res, nil
@@ -564,8 +564,6 @@ func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.Fil
 	f.Shocks = params[chosen]
 	return fits[chosen].Dist, nil
 }
-
-func test(t diagnose.Test) model.Test { return model.Test{Stat: t.Stat, DF: t.DF, P: t.P} }
 
 // thin keeps about qqPoints evenly spaced pairs, always the two ends.
 func thin(a, b []float64) ([]float64, []float64) {
