@@ -2,7 +2,6 @@ package sim
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -206,23 +205,6 @@ func sortedCopy(x []float64) []float64 {
 	return y
 }
 
-func TestHolidayDates(t *testing.T) {
-	t.Parallel()
-	in := []calendar.Date{calendar.FromYMD(2021, time.December, 25), calendar.FromYMD(2022, time.December, 25),
-		calendar.FromYMD(2020, time.February, 29)}
-	// Listed dates keep their month and day; 29 February only in the leap
-	// year 2024. US Thanksgiving, the fourth Thursday of November: 2023-11-23,
-	// 2024-11-28, 2025-11-27 (common practice).
-	got := HolidayDates(in, []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November)}, 2023, 2025)
-	want := "[2023-11-23 2023-12-25 2024-02-29 2024-11-28 2024-12-25 2025-11-27 2025-12-25]"
-	if fmt.Sprint(got) != want {
-		t.Errorf("HolidayDates = %v\nwant           %s", got, want)
-	}
-	if got := HolidayDates(in, nil, 2025, 2025); fmt.Sprint(got) != "[2025-12-25]" {
-		t.Errorf("one common year: %v", got)
-	}
-}
-
 // TestHolidaysAcrossHeatingSeason runs the heating season of 2025, 1
 // November 2024 to 31 March 2025, with holidays from rules and a listed
 // date: each rule must give its day in both calendar years, and each
@@ -247,7 +229,7 @@ func TestHolidaysAcrossHeatingSeason(t *testing.T) {
 	rules := []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November), calendar.Nth(3, time.Monday, time.January),
 		calendar.Fixed(time.January, 1), calendar.Easter(-47)}
 	listed := []calendar.Date{calendar.FromYMD(2019, time.December, 25)}
-	cfg.Holidays = HolidayDates(listed, rules, first, last)
+	cfg.Holidays = calendar.HolidaysIn(listed, rules, first, last)
 	for _, r := range rules {
 		for _, y := range []int{2024, 2025} {
 			if d, _ := r.In(y); !slices.Contains(cfg.Holidays, d) {

@@ -29,7 +29,7 @@ type Config struct {
 	// holiday) + u, u an AR(1), and the demand indices of each period.
 	Demand *model.Demand
 	// Holidays are the days simulated as holidays (demand only); see
-	// HolidayDates and SimulatedYears.
+	// calendar.HolidaysIn and SimulatedYears.
 	Holidays []calendar.Date
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
@@ -187,7 +187,7 @@ func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
 }
 
 // SimulatedYears returns the first and last calendar year of the days a run
-// of cfg on m simulates, the years whose holidays it needs (HolidayDates):
+// of cfg on m simulates, the years whose holidays it needs (calendar.HolidaysIn):
 // the last is the target year; the first is earlier when a period crosses
 // the year end (the heating season of Y starts in Y−1), by the burn-in of a
 // climatological start, or back to the day after the data end for a
@@ -468,4 +468,12 @@ func max3(a, b, c float64) float64 {
 		a = c
 	}
 	return a
+}
+
+// HolidayDates is calendar.HolidaysIn: the holidays of the years a run
+// simulates (SimulatedYears) from listed dates and rules.
+//
+// Deprecated: use calendar.HolidaysIn.
+func HolidayDates(dates []calendar.Date, rules []calendar.HolidayRule, fromYear, toYear int) []calendar.Date {
+	return calendar.HolidaysIn(dates, rules, fromYear, toYear)
 }
