@@ -264,7 +264,7 @@ func Parse(src []byte, file string) (*File, error) {
 func decodeError(err error, src []byte, file string, elem int) error {
 	line, key, msg, ok := tomlpos.Split(err)
 	if !ok {
-		return fmt.Errorf("%s: %w: %v", file, ErrFile, err)
+		return fmt.Errorf("%s: %w: %w", file, ErrFile, err)
 	}
 	if elem >= 0 && key != "" {
 		if !strings.HasPrefix(key, "contract.") {

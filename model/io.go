@@ -124,7 +124,7 @@ func decodeStrict(b []byte, name string, v any) error {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
-		return fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+		return fmt.Errorf("%s: %w: %w", name, ErrInvalid, err)
 	}
 	return nil
 }

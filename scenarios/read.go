@@ -59,7 +59,7 @@ func Parse(src []byte, file string) (*Scenario, error) {
 		if line, key, msg, ok := tomlpos.Split(err); ok {
 			return nil, &KeyError{file, line, key, msg}
 		}
-		return nil, fmt.Errorf("%s: %w: %v", file, ErrScenario, err)
+		return nil, fmt.Errorf("%s: %w: %w", file, ErrScenario, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		k := und[0].String()

@@ -283,7 +283,7 @@ func (pl *plan) setEvents(m *model.File, year int) error {
 	for i, e := range m.Scenario.Events {
 		w, err := ParsePeriod(e.Window, year)
 		if err != nil {
-			return fmt.Errorf("sim: scenario %s, event %d: %v", m.Scenario.Name, i+1, err)
+			return fmt.Errorf("sim: scenario %s, event %d: %w", m.Scenario.Name, i+1, err)
 		}
 		lo, hi := int(w.From-pl.first), int(w.To-pl.first)
 		if hi < 0 || lo >= pl.n {
