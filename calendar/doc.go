@@ -23,6 +23,10 @@
 // written out reads back unchanged. A fifth weekday is not in every month and
 // is refused (use last).
 //
+// HolidaysIn turns a list of holiday dates and a set of rules into the
+// holidays of a span of years, as the simulator needs them for the years it
+// simulates.
+//
 // Easter Sunday is the Gregorian one, by the "anonymous Gregorian algorithm"
 // (Anonymous, Nature 1876; J. Meeus, Astronomical Algorithms, 2nd ed. 1998,
 // ch. 8, after Jones and Butcher). With integer division ÷ and remainder mod,

@@ -2,6 +2,7 @@ package calendar
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -180,6 +181,29 @@ func (r HolidayRule) Dates(fromYear, toYear int) []Date {
 		}
 	}
 	return out
+}
+
+// HolidaysIn returns the holidays of the calendar years fromYear..toYear
+// given by a list of dates and a set of rules: the month and day of each
+// listed date repeated in every one of those years, as fixed-date holidays
+// (a 29 February only in leap years), and each rule's day in every one of
+// them; sorted, without repeats. Movable holidays belong in rules: a listed
+// date keeps its month and day.
+func HolidaysIn(dates []Date, rules []HolidayRule, fromYear, toYear int) []Date {
+	var out []Date
+	for _, d := range dates {
+		_, m, day := d.YMD()
+		for y := fromYear; y <= toYear; y++ {
+			if h := FromYMD(y, m, day); h.Month() == m {
+				out = append(out, h)
+			}
+		}
+	}
+	for _, r := range rules {
+		out = append(out, r.Dates(fromYear, toYear)...)
+	}
+	slices.Sort(out)
+	return slices.Compact(out)
 }
 
 var ordinalWords = [...]string{"", "first", "second", "third", "fourth"}

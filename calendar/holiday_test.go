@@ -311,3 +311,20 @@ func FuzzParseHolidayRule(f *testing.F) {
 		}
 	})
 }
+
+func TestHolidaysIn(t *testing.T) {
+	t.Parallel()
+	in := []Date{FromYMD(2021, time.December, 25), FromYMD(2022, time.December, 25),
+		FromYMD(2020, time.February, 29)}
+	// Listed dates keep their month and day; 29 February only in the leap
+	// year 2024. US Thanksgiving, the fourth Thursday of November: 2023-11-23,
+	// 2024-11-28, 2025-11-27 (common practice).
+	got := HolidaysIn(in, []HolidayRule{Nth(4, time.Thursday, time.November)}, 2023, 2025)
+	want := "[2023-11-23 2023-12-25 2024-02-29 2024-11-28 2024-12-25 2025-11-27 2025-12-25]"
+	if fmt.Sprint(got) != want {
+		t.Errorf("HolidaysIn = %v\nwant         %s", got, want)
+	}
+	if got := HolidaysIn(in, nil, 2025, 2025); fmt.Sprint(got) != "[2025-12-25]" {
+		t.Errorf("one common year: %v", got)
+	}
+}

@@ -30,7 +30,7 @@ const SlowLevel = 0.05
 // SpreadWindows are the window lengths (days) of the spread check;
 // selectionWindows are those whose spread decides on the slow part.
 var (
-	SpreadWindows    = []int{30, 91, 151, 365}
+	SpreadWindows    = [...]int{30, 91, 151, 365}
 	selectionWindows = []int{151, 365}
 )
 

@@ -136,7 +136,7 @@ func TestDemandFixedBalancePointsMatchR(t *testing.T) {
 		}
 		near(t, key+" R²", fit.R2(), want.R2, tolDemandExact)
 		near(t, key+" RSS", fit.RSS, want.RSS, tolDemandExact)
-		p := fit.k() + f.balancePoints(c.form)
+		p := fit.k() + model.DemandForm(c.form).BalancePoints()
 		if p != want.P {
 			t.Errorf("%s: p = %d, R script counts %d", key, p, want.P)
 		}
@@ -211,7 +211,7 @@ func TestDemandGridSearchMatchesR(t *testing.T) {
 	}
 
 	// Every form's best grid point: R fits each point with lm.fit.
-	for _, form := range model.DemandForms {
+	for _, form := range model.DemandFormNames() {
 		want := g.Search[form]
 		b := f.search(form)
 		s := b.score(form, f)

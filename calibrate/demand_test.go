@@ -205,7 +205,7 @@ func TestDemandWithoutTemperatureDependence(t *testing.T) {
 
 func TestDemandSettingsValidate(t *testing.T) {
 	t.Parallel()
-	for _, f := range append([]string{"", "auto"}, model.DemandForms...) {
+	for _, f := range append([]string{"", "auto"}, model.DemandFormNames()...) {
 		if err := (&DemandSettings{Form: f}).Validate(); err != nil {
 			t.Errorf("form %q: %v", f, err)
 		}

@@ -3,7 +3,6 @@ package calibrate
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strings"
 	"time"
 
@@ -19,7 +18,7 @@ import (
 // (to be set before the model is written).
 type DemandSettings struct {
 	// Form is "" or "auto" (the valid change-point form with the lowest
-	// BIC), or one of model.DemandForms to fix it.
+	// BIC), or one of model.AllDemandForms to fix it.
 	Form string
 	// Unit is the demand unit as the user states it, e.g. "GJ/day"; it is
 	// stored in the model and shown in reports.
@@ -44,8 +43,8 @@ func (s *DemandSettings) Validate() error {
 	case "", "auto":
 		return nil
 	}
-	if !slices.Contains(model.DemandForms, s.Form) {
-		return fmt.Errorf("calibrate: demand form %q: want auto, %s", s.Form, strings.Join(model.DemandForms, ", "))
+	if !model.DemandForm(s.Form).Valid() {
+		return fmt.Errorf("calibrate: demand form %q: want auto, %s", s.Form, strings.Join(model.DemandFormNames(), ", "))
 	}
 	return nil
 }
@@ -167,7 +166,7 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 	constant := model.FormScore{Form: "constant", RSS: f.yy, Parameters: f.k, BIC: demandBIC(f.n, f.yy, f.k), Valid: true}
 	m.Forms = append(m.Forms, constant)
 	best := map[string]gridBest{}
-	for _, form := range model.DemandForms {
+	for _, form := range model.DemandFormNames() {
 		b := f.search(form)
 		best[form] = b
 		m.Forms = append(m.Forms, b.score(form, f))
@@ -195,7 +194,7 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 		res.Fitted[i] = m.Expected(days.Temp[i], date.Weekday(), days.Holiday[i])
 		res.Residual[i] = days.Load[i] - res.Fitted[i]
 	}
-	p := fit.k() + f.balancePoints(chosen)
+	p := fit.k() + model.DemandForm(chosen).BalancePoints()
 	mean := f.meanLoad()
 	m.Fit = model.DemandFit{
 		N: f.n, Parameters: p, R2: fit.R2(), RMSE: math.Sqrt(fit.RSS / float64(f.n-p)), MeanLoad: mean,
@@ -262,7 +261,7 @@ func chooseForm(m *model.Demand, setting string, constant model.FormScore) (stri
 // balance points at the edge of the search range.
 func warnFit(m *model.Demand, f *demandFitter, setting string) {
 	warn := func(format string, a ...any) { m.Warnings = append(m.Warnings, fmt.Sprintf(format, a...)) }
-	u := "°" + m.TemperatureUnits
+	u := model.Units(m.TemperatureUnits).Symbol()
 	for _, side := range []struct {
 		name, sense string
 		c           model.ChangePoint
@@ -402,9 +401,9 @@ func fitNoise(m *model.Demand, dates []calendar.Date, r []float64) error {
 	}
 	dg := &model.DemandDiagnostics{
 		ACF1:                diagnose.ACF(grid, 1)[0],
-		LjungBoxResiduals:   test(diagnose.LjungBox(grid, 10, 0)),
-		LjungBoxInnovations: test(diagnose.LjungBox(innov, 10, 1)),
-		JarqueBera:          test(diagnose.JarqueBera(e)),
+		LjungBoxResiduals:   diagnose.LjungBox(grid, 10, 0),
+		LjungBoxInnovations: diagnose.LjungBox(innov, 10, 1),
+		JarqueBera:          diagnose.JarqueBera(e),
 		Skewness:            diagnose.Skewness(e),
 		ExcessKurtosis:      diagnose.ExcessKurtosis(e),
 	}

@@ -314,24 +314,8 @@ func (f *demandFitter) search(form string) gridBest {
 	return b
 }
 
-// balancePoints returns the number of balance points of a form.
-func (f *demandFitter) balancePoints(form string) int {
-	if form == model.Form5P {
-		return 2
-	}
-	return 1
-}
-
-// formSlopes returns the number of slopes of a form.
-func formSlopes(form string) int {
-	if form == model.Form4P || form == model.Form5P {
-		return 2
-	}
-	return 1
-}
-
 func (b gridBest) score(form string, f *demandFitter) model.FormScore {
-	s := model.FormScore{Form: form, Parameters: f.k + formSlopes(form) + f.balancePoints(form)}
+	s := model.FormScore{Form: form, Parameters: f.k + model.DemandForm(form).Params()}
 	if !b.ok {
 		s.Note = "no usable balance point in the search range"
 		return s
@@ -349,10 +333,10 @@ func (b gridBest) score(form string, f *demandFitter) model.FormScore {
 	case model.Form5P:
 		s.BalancePoints, s.Slopes = []float64{b.tbH, b.tbC}, []float64{b.bH, b.bC}
 	}
-	if model.HasHeating(form) && !(b.bH > 0) {
+	if model.DemandForm(form).HasHeating() && !(b.bH > 0) {
 		bad = append(bad, fmt.Sprintf("heating slope %.4g is not positive", b.bH))
 	}
-	if model.HasCooling(form) && !(b.bC > 0) {
+	if model.DemandForm(form).HasCooling() && !(b.bC > 0) {
 		bad = append(bad, fmt.Sprintf("cooling slope %.4g is not positive", b.bC))
 	}
 	s.Valid = len(bad) == 0
@@ -395,17 +379,17 @@ func (f *demandFitter) profiles(form string, b gridBest) []model.DemandProfile {
 // design returns [Z, h, c] for the form at the balance points (columns
 // absent from the form are left out).
 func (f *demandFitter) design(form string, tbH, tbC float64) *mat.Dense {
-	cols := f.k + formSlopes(form)
+	cols := f.k + model.DemandForm(form).Slopes()
 	x := mat.NewDense(f.n, cols, nil)
 	for i, t := range f.temp {
 		row := x.RawRowView(i)
 		copy(row, f.z.RawRowView(i))
 		c := f.k
-		if model.HasHeating(form) {
+		if model.DemandForm(form).HasHeating() {
 			row[c] = max(tbH-t, 0)
 			c++
 		}
-		if model.HasCooling(form) {
+		if model.DemandForm(form).HasCooling() {
 			if form == model.Form4P {
 				tbC = tbH
 			}
@@ -435,11 +419,11 @@ func (f *demandFitter) fill(m *model.Demand, form string, fit olsFit, tbH, tbC f
 	}
 	c := f.k
 	m.Heating, m.Cooling = model.ChangePoint{}, model.ChangePoint{}
-	if model.HasHeating(form) {
+	if model.DemandForm(form).HasHeating() {
 		m.Heating = model.ChangePoint{Present: true, BalancePoint: tbH, Slope: fit.Beta[c], SlopeSE: fit.SE[c]}
 		c++
 	}
-	if model.HasCooling(form) {
+	if model.DemandForm(form).HasCooling() {
 		if form == model.Form4P {
 			tbC = tbH
 		}

@@ -3,6 +3,7 @@ package calibrate
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
@@ -95,10 +96,10 @@ func (s *Settings) Validate() error {
 	default:
 		return fmt.Errorf("calibrate: trend %q: want auto, linear or none", s.Trend)
 	}
-	switch s.Shocks {
-	case "", "auto", model.FamilyNormal, model.FamilyStudentT, model.FamilySkewT, model.FamilyBootstrap:
-	default:
-		return fmt.Errorf("calibrate: shocks %q: want auto, normal, t, skew-t or bootstrap", s.Shocks)
+	if _, known := model.LookupFamily(s.Shocks); !known && s.Shocks != "" && s.Shocks != "auto" {
+		names := model.FamilyNames()
+		return fmt.Errorf("calibrate: shocks %q: want auto, %s or %s", s.Shocks,
+			strings.Join(names[:len(names)-1], ", "), names[len(names)-1])
 	}
 	return nil
 }
@@ -289,18 +290,18 @@ func finishFit(res *Result, s *Series, z []float64, set *Settings, f *model.File
 		return nil, fmt.Errorf("%s: %w", s.Name, err)
 	}
 
-	d.LjungBoxZ10 = test(diagnose.LjungBox(z, 10, p))
-	d.LjungBoxZ20 = test(diagnose.LjungBox(z, 20, p))
+	d.LjungBoxZ10 = diagnose.LjungBox(z, 10, p)
+	d.LjungBoxZ20 = diagnose.LjungBox(z, 20, p)
 	z2 := make([]float64, len(z))
 	for i, v := range z {
 		z2[i] = v * v
 	}
-	d.LjungBoxZ210 = test(diagnose.LjungBox(z2, 10, 0))
-	d.LjungBoxZ220 = test(diagnose.LjungBox(z2, 20, 0))
-	d.JarqueBera = test(diagnose.JarqueBera(zc))
+	d.LjungBoxZ210 = diagnose.LjungBox(z2, 10, 0)
+	d.LjungBoxZ220 = diagnose.LjungBox(z2, 20, 0)
+	d.JarqueBera = diagnose.JarqueBera(zc)
 	d.Skewness = diagnose.Skewness(zc)
 	d.ExcessKurtosis = diagnose.ExcessKurtosis(zc)
-	d.KS = test(diagnose.KolmogorovSmirnov(zc, dist.CDF))
+	d.KS = diagnose.KolmogorovSmirnov(zc, dist.CDF)
 	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
 	d.Climatology = climatology(s)
 	return res, nil
@@ -544,16 +545,20 @@ func monthlySigma(s *Series, e []float64, v *model.Volatility) error {
 // chooseShocks fits the parametric families, fills the family table and the
 // model's shocks, and returns the parametric distribution z is compared with.
 func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.File, d *model.Diagnostics) (shocks.Dist, error) {
-	fits := []shocks.Fit{shocks.FitNormal(z)}
-	t, err := shocks.FitStudentT(z)
-	if err != nil {
-		return nil, err
+	var (
+		fits   []shocks.Fit
+		params []model.Shocks
+	)
+	for _, fam := range model.Families() {
+		if !fam.Parametric() {
+			continue
+		}
+		fit, sh, err := fam.Fit(z)
+		if err != nil {
+			return nil, err
+		}
+		fits, params = append(fits, fit), append(params, sh)
 	}
-	st, err := shocks.FitSkewT(z)
-	if err != nil {
-		return nil, err
-	}
-	fits = append(fits, t, st)
 	best := 0
 	for i, fit := range fits {
 		if fit.AIC() < fits[best].AIC() {
@@ -561,44 +566,28 @@ func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.Fil
 		}
 	}
 	chosen := best
-	switch setting {
-	case model.FamilyNormal:
-		chosen = 0
-	case model.FamilyStudentT:
-		chosen = 1
-	case model.FamilySkewT:
-		chosen = 2
+	for i, sh := range params {
+		if sh.Family == setting {
+			chosen = i
+		}
 	}
 	for i, fit := range fits {
 		row := model.FamilyScore{
-			Family: model.Families[i], LogLik: fit.LogLik, Params: fit.Params, AIC: fit.AIC(),
+			Family: params[i].Family, LogLik: fit.LogLik, Params: fit.Params, AIC: fit.AIC(),
 			Chosen: i == chosen && setting != model.FamilyBootstrap,
 		}
-		row.DF, row.Skew = shape(fit.Dist)
+		row.DF, row.Skew = params[i].DF, params[i].Skew
 		d.ShockTable = append(d.ShockTable, row)
 	}
-	d.KSFamily = model.Families[chosen]
+	d.KSFamily = params[chosen].Family
 	if setting == model.FamilyBootstrap {
 		f.Shocks = model.Shocks{Family: model.FamilyBootstrap, ByMonth: byMonth}
 		d.ShockTable = append(d.ShockTable, model.FamilyScore{Family: model.FamilyBootstrap, Chosen: true})
 		return fits[chosen].Dist, nil
 	}
-	f.Shocks.Family = model.Families[chosen]
-	f.Shocks.DF, f.Shocks.Skew = shape(fits[chosen].Dist)
+	f.Shocks = params[chosen]
 	return fits[chosen].Dist, nil
 }
-
-func shape(d shocks.Dist) (df, skew float64) {
-	switch v := d.(type) {
-	case shocks.StudentT:
-		return v.Nu, 0
-	case shocks.SkewT:
-		return v.Nu, v.Xi
-	}
-	return 0, 0
-}
-
-func test(t diagnose.Test) model.Test { return model.Test{Stat: t.Stat, DF: t.DF, P: t.P} }
 
 // thin keeps about qqPoints evenly spaced pairs, always the two ends.
 func thin(a, b []float64) ([]float64, []float64) {

@@ -7,26 +7,17 @@ import (
 	"strings"
 
 	"wxstress/calendar"
+	"wxstress/model"
 )
 
-// Units of a temperature series: degrees Celsius or Fahrenheit.
-type Units string
+// Units of a temperature series: model.Units, whose home is package model.
+type Units = model.Units
 
+// The temperature units, as in package model.
 const (
-	Celsius    Units = "C"
-	Fahrenheit Units = "F"
+	Celsius    = model.Celsius
+	Fahrenheit = model.Fahrenheit
 )
-
-// Symbol returns "°C" or "°F".
-func (u Units) Symbol() string { return "°" + string(u) }
-
-// FromCelsius converts a temperature (not a difference) given in °C to these units.
-func (u Units) FromCelsius(c float64) float64 {
-	if u == Fahrenheit {
-		return c*9/5 + 32
-	}
-	return c
-}
 
 // Series is a daily mean temperature record on a complete daily grid: Temps[i]
 // is the mean of day Start+i, and NaN marks a missing day (a gap), whether the
@@ -105,14 +96,14 @@ const longGap = 365
 
 // ParseUnits reads a units name: C or F in any case, also degC, degF, °C and
 // °F.
+//
+// Deprecated: use model.ParseUnits.
 func ParseUnits(s string) (Units, error) {
-	switch strings.ToLower(strings.TrimSpace(s)) {
-	case "c", "degc", "°c":
-		return Celsius, nil
-	case "f", "degf", "°f":
-		return Fahrenheit, nil
+	u, err := model.ParseUnits(s)
+	if err != nil {
+		return "", fmt.Errorf("calibrate: unknown units %q: valid choices are C and F (also degC, degF, °C, °F)", s)
 	}
-	return "", fmt.Errorf("calibrate: unknown units %q: valid choices are C and F (also degC, degF, °C, °F)", s)
+	return u, nil
 }
 
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
@@ -141,9 +132,7 @@ func ReadFile(path string, opt ReadOptions) (*Series, error) {
 // the further bad rows); the list wraps ErrBadInput. A failure
 // of r itself is returned wrapped, without ErrBadInput.
 func ReadCSV(r io.Reader, name string, opt ReadOptions) (*Series, error) {
-	switch opt.Units {
-	case "", Celsius, Fahrenheit:
-	default:
+	if opt.Units != "" && !opt.Units.Valid() {
 		return nil, fmt.Errorf("calibrate: unknown units %q in read options: valid choices are %q and %q", string(opt.Units), string(Celsius), string(Fahrenheit))
 	}
 	p := &tempParser{rowScanner: newRowScanner(r, name), opt: opt}
@@ -212,7 +201,7 @@ func (p *tempParser) readHeader() error {
 // implausible reports whether v, in the declared units, is beyond ±60 °C.
 func (p *tempParser) implausible(v float64) bool {
 	if p.opt.Units == Fahrenheit {
-		v = (v - 32) * 5 / 9
+		v = Fahrenheit.Convert(v, Celsius)
 	}
 	return math.Abs(v) > plausibleC
 }
@@ -253,7 +242,7 @@ func (p *tempParser) value(record []string, i int) float64 {
 	}
 	if p.implausible(v) {
 		hint, limits := "", "±60 °C"
-		if p.opt.Units == "" && math.Abs((v-32)*5/9) <= plausibleC {
+		if p.opt.Units == "" && math.Abs(Fahrenheit.Convert(v, Celsius)) <= plausibleC {
 			hint = "; if the file is in °F, pass --units F"
 		}
 		if p.opt.Units == Fahrenheit {

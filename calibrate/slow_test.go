@@ -24,7 +24,7 @@ import (
 func annualHDD(t *testing.T, m *model.File, paths int) (mean, sd float64) {
 	t.Helper()
 	res, err := sim.Run(context.Background(), m, sim.Config{Paths: paths, Seed: 3, Year: 2026,
-		Periods: []string{"year"}, Bases: sim.DefaultBases(m.Data.Units)})
+		Periods: []string{"year"}, Bases: sim.BasesFor(model.Units(m.Data.Units))})
 	if err != nil {
 		t.Fatal(err)
 	}

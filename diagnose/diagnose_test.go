@@ -7,6 +7,8 @@ import (
 	"strings"
 	"testing"
 
+	"wxstress/model"
+
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -297,7 +299,7 @@ func checkAllNaN(t *testing.T, what string, v []float64) {
 	}
 }
 
-func checkNaNTest(t *testing.T, what string, got Test, df float64) {
+func checkNaNTest(t *testing.T, what string, got model.Test, df float64) {
 	t.Helper()
 	if !math.IsNaN(got.Stat) || !math.IsNaN(got.P) || got.DF != df {
 		t.Errorf("%s = %+v, want NaN statistic and p-value, DF %g", what, got, df)

@@ -20,6 +20,10 @@
 // for programmer misuse that no data can cause: a negative lag count, a
 // Ljung–Box test with no degrees of freedom left, a nil distribution function.
 //
+// The tests (LjungBox, JarqueBera, KolmogorovSmirnov) return a model.Test,
+// the statistic with its degrees of freedom and p-value, as the model file
+// stores it.
+//
 // p-values are upper-tail probabilities computed from the survival function
 // (gonum's stat/distuv), so very small p-values keep their relative accuracy
 // rather than rounding to zero.

@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"testing"
 
+	"wxstress/model"
+
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -201,7 +203,7 @@ func TestPACFGolden(t *testing.T) {
 	}
 }
 
-func checkTest(t *testing.T, got Test, want goldenTest, relStat float64) {
+func checkTest(t *testing.T, got model.Test, want goldenTest, relStat float64) {
 	t.Helper()
 	if !near(got.Stat, want.Statistic, relStat, 0) {
 		t.Errorf("%s: statistic %.17g, want %.17g", want.Call, got.Stat, want.Statistic)

@@ -3,6 +3,8 @@ package diagnose
 import (
 	"math"
 	"slices"
+
+	"wxstress/model"
 )
 
 // KolmogorovSmirnov returns the one-sample Kolmogorov–Smirnov statistic
@@ -19,7 +21,7 @@ import (
 // Ties are allowed, but the p-value assumes a continuous distribution and is
 // then only approximate. D is NaN for an empty series or if cdf
 // returns NaN. It panics if cdf is nil.
-func KolmogorovSmirnov(x []float64, cdf func(float64) float64) Test {
+func KolmogorovSmirnov(x []float64, cdf func(float64) float64) model.Test {
 	if cdf == nil {
 		panic("diagnose: nil distribution function")
 	}
@@ -39,7 +41,7 @@ func KolmogorovSmirnov(x []float64, cdf func(float64) float64) Test {
 		// The empirical CDF steps from i/n to (i+1)/n at v.
 		d = max(d, f-float64(i)/nf, float64(i+1)/nf-f)
 	}
-	return Test{Stat: d, DF: nf, P: kolmogorovSurvival(math.Sqrt(nf) * d)}
+	return model.Test{Stat: d, DF: nf, P: kolmogorovSurvival(math.Sqrt(nf) * d)}
 }
 
 // kolmogorovSurvival returns P(K > t) for the Kolmogorov distribution,

@@ -3,30 +3,20 @@ package diagnose
 import (
 	"math"
 
+	"wxstress/model"
+
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// Test is the outcome of a hypothesis test.
-type Test struct {
-	// Stat is the test statistic.
-	Stat float64
-	// DF is the degrees of freedom of the reference χ² distribution, or the
-	// sample size for the Kolmogorov–Smirnov test.
-	DF float64
-	// P is the p-value, the probability under the null hypothesis of a
-	// statistic at least as large as Stat.
-	P float64
-}
-
 // nanTest is the result for degenerate data.
-func nanTest(df float64) Test { return Test{Stat: math.NaN(), DF: df, P: math.NaN()} }
+func nanTest(df float64) model.Test { return model.Test{Stat: math.NaN(), DF: df, P: math.NaN()} }
 
 // chiSquareTest completes a test whose statistic is referred to χ²(df).
-func chiSquareTest(stat, df float64) Test {
+func chiSquareTest(stat, df float64) model.Test {
 	if math.IsNaN(stat) {
 		return nanTest(df)
 	}
-	return Test{Stat: stat, DF: df, P: distuv.ChiSquared{K: df}.Survival(stat)}
+	return model.Test{Stat: stat, DF: df, P: distuv.ChiSquared{K: df}.Survival(stat)}
 }
 
 // LjungBox returns the Ljung–Box portmanteau statistic
@@ -41,7 +31,7 @@ func chiSquareTest(stat, df float64) Test {
 //
 // Q is NaN when any r_k is (constant or empty series) or when lags ≥ n. It
 // panics if lags < 1, fitdf < 0, or fitdf ≥ lags.
-func LjungBox(x []float64, lags, fitdf int) Test {
+func LjungBox(x []float64, lags, fitdf int) model.Test {
 	switch {
 	case lags < 1:
 		panic("diagnose: Ljung–Box needs at least one lag")

@@ -3,6 +3,8 @@ package diagnose
 import (
 	"math"
 
+	"wxstress/model"
+
 	"gonum.org/v1/gonum/stat"
 )
 
@@ -44,7 +46,7 @@ func ExcessKurtosis(x []float64) float64 {
 // with g1 = Skewness(x), g2 = ExcessKurtosis(x) and n the number of present
 // values, and its asymptotic p-value against χ²(2). It is NaN for a constant
 // or empty series.
-func JarqueBera(x []float64) Test {
+func JarqueBera(x []float64) model.Test {
 	n, m2, m3, m4 := moments(x)
 	g1 := m3 / math.Pow(m2, 1.5)
 	g2 := m4/(m2*m2) - 3

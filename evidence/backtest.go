@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"wxstress/diagnose"
+	"wxstress/model"
 )
 
 // Thresholds of the verdict.
@@ -55,7 +56,7 @@ type PITSummary struct {
 	// KS is the one-sample Kolmogorov–Smirnov test of the PITs against the
 	// uniform distribution on [0, 1] (diagnose.KolmogorovSmirnov: asymptotic
 	// p-value, approximate because mid-rank PITs are discrete).
-	KS diagnose.Test
+	KS model.Test
 	// ProbitSD is the sample standard deviation (divisor n − 1) of Φ⁻¹(PIT),
 	// each PIT first clamped to [½/m, 1 − ½/m] for its sample size m. It is
 	// about 1 for a calibrated forecast, above 1 when too narrow, below 1 when

@@ -95,7 +95,7 @@ func Fit(x []float64) (*FitResult, error) {
 	}
 	var cov mat.SymDense
 	if err := chol.InverseTo(&cov); err != nil {
-		return nil, fmt.Errorf("extremes: inverting the observed information: %v", err)
+		return nil, fmt.Errorf("extremes: inverting the observed information: %w", err)
 	}
 
 	r := &FitResult{

@@ -152,8 +152,7 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 		}
 		t := sim.Summarize(cr.Payoffs, true, nil)
 		cr.Mean, cr.SD, cr.MeanSE = t.Mean, t.SD, t.MeanSE
-		q := func(p float64) float64 { return t.Quantiles[slices.Index(sim.Probs, p)] }
-		cr.P1, cr.P5, cr.P50, cr.P95, cr.P99 = q(0.01), q(0.05), q(0.50), q(0.95), q(0.99)
+		cr.P1, cr.P5, cr.P50, cr.P95, cr.P99 = t.Quantile(0.01), t.Quantile(0.05), t.Quantile(0.50), t.Quantile(0.95), t.Quantile(0.99)
 		cr.ProbPayout = float64(paid) / float64(n)
 		cr.LoadedPrice = cr.Mean + o.Loading*cr.SD
 		sorted := slices.Clone(cr.Payoffs)

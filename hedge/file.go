@@ -27,12 +27,12 @@ const (
 	Collar Kind = "collar"
 )
 
-// Indices are the index keys a contract or an exposure may name; energy and
-// peak need a run with a demand model.
-var Indices = []string{"hdd", "cdd", "energy", "peak"}
+// Indices returns the index keys a contract or an exposure may name (a new
+// slice each time); energy and peak need a run with a demand model.
+func Indices() []string { return []string{"hdd", "cdd", "energy", "peak"} }
 
 // Key names a per-path value the simulator produces: an index (one of
-// Indices, a sim.Index key) over a period (a sim.ParsePeriod name, lower
+// Indices(), a sim.Index key) over a period (a sim.ParsePeriod name, lower
 // case).
 type Key struct {
 	Index, Period string
@@ -264,7 +264,7 @@ func Parse(src []byte, file string) (*File, error) {
 func decodeError(err error, src []byte, file string, elem int) error {
 	line, key, msg, ok := tomlpos.Split(err)
 	if !ok {
-		return fmt.Errorf("%s: %w: %v", file, ErrFile, err)
+		return fmt.Errorf("%s: %w: %w", file, ErrFile, err)
 	}
 	if elem >= 0 && key != "" {
 		if !strings.HasPrefix(key, "contract.") {
@@ -380,12 +380,12 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // and the contract's index, Parse adds the file and line.
 func (f *File) check() error {
 	index := func(v string) string {
-		for _, x := range Indices {
+		for _, x := range Indices() {
 			if v == x {
 				return ""
 			}
 		}
-		return fmt.Sprintf("%q: want one of %s", v, strings.Join(Indices, ", "))
+		return fmt.Sprintf("%q: want one of %s", v, strings.Join(Indices(), ", "))
 	}
 	period := func(v string) string {
 		if _, err := sim.ParsePeriod(v, 2001); err != nil {

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"slices"
 	"strings"
 	"time"
 
@@ -21,24 +20,6 @@ const (
 	DemandSchema        = "wxstress-demand"
 	DemandSchemaVersion = 1
 )
-
-// Change-point forms of the demand model (ASHRAE Guideline 14 inverse
-// models), named by their parameter count.
-const (
-	Form3PHeating = "3p-heating" // β0 + βH·max(TbH − T, 0)
-	Form3PCooling = "3p-cooling" // β0 + βC·max(T − TbC, 0)
-	Form4P        = "4p"         // β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)
-	Form5P        = "5p"         // β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC
-)
-
-// DemandForms lists the change-point forms in the order reports show them.
-var DemandForms = []string{Form3PHeating, Form3PCooling, Form4P, Form5P}
-
-// HasHeating reports whether form has a heating slope.
-func HasHeating(form string) bool { return form == Form3PHeating || form == Form4P || form == Form5P }
-
-// HasCooling reports whether form has a cooling slope.
-func HasCooling(form string) bool { return form == Form3PCooling || form == Form4P || form == Form5P }
 
 // Demand is the demand model file: daily demand as a function of the day's
 // mean temperature T (in TemperatureUnits, the units of the temperature
@@ -60,8 +41,8 @@ type Demand struct {
 	SchemaVersion    int    `json:"schema_version"`
 	ToolVersion      string `json:"tool_version"`
 	Unit             string `json:"unit"`              // demand unit as the user stated it, e.g. "GJ/day"
-	TemperatureUnits string `json:"temperature_units"` // "C" or "F"
-	Form             string `json:"form"`              // one of DemandForms
+	TemperatureUnits string `json:"temperature_units"` // a Units: "C" or "F"
+	Form             string `json:"form"`              // a DemandForm
 	FormRule         string `json:"form_rule"`         // how the form was chosen
 
 	Intercept float64     `json:"intercept"` // β0, Unit
@@ -287,12 +268,12 @@ func (d *Demand) Expected(t float64, weekday time.Weekday, holiday bool) float64
 	return v
 }
 
-// CheckUnits returns an error unless units ("C" or "F", a temperature
-// model's data.units) are the demand model's temperature units.
+// CheckUnits returns an error unless units (a temperature model's
+// data.units, "C" or "F") are the demand model's temperature units.
 func (d *Demand) CheckUnits(units string) error {
 	if units != d.TemperatureUnits {
-		return fmt.Errorf("model: the demand model's balance points are in °%s but the temperatures are in °%s: refit one of them in the other's units",
-			d.TemperatureUnits, units)
+		return fmt.Errorf("model: the demand model's balance points are in %s but the temperatures are in %s: refit one of them in the other's units",
+			Units(d.TemperatureUnits).Symbol(), Units(units).Symbol())
 	}
 	return nil
 }
@@ -325,14 +306,15 @@ func DecodeDemand(b []byte, name string) (*Demand, error) {
 	if w, ok := raw["weekday"].([]any); !ok || len(w) != 7 {
 		return nil, &KeyError{name, "weekday", "want 7 values, Monday first"}
 	}
-	form, _ := raw["form"].(string)
-	if !slices.Contains(DemandForms, form) {
-		return nil, &KeyError{name, "form", fmt.Sprintf("is %q, want one of %s", raw["form"], strings.Join(DemandForms, ", "))}
+	formName, _ := raw["form"].(string)
+	form := DemandForm(formName)
+	if !form.Valid() {
+		return nil, &KeyError{name, "form", fmt.Sprintf("is %q, want one of %s", raw["form"], strings.Join(DemandFormNames(), ", "))}
 	}
 	for _, sd := range []struct {
 		side string
 		has  bool
-	}{{"heating", HasHeating(form)}, {"cooling", HasCooling(form)}} {
+	}{{"heating", form.HasHeating()}, {"cooling", form.HasCooling()}} {
 		side, has := sd.side, sd.has
 		sub, _ := raw[side].(map[string]any)
 		for _, k := range []string{"balance_point", "slope"} {
@@ -370,16 +352,17 @@ func (d *Demand) Validate(name string) error {
 	if strings.TrimSpace(d.Unit) == "" {
 		return bad("unit", "empty: state the demand unit, e.g. \"GJ/day\"")
 	}
-	if d.TemperatureUnits != "C" && d.TemperatureUnits != "F" {
+	if !Units(d.TemperatureUnits).Valid() {
 		return bad("temperature_units", "is %q, want \"C\" or \"F\"", d.TemperatureUnits)
 	}
-	if !slices.Contains(DemandForms, d.Form) {
-		return bad("form", "is %q, want one of %s", d.Form, strings.Join(DemandForms, ", "))
+	form := DemandForm(d.Form)
+	if !form.Valid() {
+		return bad("form", "is %q, want one of %s", d.Form, strings.Join(DemandFormNames(), ", "))
 	}
-	if d.Heating.Present != HasHeating(d.Form) {
+	if d.Heating.Present != form.HasHeating() {
 		return bad("heating.balance_point", "does not match form %q", d.Form)
 	}
-	if d.Cooling.Present != HasCooling(d.Form) {
+	if d.Cooling.Present != form.HasCooling() {
 		return bad("cooling.balance_point", "does not match form %q", d.Form)
 	}
 	if !finite(d.Intercept) {

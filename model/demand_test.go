@@ -21,10 +21,10 @@ func validDemand(form string) *Demand {
 		Fit:   DemandFit{CVRMSE: 3.1, NMBE: 0},
 		Data:  DemandData{FirstDate: calendar.FromYMD(2021, 1, 1), LastDate: calendar.FromYMD(2025, 12, 31)},
 	}
-	if HasHeating(form) {
+	if DemandForm(form).HasHeating() {
 		d.Heating = ChangePoint{Present: true, BalancePoint: 15.5, Slope: 3000, SlopeSE: 6}
 	}
-	if HasCooling(form) {
+	if DemandForm(form).HasCooling() {
 		d.Cooling = ChangePoint{Present: true, BalancePoint: 22, Slope: 450, SlopeSE: 60}
 		if form == Form4P {
 			d.Cooling.BalancePoint = 15.5
@@ -36,7 +36,7 @@ func validDemand(form string) *Demand {
 func TestDemandWriteReadRoundTrip(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	for _, form := range DemandForms {
+	for _, form := range DemandFormNames() {
 		p := filepath.Join(dir, form+".json")
 		d := validDemand(form)
 		if err := d.Write(p); err != nil {

@@ -68,11 +68,17 @@ type FamilyScore struct {
 	Chosen bool    `json:"chosen"`
 }
 
-// Test is a test statistic with its degrees of freedom and p-value.
+// Test is the outcome of a hypothesis test (package diagnose computes
+// them): the statistic with its degrees of freedom and p-value.
 type Test struct {
+	// Stat is the test statistic.
 	Stat float64 `json:"stat"`
-	DF   float64 `json:"df"`
-	P    float64 `json:"p"`
+	// DF is the degrees of freedom of the reference χ² distribution, or the
+	// sample size for the Kolmogorov–Smirnov test.
+	DF float64 `json:"df"`
+	// P is the p-value, the probability under the null hypothesis of a
+	// statistic at least as large as Stat.
+	P float64 `json:"p"`
 }
 
 // WindowSpread is the standard deviation of L-day mean anomalies.

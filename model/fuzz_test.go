@@ -76,7 +76,7 @@ func FuzzDecodeModel(f *testing.F) {
 			t.Fatalf("accepted model fails after a round trip: %v", err)
 		}
 		cfg := sim.Config{Paths: 3, Seed: 1, Workers: 1, Year: 2020, Periods: []string{"year", "jan"},
-			Bases: sim.DefaultBases(m.Data.Units)}
+			Bases: sim.BasesFor(model.Units(m.Data.Units))}
 		for _, start := range []string{sim.StartClimate, sim.StartConditional} {
 			cfg.Start = start
 			res, err := sim.Run(context.Background(), m, cfg)

@@ -124,7 +124,7 @@ func decodeStrict(b []byte, name string, v any) error {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
-		return fmt.Errorf("%s: %w: %v", name, ErrInvalid, err)
+		return fmt.Errorf("%s: %w: %w", name, ErrInvalid, err)
 	}
 	return nil
 }
@@ -183,7 +183,7 @@ func (f *File) Validate(name string) error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{name, key, fmt.Sprintf(format, a...)}
 	}
-	if f.Data.Units != "C" && f.Data.Units != "F" {
+	if !Units(f.Data.Units).Valid() {
 		return bad("data.units", "is %q, want \"C\" or \"F\"", f.Data.Units)
 	}
 	if f.Data.LastDate < f.Data.FirstDate {
@@ -303,16 +303,17 @@ func (f *File) Validate(name string) error {
 		}
 	}
 	sh := f.Shocks
-	switch sh.Family {
-	case FamilyNormal:
-	case FamilyStudentT, FamilySkewT:
-		if !(sh.DF > 2 && sh.DF <= MaxDF) {
-			return bad("shocks.df", "ν = %v, want 2 < ν ≤ %g (unit variance needs ν > 2)", sh.DF, MaxDF)
-		}
-		if sh.Family == FamilySkewT && !(sh.Skew >= MinSkew && sh.Skew <= MaxSkew) {
-			return bad("shocks.skew", "ξ = %v, want %g ≤ ξ ≤ %g (1 is symmetric)", sh.Skew, MinSkew, MaxSkew)
-		}
-	case FamilyBootstrap:
+	fam, ok := LookupFamily(sh.Family)
+	if !ok {
+		return bad("shocks.family", "is %q, want one of %s", sh.Family, strings.Join(FamilyNames(), ", "))
+	}
+	if fam.UsesDF && !(sh.DF > 2 && sh.DF <= MaxDF) {
+		return bad("shocks.df", "ν = %v, want 2 < ν ≤ %g (unit variance needs ν > 2)", sh.DF, MaxDF)
+	}
+	if fam.UsesSkew && !(sh.Skew >= MinSkew && sh.Skew <= MaxSkew) {
+		return bad("shocks.skew", "ξ = %v, want %g ≤ ξ ≤ %g (1 is symmetric)", sh.Skew, MinSkew, MaxSkew)
+	}
+	if !fam.Parametric() {
 		if len(sh.ByMonth) != 12 {
 			return bad("shocks.by_month", "has %d months, want 12", len(sh.ByMonth))
 		}
@@ -326,8 +327,6 @@ func (f *File) Validate(name string) error {
 				}
 			}
 		}
-	default:
-		return bad("shocks.family", "is %q, want one of %s", sh.Family, strings.Join(Families, ", "))
 	}
 	return nil
 }

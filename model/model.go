@@ -16,17 +16,6 @@ const (
 	SchemaVersion = 2
 )
 
-// Shock families.
-const (
-	FamilyNormal    = "normal"
-	FamilyStudentT  = "t"
-	FamilySkewT     = "skew-t"
-	FamilyBootstrap = "bootstrap"
-)
-
-// Families lists the shock families in the order reports show them.
-var Families = []string{FamilyNormal, FamilyStudentT, FamilySkewT, FamilyBootstrap}
-
 // File is the model file: everything the simulator needs, the provenance of
 // the data it came from, and the fit's diagnostics. Temperatures are in
 // Data.Units throughout (°C or °F); time t counts days from Trend.Epoch.
@@ -80,7 +69,7 @@ type Data struct {
 	SHA256      string        `json:"sha256"`
 	FirstDate   calendar.Date `json:"first_date"`
 	LastDate    calendar.Date `json:"last_date"`
-	Units       string        `json:"units"` // "C" or "F"
+	Units       string        `json:"units"` // a Units: "C" or "F"
 	MeanFrom    string        `json:"mean_from"`
 	Days        int           `json:"days"`    // days from first to last date
 	Missing     int           `json:"missing"` // of which without a value
@@ -191,9 +180,9 @@ type Volatility struct {
 // for the symmetric families and null for the bootstrap, so that scripts
 // always find both keys.
 type Shocks struct {
-	Family string
-	DF     float64 // ν, for "t" and "skew-t"
-	Skew   float64 // ξ, for "skew-t" (1 = symmetric, < 1 = longer cold tail)
+	Family string  // a Family's Name
+	DF     float64 // ν, for the families that use it ("t", "skew-t")
+	Skew   float64 // ξ, for the families that use it ("skew-t"; 1 = symmetric, < 1 = longer cold tail)
 	// ByMonth holds the standardized innovations of each calendar month,
 	// for "bootstrap" only.
 	ByMonth [][]float64
@@ -210,13 +199,16 @@ type shocksJSON struct {
 func (s Shocks) MarshalJSON() ([]byte, error) {
 	j := shocksJSON{Family: s.Family, ByMonth: s.ByMonth}
 	one := 1.0
-	switch s.Family {
-	case FamilyStudentT:
-		j.DF, j.Skew = &s.DF, &one
-	case FamilySkewT:
-		j.DF, j.Skew = &s.DF, &s.Skew
-	case FamilyNormal:
-		j.Skew = &one
+	if f, ok := LookupFamily(s.Family); ok {
+		if f.UsesDF {
+			j.DF = &s.DF
+		}
+		switch {
+		case f.UsesSkew:
+			j.Skew = &s.Skew
+		case f.Parametric():
+			j.Skew = &one
+		}
 	}
 	return json.Marshal(j)
 }

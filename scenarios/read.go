@@ -59,7 +59,7 @@ func Parse(src []byte, file string) (*Scenario, error) {
 		if line, key, msg, ok := tomlpos.Split(err); ok {
 			return nil, &KeyError{file, line, key, msg}
 		}
-		return nil, fmt.Errorf("%s: %w: %v", file, ErrScenario, err)
+		return nil, fmt.Errorf("%s: %w: %w", file, ErrScenario, err)
 	}
 	if und := md.Undecoded(); len(und) > 0 {
 		k := und[0].String()
@@ -110,9 +110,7 @@ func (s *Scenario) check() error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{Key: key, Msg: fmt.Sprintf(format, a...)}
 	}
-	switch s.Units {
-	case "", "C", "F":
-	default:
+	if s.Units != "" && !s.Units.Valid() {
 		return bad("units", "%q: want C or F", s.Units)
 	}
 	degrees := func(key string, v, limit float64) error {

@@ -16,7 +16,7 @@ import (
 type Scenario struct {
 	Name        string       `toml:"name"`
 	Description string       `toml:"description"`
-	Units       string       `toml:"units"` // "C" or "F"; "" = the model's units
+	Units       model.Units  `toml:"units"` // "" = the model's units
 	Shift       *Shift       `toml:"shift"`
 	Trend       *Trend       `toml:"trend"`
 	Volatility  *Volatility  `toml:"volatility"`
@@ -106,7 +106,7 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 	fail := func(key, format string, a ...any) error {
 		return fmt.Errorf("scenario %s: %s: %s", s.Name, key, fmt.Sprintf(format, a...))
 	}
-	k := s.factor(m.Data.Units) // converts the scenario's degrees to the model's
+	k := s.factor(model.Units(m.Data.Units)) // converts the scenario's degrees to the model's
 	out.Diagnostics = nil
 	sc := &model.Scenario{Name: s.Name}
 
@@ -212,15 +212,13 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 	return out, nil
 }
 
-// factor converts the scenario's temperature differences to units.
-func (s *Scenario) factor(units string) float64 {
-	switch {
-	case s.Units == "C" && units == "F":
-		return 1.8
-	case s.Units == "F" && units == "C":
-		return 1 / 1.8
+// factor converts the scenario's temperature differences to units. A model
+// of invalid units is left to its Validate to refuse.
+func (s *Scenario) factor(units model.Units) float64 {
+	if s.Units == "" || !units.Valid() {
+		return 1
 	}
-	return 1
+	return s.Units.ConvertDelta(1, units)
 }
 
 func clone(m *model.File) (*model.File, error) {
@@ -236,9 +234,9 @@ func clone(m *model.File) (*model.File, error) {
 }
 
 // Describe lists what the scenario changes, one line each, with units
-// (u is "C" or "F", the units the scenario's degrees are shown in).
+// (in the scenario's units).
 func (s *Scenario) Describe() []string {
-	u := "°" + s.Units
+	u := s.Units.Symbol()
 	if s.Units == "" {
 		u = "° (model units)"
 	}
@@ -323,12 +321,13 @@ func (s *Scenario) DescribeFor(m *model.File, year int) []string {
 	base := m.Trend.Intercept + m.Trend.Slope()*calendar.YearStart(year).ModelTime()
 	moved := applied.Trend.Intercept + applied.Trend.Slope()*calendar.YearStart(year).ModelTime()
 	if s.Shift != nil && s.Shift.Uniform != nil {
-		moved -= s.factor(m.Data.Units) * *s.Shift.Uniform
+		moved -= s.factor(model.Units(m.Data.Units)) * *s.Shift.Uniform
 	}
 	for i, line := range out {
 		if strings.HasPrefix(line, "climate of ") {
-			out[i] = fmt.Sprintf("%s: level %+.2f °%s against %d (fitted trend %+.3f °%s/decade)", line, moved-base,
-				m.Data.Units, year, 10*applied.Trend.SlopePerYear, m.Data.Units)
+			u := model.Units(m.Data.Units).Symbol()
+			out[i] = fmt.Sprintf("%s: level %+.2f %s against %d (fitted trend %+.3f %s/decade)", line, moved-base,
+				u, year, 10*applied.Trend.SlopePerYear, u)
 		}
 	}
 	return out

@@ -40,7 +40,7 @@ func simulate(t *testing.T, m *model.File, periods ...string) *sim.Result {
 		periods = []string{"year"}
 	}
 	res, err := sim.Run(context.Background(), m, sim.Config{Paths: 2000, Seed: 99, Year: 2025, Periods: periods,
-		Bases: sim.DefaultBases("C")})
+		Bases: sim.BasesFor(model.Celsius)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -213,8 +213,8 @@ func TestTailChanges(t *testing.T) {
 	m.Shocks = model.Shocks{Family: model.FamilyNormal}
 	base, fat := simulate(t, m), simulate(t, apply(t, &Scenario{Name: "f", Tails: &Tails{DF: ptr(4.0)}}, m))
 	b, f := sim.Summarize(base.Aggregates[sim.Coldest].Values, false, nil), sim.Summarize(fat.Aggregates[sim.Coldest].Values, false, nil)
-	if f.ReturnLevels[5] >= b.ReturnLevels[5] {
-		t.Errorf("1-in-100 coldest day %.2f with ν = 4, %.2f with normal shocks", f.ReturnLevels[5], b.ReturnLevels[5])
+	if f.ReturnLevel(100) >= b.ReturnLevel(100) {
+		t.Errorf("1-in-100 coldest day %.2f with ν = 4, %.2f with normal shocks", f.ReturnLevel(100), b.ReturnLevel(100))
 	}
 }
 

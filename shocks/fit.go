@@ -183,7 +183,7 @@ func minimize(f func([]float64) float64, x0 []float64) ([]float64, error) {
 		}
 		res, err := optimize.Minimize(optimize.Problem{Func: f}, x, settings, &optimize.NelderMead{SimplexSize: size})
 		if err != nil {
-			return nil, fmt.Errorf("%w: %v", errNoConvergence, err)
+			return nil, fmt.Errorf("%w: %w", errNoConvergence, err)
 		}
 		if res.Status != optimize.FunctionConvergence {
 			return nil, fmt.Errorf("%w: %v after %d evaluations", errNoConvergence, res.Status, res.Stats.FuncEvaluations)

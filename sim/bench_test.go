@@ -18,7 +18,7 @@ func BenchmarkPathDay(b *testing.B) {
 // benchPathDay times one path of m (temperatures and accumulation) and
 // reports nanoseconds per simulated day.
 func benchPathDay(b *testing.B, m *model.File) {
-	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
+	pl, _, err := prepare(m, &Config{Paths: 1, Bases: BasesFor(model.Celsius)})
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -39,7 +39,7 @@ func BenchmarkRun(b *testing.B) {
 	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
 	var days int
 	for b.Loop() {
-		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: DefaultBases("C")})
+		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: BasesFor(model.Celsius)})
 		if err != nil {
 			b.Fatal(err)
 		}
@@ -54,7 +54,7 @@ func BenchmarkRunDemand(b *testing.B) {
 	m := flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6)
 	var days int
 	for b.Loop() {
-		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: DefaultBases("C"),
+		res, err := Run(context.Background(), m, Config{Paths: 100_000, Seed: 1, Bases: BasesFor(model.Celsius),
 			Demand: testDemand(), Capacity: 90000})
 		if err != nil {
 			b.Fatal(err)

@@ -2,7 +2,6 @@ package sim
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -34,7 +33,7 @@ func TestDemandAggregatesMatchBruteForce(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
 	cfg := Config{Paths: 1, Year: 2024, Periods: []string{"year", "heating", "jan", "07-01:07-31"},
-		Bases: DefaultBases("C"), Demand: testDemand(), Capacity: 95000,
+		Bases: BasesFor(model.Celsius), Demand: testDemand(), Capacity: 95000,
 		Holidays: []calendar.Date{calendar.FromYMD(2024, time.January, 1), calendar.FromYMD(2023, time.December, 25)}}
 	pl, ps, err := prepare(m, &cfg)
 	if err != nil {
@@ -125,12 +124,12 @@ func TestDemandKeepsTemperatureStreams(t *testing.T) {
 			}
 		}
 	}
-	if _, err := Run(context.Background(), m, Config{Paths: 10, Capacity: 5, Bases: DefaultBases("C")}); err == nil {
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Capacity: 5, Bases: BasesFor(model.Celsius)}); err == nil {
 		t.Error("a capacity without a demand model was accepted")
 	}
 	d := testDemand()
 	d.TemperatureUnits = "F"
-	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: DefaultBases("C")}); err == nil {
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Demand: d, Bases: BasesFor(model.Celsius)}); err == nil {
 		t.Error("a °F demand model on a °C temperature model was accepted")
 	}
 }
@@ -151,7 +150,7 @@ func TestWeatherNormalize(t *testing.T) {
 		hist = append(hist, HistoryDay{Date: day, Temp: temp, Load: d.Expected(temp, day.Weekday(), false) + 500})
 	}
 	const paths = 500
-	out, err := WeatherNormalize(context.Background(), m, d, Config{Seed: 2, Bases: DefaultBases("C")}, hist, paths)
+	out, err := WeatherNormalize(context.Background(), m, d, Config{Seed: 2, Bases: BasesFor(model.Celsius)}, hist, paths)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -176,7 +175,7 @@ func TestWeatherNormalize(t *testing.T) {
 func TestLoadDurationFirstRankIsThePeak(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
-	cfg := Config{Seed: 6, Year: 2027, Bases: DefaultBases("C"), Demand: testDemand()}
+	cfg := Config{Seed: 6, Year: 2027, Bases: BasesFor(model.Celsius), Demand: testDemand()}
 	fan, err := RunFan(context.Background(), m, cfg, 600)
 	if err != nil {
 		t.Fatal(err)
@@ -184,14 +183,14 @@ func TestLoadDurationFirstRankIsThePeak(t *testing.T) {
 	cfg.Paths, cfg.Periods = 600, []string{"year"}
 	res := run(t, m, cfg)
 	tail := Summarize(res.Aggregates[PeakDemand].Values, true, nil)
-	for k, p := range FanProbs {
+	for k, p := range FanQuantileProbs() {
 		want := stat.Quantile(p, stat.LinInterp, sortedCopy(res.Aggregates[PeakDemand].Values), nil)
 		if got := fan.LoadDuration[k][0]; math.Abs(got-want) > 1e-9*want {
 			t.Errorf("load-duration rank 1, P%.0f = %.3f; peak-day index %.3f", 100*p, got, want)
 		}
 	}
-	if fan.LoadDuration[2][0] != tail.Quantiles[4] {
-		t.Errorf("median of the highest day %v, P50 of the peak %v", fan.LoadDuration[2][0], tail.Quantiles[4])
+	if fan.LoadDuration[2][0] != tail.Quantile(0.50) {
+		t.Errorf("median of the highest day %v, P50 of the peak %v", fan.LoadDuration[2][0], tail.Quantile(0.50))
 	}
 	for r := 1; r < len(fan.LoadDuration[2]); r++ {
 		if fan.LoadDuration[2][r] > fan.LoadDuration[2][r-1]+1e-9 {
@@ -206,23 +205,6 @@ func sortedCopy(x []float64) []float64 {
 	return y
 }
 
-func TestHolidayDates(t *testing.T) {
-	t.Parallel()
-	in := []calendar.Date{calendar.FromYMD(2021, time.December, 25), calendar.FromYMD(2022, time.December, 25),
-		calendar.FromYMD(2020, time.February, 29)}
-	// Listed dates keep their month and day; 29 February only in the leap
-	// year 2024. US Thanksgiving, the fourth Thursday of November: 2023-11-23,
-	// 2024-11-28, 2025-11-27 (common practice).
-	got := HolidayDates(in, []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November)}, 2023, 2025)
-	want := "[2023-11-23 2023-12-25 2024-02-29 2024-11-28 2024-12-25 2025-11-27 2025-12-25]"
-	if fmt.Sprint(got) != want {
-		t.Errorf("HolidayDates = %v\nwant           %s", got, want)
-	}
-	if got := HolidayDates(in, nil, 2025, 2025); fmt.Sprint(got) != "[2025-12-25]" {
-		t.Errorf("one common year: %v", got)
-	}
-}
-
 // TestHolidaysAcrossHeatingSeason runs the heating season of 2025, 1
 // November 2024 to 31 March 2025, with holidays from rules and a listed
 // date: each rule must give its day in both calendar years, and each
@@ -232,7 +214,7 @@ func TestHolidayDates(t *testing.T) {
 func TestHolidaysAcrossHeatingSeason(t *testing.T) {
 	t.Parallel()
 	m := seasonalModel([]float64{0.72})
-	cfg := Config{Paths: 200, Seed: 11, Year: 2025, Periods: []string{"heating"}, Bases: DefaultBases("C"), Demand: testDemand()}
+	cfg := Config{Paths: 200, Seed: 11, Year: 2025, Periods: []string{"heating"}, Bases: BasesFor(model.Celsius), Demand: testDemand()}
 	first, last, err := SimulatedYears(m, cfg)
 	if err != nil {
 		t.Fatal(err)
@@ -247,7 +229,7 @@ func TestHolidaysAcrossHeatingSeason(t *testing.T) {
 	rules := []calendar.HolidayRule{calendar.Nth(4, time.Thursday, time.November), calendar.Nth(3, time.Monday, time.January),
 		calendar.Fixed(time.January, 1), calendar.Easter(-47)}
 	listed := []calendar.Date{calendar.FromYMD(2019, time.December, 25)}
-	cfg.Holidays = HolidayDates(listed, rules, first, last)
+	cfg.Holidays = calendar.HolidaysIn(listed, rules, first, last)
 	for _, r := range rules {
 		for _, y := range []int{2024, 2025} {
 			if d, _ := r.In(y); !slices.Contains(cfg.Holidays, d) {

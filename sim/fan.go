@@ -11,14 +11,24 @@ import (
 	"wxstress/model"
 )
 
+// fanProbs are the probabilities of the daily quantiles a fan chart shows.
+var fanProbs = [...]float64{0.05, 0.25, 0.50, 0.75, 0.95}
+
+// FanQuantileProbs returns the probabilities of the daily quantiles a Fan
+// holds, in increasing order (a copy).
+func FanQuantileProbs() []float64 { return slices.Clone(fanProbs[:]) }
+
 // FanProbs are the daily quantiles a fan chart shows.
-var FanProbs = []float64{0.05, 0.25, 0.50, 0.75, 0.95}
+//
+// Deprecated: use FanQuantileProbs. Changing FanProbs changes nothing.
+var FanProbs = FanQuantileProbs()
 
 // Fan holds daily detail of the target year across paths: Q[k][d] is the
-// quantile FanProbs[k] of the temperature on Dates[d]. With a demand model
-// it also holds the demand's daily quantiles (DemandQ), its daily mean
-// (DemandMean) and the load-duration curve: LoadDuration[k][r] is quantile
-// FanProbs[k] across paths of the year's (r+1)-th highest daily demand.
+// quantile FanQuantileProbs()[k] of the temperature on Dates[d]. With a
+// demand model it also holds the demand's daily quantiles (DemandQ), its
+// daily mean (DemandMean) and the load-duration curve: LoadDuration[k][r]
+// is quantile FanQuantileProbs()[k] across paths of the year's (r+1)-th
+// highest daily demand.
 type Fan struct {
 	Paths        int // years behind the quantiles
 	Dates        []calendar.Date
@@ -90,13 +100,13 @@ func matrix(rows, cols int) [][]float64 {
 	return m
 }
 
-// quantilesByRow returns q[k][r], quantile FanProbs[k] of rows[r] (which it
+// quantilesByRow returns q[k][r], quantile fanProbs[k] of rows[r] (which it
 // sorts).
 func quantilesByRow(rows [][]float64) [][]float64 {
-	q := matrix(len(FanProbs), len(rows))
+	q := matrix(len(fanProbs), len(rows))
 	for r, row := range rows {
 		slices.Sort(row)
-		for k, p := range FanProbs {
+		for k, p := range fanProbs {
 			q[k][r] = stat.Quantile(p, stat.LinInterp, row, nil)
 		}
 	}

@@ -17,7 +17,7 @@ func TestFanMatchesStationaryQuantiles(t *testing.T) {
 	t.Parallel()
 	const level, phi, sigma, paths = 5.0, 0.6, 2.0, 4000
 	f, err := RunFan(context.Background(), flatModel(level, phi, sigma, model.FamilyNormal, 0),
-		Config{Seed: 1, Year: 2023, Bases: DefaultBases("C")}, paths)
+		Config{Seed: 1, Year: 2023, Bases: BasesFor(model.Celsius)}, paths)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -25,7 +25,7 @@ func TestFanMatchesStationaryQuantiles(t *testing.T) {
 		t.Fatalf("fan covers %d days from %s", len(f.Dates), f.Dates[0])
 	}
 	sd := sigma / math.Sqrt(1-phi*phi)
-	for k, p := range FanProbs {
+	for k, p := range FanQuantileProbs() {
 		want := level + distuv.UnitNormal.Quantile(p)*sd
 		mean := 0.0
 		for _, v := range f.Q[k] {

@@ -1,6 +1,10 @@
 package sim
 
-import "strings"
+import (
+	"strings"
+
+	"wxstress/model"
+)
 
 // Index is a per-path aggregate of a period: what a tail table has a row for.
 type Index int
@@ -51,15 +55,14 @@ var indexInfo = [...]Info{
 // Info returns the description of the index.
 func (x Index) Info() Info { return indexInfo[x] }
 
-// Unit returns the index's unit for temperatures in units ("C" or "F") and
-// demand in demandUnit (e.g. "GJ/day"; the energy of a period is then in
-// GJ).
-func (i Info) Unit(units, demandUnit string) string {
+// Unit returns the index's unit for temperatures in units and demand in
+// demandUnit (e.g. "GJ/day"; the energy of a period is then in GJ).
+func (i Info) Unit(units model.Units, demandUnit string) string {
 	switch i.unit {
 	case "dd":
-		return "°" + units + "·day"
+		return units.Symbol() + "·day"
 	case "deg":
-		return "°" + units
+		return units.Symbol()
 	case "demand":
 		return demandUnit
 	case "energy":

@@ -20,8 +20,9 @@ func (p Period) Days() int { return int(p.To-p.From) + 1 }
 
 var monthKeys = []string{"jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct", "nov", "dec"}
 
-// DefaultPeriods are the periods used when none is named.
-var DefaultPeriods = []string{"year", "heating", "cooling"}
+// DefaultPeriods returns the periods used when none is named (a new slice
+// each time).
+func DefaultPeriods() []string { return []string{"year", "heating", "cooling"} }
 
 // PeriodForms describes the accepted period names, for usage messages.
 const PeriodForms = "year; jan..dec; heating (1 Nov of Y−1 to 31 Mar of Y); cooling (1 May to 30 Sep); " +

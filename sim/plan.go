@@ -27,14 +27,24 @@ type Bases struct {
 	ColdBelow float64 // a day is cold when its mean is below this
 }
 
-// DefaultBases returns 18 °C / 65 °F for both degree-day bases and a cold
-// threshold of 0 °C / 32 °F: the usual bases of degree-day indices (common
-// practice; 65 °F is the US convention, 18 °C the European one).
+// BasesFor returns the usual bases of degree-day indices in units u, 18 °C or
+// 65 °F for both degree-day bases, and the freezing point (0 °C, 32 °F) as
+// the cold threshold: see model.Units.DegreeDayBase and ColdThreshold. It
+// panics if u is not valid.
+func BasesFor(u model.Units) Bases {
+	b := u.DegreeDayBase()
+	return Bases{HDD: b, CDD: b, ColdBelow: u.ColdThreshold()}
+}
+
+// DefaultBases returns BasesFor the units "F", or for "C" given anything
+// else.
+//
+// Deprecated: use BasesFor.
 func DefaultBases(units string) Bases {
-	if units == "F" {
-		return Bases{HDD: 65, CDD: 65, ColdBelow: 32}
+	if model.Units(units) == model.Fahrenheit {
+		return BasesFor(model.Fahrenheit)
 	}
-	return Bases{HDD: 18, CDD: 18, ColdBelow: 0}
+	return BasesFor(model.Celsius)
 }
 
 // segment is a run of accumulated days [lo, hi) that no period boundary
@@ -235,8 +245,11 @@ func periodStarting(ps []Period, d calendar.Date) string {
 }
 
 func (pl *plan) setShocks(s model.Shocks, months []int) error {
-	switch s.Family {
-	case model.FamilyBootstrap:
+	fam, ok := model.LookupFamily(s.Family)
+	if !ok {
+		return fmt.Errorf("sim: unknown shock family %q", s.Family)
+	}
+	if !fam.Parametric() {
 		offs := make([]int32, 12)
 		for m, z := range s.ByMonth {
 			offs[m] = int32(len(pl.pool))
@@ -248,15 +261,8 @@ func (pl *plan) setShocks(s model.Shocks, months []int) error {
 			pl.poolOff[i], pl.poolLen[i] = offs[m], uint64(len(s.ByMonth[m]))
 		}
 		return nil
-	case model.FamilyNormal:
-		pl.table = shocks.NewTable(shocks.Normal{})
-	case model.FamilyStudentT:
-		pl.table = shocks.NewTable(shocks.StudentT{Nu: s.DF})
-	case model.FamilySkewT:
-		pl.table = shocks.NewTable(shocks.SkewT{Nu: s.DF, Xi: s.Skew})
-	default:
-		return fmt.Errorf("sim: unknown shock family %q", s.Family)
 	}
+	pl.table = shocks.NewTable(fam.New(s))
 	// The table cuts the tails beyond 2⁻⁵⁴: negligible for ν ≥ 3, but for ν
 	// near 2 much of the variance lies out there. Rescale so the shocks
 	// simulated have unit variance whatever ν is.
@@ -277,7 +283,7 @@ func (pl *plan) setEvents(m *model.File, year int) error {
 	for i, e := range m.Scenario.Events {
 		w, err := ParsePeriod(e.Window, year)
 		if err != nil {
-			return fmt.Errorf("sim: scenario %s, event %d: %v", m.Scenario.Name, i+1, err)
+			return fmt.Errorf("sim: scenario %s, event %d: %w", m.Scenario.Name, i+1, err)
 		}
 		lo, hi := int(w.From-pl.first), int(w.To-pl.first)
 		if hi < 0 || lo >= pl.n {

@@ -22,14 +22,14 @@ type Config struct {
 	Year    int    // target year; 0 means the year after the data end
 	Start   string // StartClimate (default) or StartConditional
 	// Periods names the index periods (see ParsePeriod); nil means
-	// DefaultPeriods.
+	// DefaultPeriods().
 	Periods []string
 	Bases   Bases
 	// Demand, when set, adds daily demand D = Expected(T, weekday,
 	// holiday) + u, u an AR(1), and the demand indices of each period.
 	Demand *model.Demand
 	// Holidays are the days simulated as holidays (demand only); see
-	// HolidayDates and SimulatedYears.
+	// calendar.HolidaysIn and SimulatedYears.
 	Holidays []calendar.Date
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
@@ -82,7 +82,7 @@ func (c *Config) Validate(m *model.File) error {
 		return fmt.Errorf("sim: start %q: want %s or %s", c.Start, StartClimate, StartConditional)
 	}
 	if len(c.Periods) == 0 {
-		c.Periods = DefaultPeriods
+		c.Periods = DefaultPeriods()
 	}
 	if c.Demand != nil {
 		if err := c.Demand.CheckUnits(m.Data.Units); err != nil {
@@ -185,7 +185,7 @@ func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
 }
 
 // SimulatedYears returns the first and last calendar year of the days a run
-// of cfg on m simulates, the years whose holidays it needs (HolidayDates):
+// of cfg on m simulates, the years whose holidays it needs (calendar.HolidaysIn):
 // the last is the target year; the first is earlier when a period crosses
 // the year end (the heating season of Y starts in Y−1), by the burn-in of a
 // climatological start, or back to the day after the data end for a
@@ -466,4 +466,12 @@ func max3(a, b, c float64) float64 {
 		a = c
 	}
 	return a
+}
+
+// HolidayDates is calendar.HolidaysIn: the holidays of the years a run
+// simulates (SimulatedYears) from listed dates and rules.
+//
+// Deprecated: use calendar.HolidaysIn.
+func HolidayDates(dates []calendar.Date, rules []calendar.HolidayRule, fromYear, toYear int) []calendar.Date {
+	return calendar.HolidaysIn(dates, rules, fromYear, toYear)
 }

@@ -59,7 +59,7 @@ func seasonalModel(phi []float64) *model.File {
 func run(t *testing.T, m *model.File, cfg Config) *Result {
 	t.Helper()
 	if cfg.Bases == (Bases{}) {
-		cfg.Bases = DefaultBases("C")
+		cfg.Bases = BasesFor(model.Celsius)
 	}
 	res, err := Run(context.Background(), m, cfg)
 	if err != nil {
@@ -267,7 +267,7 @@ func TestRunIsCancellable(t *testing.T) {
 	t.Parallel()
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err := Run(ctx, flatModel(10, 0.7, 2, model.FamilyNormal, 0), Config{Paths: 100000, Bases: DefaultBases("C")})
+	_, err := Run(ctx, flatModel(10, 0.7, 2, model.FamilyNormal, 0), Config{Paths: 100000, Bases: BasesFor(model.Celsius)})
 	if err == nil {
 		t.Fatal("cancelled run returned no error")
 	}

@@ -20,7 +20,7 @@ func TestSlowPartLaw(t *testing.T) {
 	const phiS, sdF = 0.97, 1.5
 	m := flatModel(0, 0.1, 0.001, model.FamilyNormal, 0)
 	m.Slow = &model.Slow{Phi: phiS, SD: sdF}
-	pl, _, err := prepare(m, &Config{Paths: 1, Bases: DefaultBases("C")})
+	pl, _, err := prepare(m, &Config{Paths: 1, Bases: BasesFor(model.Celsius)})
 	if err != nil {
 		t.Fatal(err)
 	}

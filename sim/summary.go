@@ -8,6 +8,8 @@ import (
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/stat"
+
+	"wxstress/model"
 )
 
 // Row is the tail table of one index of one period.
@@ -63,8 +65,8 @@ func IndexKeys() []string {
 
 // Summarize computes the tail table of every aggregate, in the order of
 // r.Aggregates, sorting the columns in parallel on r.Config.Workers
-// goroutines; units is the model's temperature unit ("C" or "F").
-func (r *Result) Summarize(units string, thresholds []Threshold) []Row {
+// goroutines; units are the model's temperature units.
+func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 	rows := make([]Row, len(r.Aggregates))
 	var g errgroup.Group
 	g.SetLimit(max(r.Config.Workers, 1))
@@ -101,9 +103,6 @@ type Change struct {
 	ES95, RL20                  float64
 }
 
-// returnPeriod20 is the position of 20 in ReturnPeriods.
-const returnPeriod20 = 3
-
 // Compare returns the change of every row of scen against base; the results
 // must come from runs of the same configuration (same aggregates in the
 // same order).
@@ -127,9 +126,9 @@ func Compare(base, scen *Result, baseRows, scenRows []Row) []Change {
 		out[k] = Change{
 			Mean: st.Mean - bt.Mean, MeanSE: sd / math.Sqrt(n),
 			IndependentSE: math.Sqrt((bt.SD*bt.SD + st.SD*st.SD) / n),
-			P50:           st.Quantiles[4] - bt.Quantiles[4], P95: st.Quantiles[7] - bt.Quantiles[7],
-			P99: st.Quantiles[8] - bt.Quantiles[8], ES95: st.ES95 - bt.ES95,
-			RL20: st.ReturnLevels[returnPeriod20] - bt.ReturnLevels[returnPeriod20],
+			P50:           st.Quantile(0.50) - bt.Quantile(0.50), P95: st.Quantile(0.95) - bt.Quantile(0.95),
+			P99: st.Quantile(0.99) - bt.Quantile(0.99), ES95: st.ES95 - bt.ES95,
+			RL20: st.ReturnLevel(20) - bt.ReturnLevel(20),
 		}
 	}
 	return out

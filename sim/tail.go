@@ -1,17 +1,39 @@
 package sim
 
 import (
+	"fmt"
 	"math"
 	"slices"
 
 	"gonum.org/v1/gonum/stat"
 )
 
-// Probabilities of the quantile columns of a tail table.
-var Probs = []float64{0.01, 0.05, 0.10, 0.25, 0.50, 0.75, 0.90, 0.95, 0.99}
+// The probabilities of a tail table's quantiles, and the T of its 1-in-T
+// return levels (years).
+var (
+	tailProbs         = [...]float64{0.01, 0.05, 0.10, 0.25, 0.50, 0.75, 0.90, 0.95, 0.99}
+	tailReturnPeriods = [...]int{2, 5, 10, 20, 50, 100}
+)
+
+// TailQuantileProbs returns the probabilities at which a Tail holds
+// quantiles, in increasing order (a copy).
+func TailQuantileProbs() []float64 { return slices.Clone(tailProbs[:]) }
+
+// TailReturnPeriods returns the T, in years, of the 1-in-T return levels a
+// Tail holds, in increasing order (a copy).
+func TailReturnPeriods() []int { return slices.Clone(tailReturnPeriods[:]) }
+
+// Probs are the probabilities of the quantile columns of a tail table.
+//
+// Deprecated: use TailQuantileProbs, and Tail.Quantile to read a quantile.
+// Changing Probs changes nothing.
+var Probs = TailQuantileProbs()
 
 // ReturnPeriods are the T of the 1-in-T return levels, in years.
-var ReturnPeriods = []int{2, 5, 10, 20, 50, 100}
+//
+// Deprecated: use TailReturnPeriods, and Tail.ReturnLevel to read a level.
+// Changing ReturnPeriods changes nothing.
+var ReturnPeriods = TailReturnPeriods()
 
 // Tail summarises the distribution of one aggregate across paths.
 //
@@ -24,17 +46,40 @@ type Tail struct {
 	Mean      float64
 	SD        float64
 	MeanSE    float64   // Monte Carlo standard error of the mean, SD/√N
-	Quantiles []float64 // at Probs
+	Quantiles []float64 // at TailQuantileProbs; read them with Quantile
 	// VaR95 and VaR99 are the adverse 95 % and 99 % quantiles (P95 and P99,
 	// or P5 and P1 when low is adverse); ES95 and ES99 are the means of the
 	// worst ⌈0.05·N⌉ and ⌈0.01·N⌉ paths (expected shortfall).
 	VaR95, VaR99 float64
 	ES95, ES99   float64
 	// ReturnLevels[i] is the level reached or passed on the adverse side once
-	// in ReturnPeriods[i] years on average: the quantile 1 − 1/T (1/T when
-	// low is adverse) of the per-year value.
+	// in TailReturnPeriods()[i] years on average: the quantile 1 − 1/T (1/T
+	// when low is adverse) of the per-year value. Read them with ReturnLevel.
 	ReturnLevels []float64
 	Exceedances  []Exceedance
+}
+
+// Quantile returns the quantile at probability p, one of
+// TailQuantileProbs (compared exactly with the listed values). It panics for
+// any other p, or if t holds no quantiles: asking a table for a column it
+// does not have is a programming error, and a NaN would travel silently
+// into a report.
+func (t Tail) Quantile(p float64) float64 {
+	i := slices.Index(tailProbs[:], p)
+	if i < 0 || i >= len(t.Quantiles) {
+		panic(fmt.Sprintf("sim: a tail table has no quantile at %v (it has %v)", p, tailProbs))
+	}
+	return t.Quantiles[i]
+}
+
+// ReturnLevel returns the 1-in-T-year return level, T one of
+// TailReturnPeriods. Like Quantile, it panics for any other T.
+func (t Tail) ReturnLevel(T int) float64 {
+	i := slices.Index(tailReturnPeriods[:], T)
+	if i < 0 || i >= len(t.ReturnLevels) {
+		panic(fmt.Sprintf("sim: a tail table has no %d-year return level (it has %v)", T, tailReturnPeriods))
+	}
+	return t.ReturnLevels[i]
 }
 
 // Exceedance is the probability that a year is worse than a threshold: above
@@ -60,7 +105,7 @@ func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail 
 	}
 	t.MeanSE = t.SD / math.Sqrt(float64(n))
 	q := func(p float64) float64 { return stat.Quantile(p, stat.LinInterp, x, nil) }
-	for _, p := range Probs {
+	for _, p := range tailProbs {
 		t.Quantiles = append(t.Quantiles, q(p))
 	}
 	adverse := func(p float64) float64 { // quantile p on the adverse side
@@ -71,7 +116,7 @@ func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail 
 	}
 	t.VaR95, t.VaR99 = adverse(0.95), adverse(0.99)
 	t.ES95, t.ES99 = shortfall(x, 0.05, highIsAdverse), shortfall(x, 0.01, highIsAdverse)
-	for _, T := range ReturnPeriods {
+	for _, T := range tailReturnPeriods {
 		t.ReturnLevels = append(t.ReturnLevels, adverse(1-1/float64(T)))
 	}
 	for _, th := range thresholds {

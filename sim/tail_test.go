@@ -2,6 +2,7 @@ package sim
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"testing"
@@ -44,12 +45,18 @@ func TestSummarizeMatchesR(t *testing.T) {
 	}
 	hi := Summarize(g.X, true, []float64{600})
 	lo := Summarize(g.X, false, []float64{100})
-	for i := range Probs {
-		check("quantile", hi.Quantiles[i], g.Quantiles[i])
+	// The golden arrays are in the order of the probabilities and periods
+	// tail_golden.R lists, which are TailQuantileProbs and TailReturnPeriods.
+	probs, periods := TailQuantileProbs(), TailReturnPeriods()
+	if len(g.Quantiles) != len(probs) || len(g.ReturnHigh) != len(periods) || len(g.ReturnLow) != len(periods) {
+		t.Fatalf("golden file has %d quantiles and %d/%d return levels", len(g.Quantiles), len(g.ReturnHigh), len(g.ReturnLow))
 	}
-	for i := range ReturnPeriods {
-		check("return level (high adverse)", hi.ReturnLevels[i], g.ReturnHigh[i])
-		check("return level (low adverse)", lo.ReturnLevels[i], g.ReturnLow[i])
+	for i, p := range probs {
+		check(fmt.Sprintf("quantile %v", p), hi.Quantile(p), g.Quantiles[i])
+	}
+	for i, T := range periods {
+		check(fmt.Sprintf("%d-year return level (high adverse)", T), hi.ReturnLevel(T), g.ReturnHigh[i])
+		check(fmt.Sprintf("%d-year return level (low adverse)", T), lo.ReturnLevel(T), g.ReturnLow[i])
 	}
 	check("ES95 high", hi.ES95, g.ES95High)
 	check("ES99 high", hi.ES99, g.ES99High)
@@ -59,8 +66,8 @@ func TestSummarizeMatchesR(t *testing.T) {
 	check("sd", hi.SD, g.SD)
 	check("P(x > 600)", hi.Exceedances[0].Prob, g.Exceed600)
 	check("P(x < 100)", lo.Exceedances[0].Prob, g.Below100)
-	check("VaR95 = P95", hi.VaR95, g.Quantiles[7])
-	check("VaR95 low = P5", lo.VaR95, g.Quantiles[1])
+	check("VaR95 = P95", hi.VaR95, g.Quantiles[7])    // probs[7] = 0.95
+	check("VaR95 low = P5", lo.VaR95, g.Quantiles[1]) // probs[1] = 0.05
 }
 
 func TestSummarizeDoesNotReorderInput(t *testing.T) {
@@ -81,5 +88,29 @@ func TestExceedanceCountsTiesOnTheSafeSide(t *testing.T) {
 	}
 	if p := Summarize(x, false, []float64{2}).Exceedances[0].Prob; p != 0.2 {
 		t.Errorf("P(x < 2) = %v, want 0.2", p)
+	}
+}
+
+// Tail.Quantile and Tail.ReturnLevel refuse a column the table does not have.
+func TestTailPanicsOnMissingColumn(t *testing.T) {
+	t.Parallel()
+	tail := Summarize([]float64{1, 2, 3, 4}, true, nil)
+	for name, f := range map[string]func(){
+		"Quantile(0.3)":     func() { tail.Quantile(0.3) },
+		"ReturnLevel(25)":   func() { tail.ReturnLevel(25) },
+		"zero Tail":         func() { Tail{}.Quantile(0.5) },
+		"zero Tail, levels": func() { Tail{}.ReturnLevel(20) },
+	} {
+		func() {
+			defer func() {
+				if recover() == nil {
+					t.Errorf("%s did not panic", name)
+				}
+			}()
+			f()
+		}()
+	}
+	if tail.Quantile(0.5) != tail.Quantiles[4] || tail.ReturnLevel(100) != tail.ReturnLevels[5] {
+		t.Error("Quantile or ReturnLevel reads the wrong column")
 	}
 }

@@ -203,7 +203,10 @@ func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.R
 	}
 	res, err := optimize.Minimize(prob, x0, set, &optimize.BFGS{})
 	if res == nil || math.IsInf(res.F, 0) || math.IsNaN(res.F) {
-		return nil, fmt.Errorf("%w: %v", ErrFit, err)
+		if err == nil {
+			return nil, fmt.Errorf("%w: the likelihood is not finite at the end of the search", ErrFit)
+		}
+		return nil, fmt.Errorf("%w: %w", ErrFit, err)
 	}
 	return res, nil
 }

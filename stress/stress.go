@@ -57,13 +57,13 @@ func Simulate(ctx context.Context, m *model.File, cfg sim.Config, scens []*scena
 	if err != nil {
 		return nil, err
 	}
-	set := &Set{Config: base.Config, Base: base, Rows: base.Summarize(m.Data.Units, thresholds)}
+	set := &Set{Config: base.Config, Base: base, Rows: base.Summarize(model.Units(m.Data.Units), thresholds)}
 	for i, sm := range models {
 		res, err := sim.Run(ctx, sm, cfg)
 		if err != nil {
 			return nil, err
 		}
-		rows := res.Summarize(m.Data.Units, thresholds)
+		rows := res.Summarize(model.Units(m.Data.Units), thresholds)
 		set.Scenarios = append(set.Scenarios, ScenarioRun{Scenario: scens[i], Result: res, Rows: rows,
 			Changes: sim.Compare(base, res, set.Rows, rows), What: scens[i].DescribeFor(m, cfg.Year)})
 	}

@@ -8,6 +8,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/demo"
+	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
 )
@@ -27,7 +28,7 @@ func TestSimulateKeepsCommonRandomNumbers(t *testing.T) {
 	}
 	m := fit.Model
 	warm, _ := scenarios.Lookup("warm-1c")
-	cfg := sim.Config{Paths: 300, Seed: 4, Bases: sim.DefaultBases("C")}
+	cfg := sim.Config{Paths: 300, Seed: 4, Bases: sim.BasesFor(model.Celsius)}
 	set, err := Simulate(context.Background(), m, cfg, []*scenarios.Scenario{warm}, nil, 50)
 	if err != nil {
 		t.Fatal(err)

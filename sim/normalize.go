@@ -3,7 +3,6 @@ package sim
 import (
 	"context"
 	"fmt"
-	"slices"
 
 	"wxstress/calendar"
 	"wxstress/model"
@@ -71,27 +70,4 @@ func WeatherNormalize(ctx context.Context, m *model.File, d *model.Demand, cfg C
 		lo = hi
 	}
 	return out, nil
-}
-
-// HolidayDates returns the simulated holidays of the calendar years
-// fromYear..toYear (see SimulatedYears): the month and day of each listed
-// date repeated in every one of those years, as fixed-date holidays (a 29
-// February only in leap years), and each rule's day in every one of them;
-// sorted, without repeats. Movable holidays belong in rules: a listed date
-// keeps its month and day.
-func HolidayDates(dates []calendar.Date, rules []calendar.HolidayRule, fromYear, toYear int) []calendar.Date {
-	var out []calendar.Date
-	for _, d := range dates {
-		_, m, day := d.YMD()
-		for y := fromYear; y <= toYear; y++ {
-			if h := calendar.FromYMD(y, m, day); h.Month() == m {
-				out = append(out, h)
-			}
-		}
-	}
-	for _, r := range rules {
-		out = append(out, r.Dates(fromYear, toYear)...)
-	}
-	slices.Sort(out)
-	return slices.Compact(out)
 }
