@@ -11,7 +11,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/report"
 	"wxstress/stress"
 )
 
@@ -127,9 +127,9 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if o.report == "" {
 		return nil
 	}
-	in := &render.ReportInput{
+	in := &report.ReportInput{
 		Title: "Temperature model of " + filepath.Base(o.temps), Created: time.Now(), RunTime: time.Since(start),
-		Inputs: []render.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
+		Inputs: []report.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
 		Model:  res.Model, Series: seriesView(res),
 	}
 	if err := writeReport(o.report, in); err != nil {

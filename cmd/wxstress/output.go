@@ -18,8 +18,9 @@ import (
 	"golang.org/x/term"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
 	"wxstress/internal/atomicfile"
+	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/model"
 	"wxstress/sim"
 )
@@ -157,13 +158,13 @@ func fileSHA(path string) string {
 }
 
 // writeReport renders the HTML report into path, atomically.
-func writeReport(path string, in *render.ReportInput) error {
-	return atomicfile.Write(path, func(w io.Writer) error { return render.HTMLReport(w, in) })
+func writeReport(path string, in *report.ReportInput) error {
+	return atomicfile.Write(path, func(w io.Writer) error { return report.HTMLReport(w, in) })
 }
 
 // seriesView is the observed record of a fit, for the report.
-func seriesView(res *calibrate.Result) *render.SeriesView {
-	v := &render.SeriesView{Temps: res.Series.Temps, Fitted: res.Fitted, Z: res.Z}
+func seriesView(res *calibrate.Result) *report.SeriesView {
+	v := &report.SeriesView{Temps: res.Series.Temps, Fitted: res.Fitted, Z: res.Z}
 	for i := range res.Series.Temps {
 		v.Dates = append(v.Dates, res.Series.Date(i))
 	}

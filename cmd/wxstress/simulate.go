@@ -11,7 +11,8 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -194,17 +195,17 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		}
 	}
 	if o.report != "" {
-		in := &render.ReportInput{
+		in := &report.ReportInput{
 			Title: "Synthetic years of " + filepath.Base(o.modelPath), Created: time.Now(), RunTime: time.Since(start),
-			Inputs: []render.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
+			Inputs: []report.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
 			Model:  m, Sim: rep, Base: res, Scenarios: runs.Results(), Fan: runs.Fan,
 		}
 		if o.demand != "" {
-			in.Inputs = append(in.Inputs, render.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
+			in.Inputs = append(in.Inputs, report.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
 		}
 		for _, f := range o.scenarios {
 			if sum := fileSHA(f); sum != "" {
-				in.Inputs = append(in.Inputs, render.InputFile{Role: "scenario", Name: f, SHA256: sum})
+				in.Inputs = append(in.Inputs, report.InputFile{Role: "scenario", Name: f, SHA256: sum})
 			}
 		}
 		if err := writeReport(o.report, in); err != nil {

@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"fmt"
@@ -8,6 +8,7 @@ import (
 	"strings"
 	"time"
 
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/sim"
 )
@@ -40,41 +41,41 @@ func NewDemandView(retailer string, m *model.Demand, temps, loads []float64) *De
 		}
 	}
 	u, deg := m.Unit, "°"+m.TemperatureUnits
-	dec := demandLoadDecimals(m.Fit.MeanLoad)
+	dec := render.LoadDecimals(m.Fit.MeanLoad)
 	d := m.Data
 	fact := func(k, format string, a ...any) { v.Facts = append(v.Facts, [2]string{k, fmt.Sprintf(format, a...)}) }
 	fact("data", "%s, %s to %s, %d days fitted (%d holidays)", d.DemandFile, d.FirstDate, d.LastDate, d.Days, d.Holidays)
-	if list := holidayListText(d); list != "" {
+	if list := render.HolidayListText(d); list != "" {
 		fact("holiday list", "%s: %s", d.HolidaysFile, list)
 	}
 	fact("change-point form", "%s: %s", m.Form, m.FormRule)
-	fact("base load β0", "%s %s (a Monday that is not a holiday, between the balance points)", num(m.Intercept, dec), u)
+	fact("base load β0", "%s %s (a Monday that is not a holiday, between the balance points)", render.Num(m.Intercept, dec), u)
 	if m.Heating.Present {
-		fact("heating", "%s %s per %s below %.1f %s (s.e. %s)", num(m.Heating.Slope, dec+1), u, deg,
-			m.Heating.BalancePoint, deg, num(m.Heating.SlopeSE, dec+1))
+		fact("heating", "%s %s per %s below %.1f %s (s.e. %s)", render.Num(m.Heating.Slope, dec+1), u, deg,
+			m.Heating.BalancePoint, deg, render.Num(m.Heating.SlopeSE, dec+1))
 	}
 	if m.Cooling.Present {
-		fact("cooling", "%s %s per %s above %.1f %s (s.e. %s)", num(m.Cooling.Slope, dec+1), u, deg,
-			m.Cooling.BalancePoint, deg, num(m.Cooling.SlopeSE, dec+1))
+		fact("cooling", "%s %s per %s above %.1f %s (s.e. %s)", render.Num(m.Cooling.Slope, dec+1), u, deg,
+			m.Cooling.BalancePoint, deg, render.Num(m.Cooling.SlopeSE, dec+1))
 	}
 	var wd []string
 	for i := 1; i < 7; i++ {
-		wd = append(wd, fmt.Sprintf("%s %+.*f", demandWeekdays[i][:3], dec, m.Weekday[i]))
+		wd = append(wd, fmt.Sprintf("%s %+.*f", render.Weekdays[i][:3], dec, m.Weekday[i]))
 	}
 	fact("weekday terms (vs Monday)", "%s", strings.Join(wd, ", "))
 	fact("holiday term", "%+.*f %s", dec, m.Holiday, u)
 	f := m.Fit
-	fact("fit", "R² = %.4f, RMSE = %s %s, CV(RMSE) = %.2f %%, NMBE = %s %%, n = %d, p = %d", f.R2, num(f.RMSE, dec), u,
-		f.CVRMSE, demandPct(f.NMBE), f.N, f.Parameters)
+	fact("fit", "R² = %.4f, RMSE = %s %s, CV(RMSE) = %.2f %%, NMBE = %s %%, n = %d, p = %d", f.R2, render.Num(f.RMSE, dec), u,
+		f.CVRMSE, render.DemandPercent(f.NMBE), f.N, f.Parameters)
 	for _, c := range f.Checks {
 		verdict := "meets"
 		if !c.Pass {
 			verdict = "fails"
 		}
 		fact("ASHRAE Guideline 14, "+c.Data, "CV(RMSE) %.2f %%, NMBE %s %%: %s the %s level (CV(RMSE) ≤ %.0f %%, |NMBE| ≤ %.0f %%)",
-			c.CVRMSE, demandPct(c.NMBE), verdict, c.Level, c.CVRMSEMax, c.NMBEMax)
+			c.CVRMSE, render.DemandPercent(c.NMBE), verdict, c.Level, c.CVRMSEMax, c.NMBEMax)
 	}
-	fact("residual noise", "AR(1): φ = %.3f (s.e. %.3f), σ = %s %s", m.Noise.Phi, m.Noise.PhiSE, num(m.Noise.Sigma, dec), u)
+	fact("residual noise", "AR(1): φ = %.3f (s.e. %.3f), σ = %s %s", m.Noise.Phi, m.Noise.PhiSE, render.Num(m.Noise.Sigma, dec), u)
 	return v
 }
 
@@ -157,7 +158,7 @@ func (r *report) writePlanning() error {
 			peaks = append(peaks, row)
 		}
 	}
-	var p *Planning
+	var p *render.Planning
 	if in.Sim.Planning != nil {
 		p = in.Sim.Planning
 	}
@@ -221,7 +222,7 @@ func (r *report) writePlanning() error {
 // loadDurationTable writes the load-duration curve at LoadDurationRanks,
 // cells identified as in SimCSV (index "load-duration", statistic
 // "rankN:pQQ").
-func (r *report) loadDurationTable(p *Planning, unit string) {
+func (r *report) loadDurationTable(p *render.Planning, unit string) {
 	r.printf("<div class=\"wide\"><table class=\"load-duration\">\n<caption>Load-duration curve: the n-th highest day "+
 		"of the year (%s), across %d synthetic years</caption>\n<thead><tr><th scope=\"col\">n-th highest day</th>",
 		esc(unit), p.LoadDurationPaths)
@@ -230,7 +231,7 @@ func (r *report) loadDurationTable(p *Planning, unit string) {
 	}
 	r.raw("</tr></thead>\n<tbody>\n")
 	row := sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}}
-	for _, rank := range LoadDurationRanks {
+	for _, rank := range render.LoadDurationRanks {
 		if rank > len(p.LoadDuration[0]) {
 			break
 		}
@@ -251,7 +252,7 @@ func (r *report) writeNormals() {
 	if p == nil || len(p.Normals) == 0 {
 		return
 	}
-	u := energyUnit(p.Unit)
+	u := render.EnergyUnit(p.Unit)
 	r.raw("<h3 id=\"history\">Weather-normalized demand of the historical years</h3>\n<p>Each year's observed demand " +
 		"with the weather's effect taken out: weather-normalized = actual − model at the actual weather + model at " +
 		"normal weather (the mean over climatological simulations of that year, with the trend of that year and the " +

@@ -1,9 +1,10 @@
-package render
+package report
 
 import (
 	"time"
 
 	"wxstress/calendar"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/sim"
 )
@@ -22,10 +23,10 @@ type ReportInput struct {
 	// model file alone.
 	Series *SeriesView
 
-	Sim       *SimReport    // tail tables of the baseline and scenarios
-	Base      *sim.Result   // per-path values of the baseline
-	Scenarios []*sim.Result // per-path values of each scenario, in Sim.Scenarios order
-	Fan       *sim.Fan      // daily quantiles over the target year
+	Sim       *render.SimReport // tail tables of the baseline and scenarios
+	Base      *sim.Result       // per-path values of the baseline
+	Scenarios []*sim.Result     // per-path values of each scenario, in Sim.Scenarios order
+	Fan       *sim.Fan          // daily quantiles over the target year
 
 	Demand *DemandView
 }

@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"bytes"
@@ -25,6 +25,7 @@ import (
 	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/demo"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -139,14 +140,14 @@ func buildInput(fx fixture) (*ReportInput, error) {
 	if err != nil {
 		return nil, err
 	}
-	rep := NewSimReport(set)
+	rep := render.NewSimReport(set)
 	in := &ReportInput{Model: m, Sim: rep, Base: set.Base, Scenarios: set.Results(), Fan: set.Fan}
 	c := in.Base.Config
-	rep.Manifest = Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
+	rep.Manifest = render.Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
 		ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
 		Start: c.Start, Periods: c.Periods, SimulatedDays: in.Base.SimulatedDays, Units: m.Data.Units,
 		HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
-		Scenarios: fx.scenarios, Quantiles: QuantileConvention, Caution: Caution}
+		Scenarios: fx.scenarios, Quantiles: render.QuantileConvention, Caution: render.Caution}
 	if dres != nil {
 		d, days := dres.Model, dres.Days
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256, rep.Manifest.Capacity = "demand.json", strings.Repeat("cd", 32), cfg.Capacity
@@ -403,7 +404,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 	in := mustInput(t, smallInput)
 	doc := parse(t, renderReport(t, in))
 	var js bytes.Buffer
-	if err := SimJSON(&js, in.Sim); err != nil {
+	if err := render.SimJSON(&js, in.Sim); err != nil {
 		t.Fatal(err)
 	}
 	var out struct {
@@ -510,7 +511,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 	if p == nil || len(p.LoadDuration) == 0 || len(p.Normals) == 0 {
 		t.Fatal("the fixture has no planning tables to check")
 	}
-	for _, rank := range LoadDurationRanks {
+	for _, rank := range render.LoadDurationRanks {
 		if rank <= len(p.LoadDuration[0]) {
 			need("baseline", sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}},
 				fmt.Sprintf("rank%d:p05", rank), fmt.Sprintf("rank%d:p50", rank), fmt.Sprintf("rank%d:p95", rank))
@@ -555,12 +556,12 @@ func goldenInput() *ReportInput {
 		Inputs: []InputFile{{Role: "temperatures", Name: "kestrel_bay_daily.csv", SHA256: strings.Repeat("0f", 32)},
 			{Role: "scenario", Name: "cold_spell.toml", SHA256: strings.Repeat("c4", 32)}},
 		Model: m,
-		Sim: &SimReport{Manifest: Manifest{Tool: "wxstress", ToolVersion: "1.2.3", ModelFile: "model.json",
+		Sim: &render.SimReport{Manifest: render.Manifest{Tool: "wxstress", ToolVersion: "1.2.3", ModelFile: "model.json",
 			ModelSHA256: strings.Repeat("9e", 32), DataSHA256: strings.Repeat("0f", 32), Seed: 7, Paths: 10000,
 			Year: 2026, Start: "climate", Periods: []string{"year", "heating", "cooling"}, SimulatedDays: 457,
 			Units: "C", HDDBase: 18, CDDBase: 18, ColdBelow: 0, Shocks: "skew-t",
 			Scenarios: []string{"warm-1c", "cold_spell.toml"}, DemandModel: "demand.json",
-			DemandSHA256: strings.Repeat("d1", 32), Capacity: 120000, Quantiles: QuantileConvention, Caution: Caution}},
+			DemandSHA256: strings.Repeat("d1", 32), Capacity: 120000, Quantiles: render.QuantileConvention, Caution: render.Caution}},
 	}
 }
 
@@ -593,7 +594,7 @@ func TestManifestGolden(t *testing.T) {
 	}
 	want, err := os.ReadFile(path)
 	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/wxstress/render -run TestManifestGolden -update)", err)
+		t.Fatalf("%v (run go test ./internal/report -run TestManifestGolden -update)", err)
 	}
 	if got != string(want) {
 		t.Errorf("manifest section differs from %s (regenerate with -update if the change is meant):\n%s", path,
@@ -626,7 +627,7 @@ func TestManifestShowsTheRun(t *testing.T) {
 	txt := text(doc)
 	for _, want := range []string{"wxstress 1.2.3", "2026-12-01 09:30:00 UTC", "2.345s", in.Sim.Manifest.ModelSHA256,
 		in.Inputs[1].SHA256, "cold_spell.toml", "10000", "2026", "year, heating, cooling", "HDD 18 °C",
-		"warm-1c, cold_spell.toml", QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
+		"warm-1c, cold_spell.toml", render.QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
 		in.Sim.Manifest.DemandSHA256, "120000"} {
 		if !strings.Contains(txt, want) {
 			t.Errorf("manifest lacks %q", want)
@@ -649,7 +650,7 @@ func TestCautionsAppearInText(t *testing.T) {
 			}
 		})
 		txt := normalize(text(body))
-		caution := normalize(Caution)
+		caution := normalize(render.Caution)
 		if c := strings.Count(txt, caution); c < 2 {
 			t.Errorf("%s: the caution appears %d times, want it at the top and in the manifest", name, c)
 		}
@@ -862,7 +863,7 @@ func TestChromiumRendersReport(t *testing.T) {
 		t.Errorf("screenshot has %d colours, want at least %d: the page did not render", len(colours), minColours)
 	}
 	if *update {
-		if err := os.WriteFile(filepath.Join("..", "..", "..", "docs", "report.png"), b, 0o644); err != nil {
+		if err := os.WriteFile(filepath.Join("..", "..", "docs", "report.png"), b, 0o644); err != nil {
 			t.Fatal(err)
 		}
 	}

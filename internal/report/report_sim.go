@@ -1,10 +1,11 @@
-package render
+package report
 
 import (
 	"fmt"
 	"strconv"
 	"strings"
 
+	"wxstress/internal/render"
 	"wxstress/sim"
 )
 
@@ -25,7 +26,7 @@ const (
 // fixed formats a table number with d decimals, "—" for NaN, and without
 // the sign of a value that rounds to zero ("0.0", not "-0.0").
 func fixed(v float64, d int) string {
-	s := num(v, d)
+	s := render.Num(v, d)
 	if strings.HasPrefix(s, "-") && strings.Trim(s, "-0.") == "" {
 		return s[1:]
 	}
@@ -120,14 +121,14 @@ func (r *report) tailTable(scen string, rows []sim.Row, caption string) {
 		r.printf("<th scope=\"col\" class=\"n\">%s<span class=\"u\">%s</span></th>", esc(row.Name), esc(row.Unit))
 	}
 	r.raw("</tr></thead>\n<tbody>\n")
-	for _, s := range statistics() {
+	for _, s := range render.Statistics() {
 		sep := ""
-		if s.key == "p01" || s.key == "var95" || s.key == "rl2" {
+		if s.Key == "p01" || s.Key == "var95" || s.Key == "rl2" {
 			sep = " class=\"sep\""
 		}
 		r.printf("<tr%s><th scope=\"row\">%s</th>", sep, esc(statLabel(s)))
 		for _, row := range rows {
-			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs(scen, row, s.key), fixed(s.value(row.Tail), valueDecimals))
+			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs(scen, row, s.Key), fixed(s.Value(row.Tail), valueDecimals))
 		}
 		r.raw("</tr>\n")
 	}
@@ -137,15 +138,15 @@ func (r *report) tailTable(scen string, rows []sim.Row, caption string) {
 	}
 	r.raw("</tr>\n<tr><th scope=\"row\">adverse side</th>")
 	for _, row := range rows {
-		r.printf("<td class=\"n\">%s</td>", adverseSide(row))
+		r.printf("<td class=\"n\">%s</td>", render.AdverseSide(row))
 	}
 	r.raw("</tr>\n</tbody></table></div>\n")
 	r.exceedTable(scen, rows)
 }
 
 // statLabel explains the risk statistics in their row labels.
-func statLabel(s statistic) string {
-	switch s.key {
+func statLabel(s render.Statistic) string {
+	switch s.Key {
 	case "var95":
 		return "VaR 95% (adverse 95% quantile)"
 	case "var99":
@@ -155,7 +156,7 @@ func statLabel(s statistic) string {
 	case "es99":
 		return "ES 99% (mean of worst 1% of years)"
 	}
-	return s.label
+	return s.Label
 }
 
 // exceedTable writes the probabilities of user thresholds, if any.
@@ -213,7 +214,7 @@ func (r *report) indexFigures(rows []sim.Row) ([]figure, []string, error) {
 			continue
 		case degenerate(v):
 			notes = append(notes, fmt.Sprintf("%s, %s: every synthetic year gives %s %s, nothing to plot.",
-				row.Name, row.Period, num(v[0], valueDecimals), row.Unit))
+				row.Name, row.Period, render.Num(v[0], valueDecimals), row.Unit))
 			continue
 		}
 		id := "fig-" + row.Period + "-" + row.Info.Key
@@ -370,7 +371,7 @@ func (r *report) compareTable(group []sim.Row) {
 	for _, base := range group {
 		k := rowPosition(s.Rows, base)
 		r.printf("<tr class=\"group sep\"><th scope=\"rowgroup\" colspan=\"8\">%s (%s), adverse side %s</th></tr>\n",
-			esc(base.Name), esc(base.Unit), adverseSide(base))
+			esc(base.Name), esc(base.Unit), render.AdverseSide(base))
 		r.raw("<tr><th scope=\"row\">baseline</th>")
 		cells("baseline", base)
 		r.raw("<td class=\"n\"></td></tr>\n")

@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"bytes"
@@ -20,6 +20,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"wxstress/calendar"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/shocks"
 	"wxstress/sim"
@@ -763,7 +764,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 			return figure{}, err
 		}
 		p.Add(l)
-		key = append(key, keyItem{fmt.Sprintf("%s = %s", mk.label, num(mk.value, 1)), mk.color, mk.style})
+		key = append(key, keyItem{fmt.Sprintf("%s = %s", mk.label, render.Num(mk.value, 1)), mk.color, mk.style})
 	}
 	p.Y.Min = 0
 	below, above := 0, 0
@@ -777,7 +778,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 	caption := ""
 	if below+above > 0 {
 		caption = fmt.Sprintf("Beyond the axis: %d years below %s and %d above %s (see the exceedance curve).",
-			below, num(lo, 1), above, num(hi, 1))
+			below, render.Num(lo, 1), above, render.Num(hi, 1))
 	}
 	svg, err := toSVG(p, smallW, smallH, fmt.Sprintf("Histogram of %s, %s", r.Name, r.Period))
 	return figure{ID: id, SVG: svg, Key: key, Caption: caption}, err

@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"bytes"
@@ -10,6 +10,7 @@ import (
 	"strings"
 	"time"
 
+	"wxstress/internal/render"
 	"wxstress/model"
 )
 
@@ -117,7 +118,7 @@ func (r *report) build() error {
 		esc(title), reportCSS)
 	r.printf("<header>\n<h1>%s</h1>\n", esc(title))
 	r.printf("<p class=\"sub\">%s</p>\n", esc(r.subtitle()))
-	r.printf("<div class=\"caution\" role=\"note\"><strong>Caution.</strong> %s</div>\n", esc(Caution))
+	r.printf("<div class=\"caution\" role=\"note\"><strong>Caution.</strong> %s</div>\n", esc(render.Caution))
 	r.writeSummary()
 	secs := r.sections()
 	r.raw("<nav class=\"toc\" aria-label=\"Contents\"><strong>Contents</strong>\n<ol>\n")
@@ -138,7 +139,7 @@ func (r *report) build() error {
 		}
 		r.raw("</section>\n")
 	}
-	r.printf("\n<footer><p>%s</p></footer>\n</main>\n</body>\n</html>\n", esc(Caution))
+	r.printf("\n<footer><p>%s</p></footer>\n</main>\n</body>\n</html>\n", esc(render.Caution))
 	return nil
 }
 
@@ -216,11 +217,11 @@ func modelOneLine(m *model.File) string {
 	}
 	slow := "no slow part"
 	if sl := m.Slow; sl != nil {
-		slow = fmt.Sprintf("slow part φ_slow %.4f (e-folding %.0f days, sd %s %s)", sl.Phi, sl.EFoldingDays, num(sl.SD, 2), u)
+		slow = fmt.Sprintf("slow part φ_slow %.4f (e-folding %.0f days, sd %s %s)", sl.Phi, sl.EFoldingDays, render.Num(sl.SD, 2), u)
 	}
 	return fmt.Sprintf("%s, %d seasonal harmonic(s), fast AR(%d), %s, monthly σ %s–%s %s, %s shocks", trend,
-		len(m.Seasonal.Harmonics), len(m.AR.Phi), slow, num(minOf(m.Volatility.Monthly[:]), 2),
-		num(maxOf(m.Volatility.Monthly[:]), 2), u, familyName(m.Shocks.Family))
+		len(m.Seasonal.Harmonics), len(m.AR.Phi), slow, render.Num(minOf(m.Volatility.Monthly[:]), 2),
+		render.Num(maxOf(m.Volatility.Monthly[:]), 2), u, familyName(m.Shocks.Family))
 }
 
 func minOf(v []float64) float64 {
@@ -410,12 +411,12 @@ func paramRows(m *model.File) [][2]string {
 	}
 	for _, h := range m.Seasonal.Harmonics {
 		rows = append(rows, [2]string{fmt.Sprintf("harmonic %d", h.K), fmt.Sprintf("amplitude %.3f %s, phase %.4f rad, first peak day %.1f (%s)",
-			h.Amplitude, u, h.Phase, h.PeakDayOfYear, dayName(h.PeakDayOfYear))})
+			h.Amplitude, u, h.Phase, h.PeakDayOfYear, render.DayName(h.PeakDayOfYear))})
 	}
 	rows = append(rows,
 		[2]string{"seasonal extremes", fmt.Sprintf("warmest day %.1f (%s), coldest day %.1f (%s); R² of S = %.4f",
-			m.Seasonal.PeakDayOfYear, dayName(m.Seasonal.PeakDayOfYear), m.Seasonal.TroughDayOfYear,
-			dayName(m.Seasonal.TroughDayOfYear), m.Seasonal.R2)})
+			m.Seasonal.PeakDayOfYear, render.DayName(m.Seasonal.PeakDayOfYear), m.Seasonal.TroughDayOfYear,
+			render.DayName(m.Seasonal.TroughDayOfYear), m.Seasonal.R2)})
 	var phi []string
 	for i, v := range m.AR.Phi {
 		se := ""
@@ -434,15 +435,15 @@ func paramRows(m *model.File) [][2]string {
 	}
 	if c := m.Diagnostics; c != nil && c.SlowChoice != nil {
 		rows = append(rows, [2]string{"slow part: choice", fmt.Sprintf("%s (likelihood ratio %.2f, p-value %s against ½χ²₁ + ½χ²₂; "+
-			"BIC %s with, %s without)", c.SlowChoice.Rule, c.SlowChoice.LR, pval(c.SlowChoice.P),
-			num(c.SlowChoice.BICWith, 1), num(c.SlowChoice.BICWithout, 1))})
+			"BIC %s with, %s without)", c.SlowChoice.Rule, c.SlowChoice.LR, render.PValue(c.SlowChoice.P),
+			render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1))})
 	}
 	var sig []string
 	for k, v := range m.Volatility.Monthly {
 		sig = append(sig, fmt.Sprintf("%s %.3f", time.Month(k + 1).String()[:3], v))
 	}
 	rows = append(rows, [2]string{"σ by month (" + u + ")", strings.Join(sig, ", ")},
-		[2]string{"shocks ε", shockText(m.Shocks)})
+		[2]string{"shocks ε", render.ShockText(m.Shocks)})
 	if sc := m.Scenario; sc != nil {
 		rows = append(rows, [2]string{"scenario applied", sc.Name})
 	}
@@ -548,7 +549,7 @@ func (r *report) writeOrderTables(m *model.File) {
 			if o.Chosen {
 				note = "fitted"
 			}
-			rows = append(rows, []string{strconv.Itoa(o.Order), num(o.BIC, 1), num(o.BIC-best, 1), note})
+			rows = append(rows, []string{strconv.Itoa(o.Order), render.Num(o.BIC, 1), render.Num(o.BIC-best, 1), note})
 		}
 		r.simpleTable("order", caption, []string{col, "BIC", "Δ BIC", ""}, rows, 1, 2)
 	}
@@ -564,11 +565,11 @@ func (r *report) writeOrderTables(m *model.File) {
 		var rows [][]string
 		for _, s := range dg.ShockTable {
 			if s.Family == model.FamilyBootstrap {
-				rows = append(rows, []string{familyName(s.Family), "—", "—", "—", "—", "no likelihood", mark(s.Chosen)})
+				rows = append(rows, []string{familyName(s.Family), "—", "—", "—", "—", "no likelihood", render.Mark(s.Chosen)})
 				continue
 			}
-			rows = append(rows, []string{familyName(s.Family), num(s.LogLik, 1), strconv.Itoa(s.Params), num(s.AIC, 1),
-				num(s.AIC-best, 1), shapeText(s), mark(s.Chosen)})
+			rows = append(rows, []string{familyName(s.Family), render.Num(s.LogLik, 1), strconv.Itoa(s.Params), render.Num(s.AIC, 1),
+				render.Num(s.AIC-best, 1), render.ShapeText(s), render.Mark(s.Chosen)})
 		}
 		r.simpleTable("order", "Shock family by AIC", []string{"family", "log-likelihood", "shape parameters", "AIC",
 			"Δ AIC", "shape", ""}, rows, 1, 2, 3, 4)
@@ -609,9 +610,9 @@ func (r *report) writeTests(m *model.File) {
 	t := func(name string, x model.Test, df bool, v string) []string {
 		d := ""
 		if df {
-			d = num(x.DF, 0)
+			d = render.Num(x.DF, 0)
 		}
-		return []string{name, num(x.Stat, 3), d, pval(x.P), v}
+		return []string{name, render.Num(x.Stat, 3), d, render.PValue(x.P), v}
 	}
 	rows := [][]string{
 		t("Ljung–Box Q(10) on z", dg.LjungBoxZ10, true, lb(dg.LjungBoxZ10)),
@@ -620,8 +621,8 @@ func (r *report) writeTests(m *model.File) {
 		t("Ljung–Box Q(20) on z²", dg.LjungBoxZ220, true, lb2(dg.LjungBoxZ220)),
 		t("Jarque–Bera (normality)", dg.JarqueBera, true, jb),
 		t("Kolmogorov–Smirnov D against the "+fam, dg.KS, false, ks),
-		{"skewness of z", num(dg.Skewness, 3), "", "", skewText(dg.Skewness)},
-		{"excess kurtosis of z", num(dg.ExcessKurtosis, 3), "", "", kurtText(dg.ExcessKurtosis)},
+		{"skewness of z", render.Num(dg.Skewness, 3), "", "", skewText(dg.Skewness)},
+		{"excess kurtosis of z", render.Num(dg.ExcessKurtosis, 3), "", "", kurtText(dg.ExcessKurtosis)},
 	}
 	r.raw("<h3>Diagnostic tests of the standardized shocks z</h3>\n")
 	r.simpleTable("tests", "", []string{"test", "statistic", "df", "p-value", "what it means"}, rows, 1, 2, 3)
@@ -657,13 +658,13 @@ func (r *report) writeSpread(m *model.File) {
 	for _, s := range dg.Spread {
 		band, fast := "—", "—"
 		if s.Band[1] > 0 {
-			band = num(s.Band[0], 3) + "–" + num(s.Band[1], 3)
+			band = render.Num(s.Band[0], 3) + "–" + render.Num(s.Band[1], 3)
 		}
 		if s.BandFastOnly != nil {
-			fast = num(s.BandFastOnly[0], 3) + "–" + num(s.BandFastOnly[1], 3)
+			fast = render.Num(s.BandFastOnly[0], 3) + "–" + render.Num(s.BandFastOnly[1], 3)
 		}
-		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), strconv.Itoa(s.Windows), num(s.Observed, 3),
-			num(s.Model, 3), band, s.Verdict, fast})
+		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), strconv.Itoa(s.Windows), render.Num(s.Observed, 3),
+			render.Num(s.Model, 3), band, s.Verdict, fast})
 		notes = append(notes, spreadSentence(s, m.Slow != nil))
 	}
 	r.raw("<h3>Spread of window means: data against model</h3>\n<p>Degree days of a month or a season are sums of " +
@@ -775,7 +776,7 @@ func runTimeText(d time.Duration) string {
 // cautions lists what a reader must keep in mind, the statement every
 // output carries first.
 func (r *report) cautions() []string {
-	out := []string{Caution}
+	out := []string{render.Caution}
 	if s := r.in.Sim; s != nil && s.Manifest.Paths > 0 {
 		n := s.Manifest.Paths
 		out = append(out, fmt.Sprintf("Tail numbers are Monte Carlo estimates from %d synthetic years: the 1-in-100 "+
