@@ -4,6 +4,15 @@
 // with the cautions, with inline SVG plots drawn by gonum/plot and no
 // script or external resource.
 //
+// The page is made by html/template from the templates embedded from
+// templates/*.html (go:embed): page.html lays out the page and each
+// section's template fills it, from views that this package builds from
+// the input (plain values and strings, no markup). The template engine
+// escapes every text of the input (titles, file names, scenario names and
+// descriptions, warnings); only the SVG plots, which this package draws,
+// and the style sheet templates/style.css are inserted as trusted markup
+// (template.HTML, template.CSS).
+//
 // Numbers keep the units of the data; the tail tables' cells are the
 // float64 values of the JSON and CSV outputs (package render) rounded to
 // a fixed number of decimals, and each carries data-scen, data-period,
@@ -11,5 +20,6 @@
 //
 // HTMLReport builds the page in memory and writes it with one Write, so a
 // failure leaves the writer untouched. It is safe for concurrent use on
-// different inputs; a ReportInput is only read.
+// different inputs (the parsed templates are shared, read only); a
+// ReportInput is only read.
 package report

@@ -19,7 +19,7 @@ func quantileBands(p *plot.Plot, xs []float64, q [][]float64, what string) ([]ke
 				return q[k]
 			}
 		}
-		panic(fmt.Sprintf("render: no fan quantile %v", prob))
+		panic(fmt.Sprintf("report: no fan quantile %v", prob))
 	}
 	outer, err := band(xs, at(0.05), at(0.95), withAlpha(okSkyBlue, 110))
 	if err != nil {

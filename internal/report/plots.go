@@ -145,7 +145,7 @@ var (
 func toSVG(p *plot.Plot, w, h vg.Length, label string) (s string, err error) {
 	defer func() {
 		if r := recover(); r != nil { // gonum/plot panics on some degenerate data
-			err = fmt.Errorf("render: plot %q: %v", label, r)
+			err = fmt.Errorf("report: plot %q: %v", label, r)
 		}
 	}()
 	c := vgsvg.New(w, h)

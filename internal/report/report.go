@@ -2,10 +2,12 @@ package report
 
 import (
 	"bytes"
+	"embed"
 	"fmt"
-	"html"
+	"html/template"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -21,6 +23,11 @@ import (
 // Scenarios (Sim.Scenarios), Demand (Demand, or demand rows in Sim), and
 // always the Manifest with the cautions.
 //
+// The page is the template "page" of templates/*.html executed by
+// html/template, which escapes every text of the input; only the SVG plots
+// this package draws and the embedded style sheet are inserted as trusted
+// markup.
+//
 // The numbers of the tail tables are formatted from the same sim.Row values
 // as SimJSON and SimCSV, with a fixed number of decimals, and every number
 // cell carries data-scen, data-period, data-index and data-stat attributes
@@ -30,82 +37,87 @@ import (
 // plotting error leaves w untouched. It panics if in is nil.
 func HTMLReport(w io.Writer, in *ReportInput) error {
 	if in == nil || in.Model == nil {
-		panic("render: HTMLReport needs an input with a model")
+		panic("report: HTMLReport needs an input with a model")
 	}
-	r := newReport(in)
-	if err := r.build(); err != nil {
+	p, err := newBuilder(in).page()
+	if err != nil {
 		return err
 	}
-	_, err := w.Write(r.b.Bytes())
+	var b bytes.Buffer
+	if err := templates.ExecuteTemplate(&b, "page", p); err != nil {
+		return err
+	}
+	_, err = w.Write(b.Bytes())
 	return err
 }
 
-// report is the page being built.
-type report struct {
+// The page's templates and style sheet, embedded in the binary.
+var (
+	//go:embed templates/*.html
+	templateFiles embed.FS
+	//go:embed templates/style.css
+	styleSheet string
+
+	templates = template.Must(template.ParseFS(templateFiles, "templates/*.html"))
+)
+
+// builder turns a ReportInput into the page's view: the values the
+// templates show, in the order the page shows them (ids are numbered in
+// that order).
+type builder struct {
 	in    *ReportInput
-	b     bytes.Buffer
 	units string // "C", "F" or ""
 	ids   map[string]int
-	n     int // sections written, for their numbers
 }
 
-func newReport(in *ReportInput) *report {
-	r := &report{in: in, ids: map[string]int{}}
+func newBuilder(in *ReportInput) *builder {
+	b := &builder{in: in, ids: map[string]int{}}
 	switch {
 	case in.Model != nil:
-		r.units = in.Model.Data.Units
+		b.units = in.Model.Data.Units
 	case in.Sim != nil:
-		r.units = in.Sim.Manifest.Units
+		b.units = in.Sim.Manifest.Units
 	}
-	return r
+	return b
 }
 
-func (r *report) printf(format string, a ...any) { fmt.Fprintf(&r.b, format, a...) }
-func (r *report) raw(s string)                   { r.b.WriteString(s) }
-
-// esc escapes text for HTML element content and quoted attribute values.
-func esc(s string) string { return html.EscapeString(s) }
-
 // uniqueID returns s made into an id, with a suffix if it was used before.
-func (r *report) uniqueID(s string) string {
-	var b strings.Builder
+func (b *builder) uniqueID(s string) string {
+	var sb strings.Builder
 	for _, c := range strings.ToLower(s) {
 		switch {
 		case c >= 'a' && c <= 'z', c >= '0' && c <= '9', c == '-':
-			b.WriteRune(c)
+			sb.WriteRune(c)
 		default:
-			b.WriteByte('-')
+			sb.WriteByte('-')
 		}
 	}
-	id := b.String()
-	r.ids[id]++
-	if k := r.ids[id]; k > 1 {
+	id := sb.String()
+	b.ids[id]++
+	if k := b.ids[id]; k > 1 {
 		id += "-" + strconv.Itoa(k)
 	}
 	return id
 }
 
-// sectionDef is a top-level section of the page.
-type sectionDef struct {
-	id, title string
-	present   bool
-	write     func() error
+// page is what the template "page" shows.
+type page struct {
+	Title, Subtitle, Caution string
+	CSS                      template.CSS
+	Facts                    [][2]string   // label, value
+	Sections                 []pageSection // the present ones, in order
 }
 
-func (r *report) sections() []sectionDef {
-	in := r.in
-	return []sectionDef{
-		{"data", "Data", in.Series != nil || in.Model != nil, r.writeData},
-		{"fit", "Fit", in.Model != nil, r.writeFit},
-		{"simulation", "Simulation", in.Sim != nil && len(temperatureRows(in.Sim.Rows)) > 0 || in.Fan != nil, r.writeSimulation},
-		{"scenarios", "Scenarios", in.Sim != nil && len(in.Sim.Scenarios) > 0, r.writeScenarios},
-		{"demand", "Demand", in.Demand != nil || in.Sim != nil && len(demandRows(in.Sim.Rows)) > 0, r.writeDemand},
-		{"manifest", "Manifest and cautions", true, r.writeManifest},
-	}
+// pageSection is one numbered top-level section; Body is the value of the
+// template named like its ID.
+type pageSection struct {
+	ID, Title string
+	Number    int
+	Body      any
 }
 
-func (r *report) build() error {
-	in := r.in
+func (b *builder) page() (*page, error) {
+	in := b.in
 	title := in.Title
 	if title == "" {
 		title = "wxstress report"
@@ -113,38 +125,34 @@ func (r *report) build() error {
 			title += ": " + in.Model.Data.Description
 		}
 	}
-	r.printf("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"+
-		"<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>%s</title>\n<style>\n%s</style>\n</head>\n<body>\n<main>\n",
-		esc(title), reportCSS)
-	r.printf("<header>\n<h1>%s</h1>\n", esc(title))
-	r.printf("<p class=\"sub\">%s</p>\n", esc(r.subtitle()))
-	r.printf("<div class=\"caution\" role=\"note\"><strong>Caution.</strong> %s</div>\n", esc(render.Caution))
-	r.writeSummary()
-	secs := r.sections()
-	r.raw("<nav class=\"toc\" aria-label=\"Contents\"><strong>Contents</strong>\n<ol>\n")
-	for _, s := range secs {
-		if s.present {
-			r.printf("<li><a href=\"#%s\">%s</a></li>\n", s.id, esc(s.title))
-		}
-	}
-	r.raw("</ol>\n</nav>\n</header>\n")
-	for _, s := range secs {
+	p := &page{Title: title, Subtitle: b.subtitle(), Caution: render.Caution, CSS: template.CSS(styleSheet),
+		Facts: b.facts()}
+	for _, s := range []struct {
+		id, title string
+		present   bool
+		body      func() (any, error)
+	}{
+		{"data", "Data", in.Series != nil || in.Model != nil, b.dataSection},
+		{"fit", "Fit", in.Model != nil, b.fitSection},
+		{"simulation", "Simulation", in.Sim != nil && len(temperatureRows(in.Sim.Rows)) > 0 || in.Fan != nil, b.simulationSection},
+		{"scenarios", "Scenarios", in.Sim != nil && len(in.Sim.Scenarios) > 0, b.scenariosSection},
+		{"demand", "Demand", in.Demand != nil || in.Sim != nil && len(demandRows(in.Sim.Rows)) > 0, b.demandSection},
+		{"manifest", "Manifest and cautions", true, b.manifestSection},
+	} {
 		if !s.present {
 			continue
 		}
-		r.n++
-		r.printf("\n<section class=\"top\" id=\"%s\">\n<h2>%d. %s</h2>\n", s.id, r.n, esc(s.title))
-		if err := s.write(); err != nil {
-			return err
+		body, err := s.body()
+		if err != nil {
+			return nil, err
 		}
-		r.raw("</section>\n")
+		p.Sections = append(p.Sections, pageSection{ID: s.id, Title: s.title, Number: len(p.Sections) + 1, Body: body})
 	}
-	r.printf("\n<footer><p>%s</p></footer>\n</main>\n</body>\n</html>\n", esc(render.Caution))
-	return nil
+	return p, nil
 }
 
-func (r *report) subtitle() string {
-	in := r.in
+func (b *builder) subtitle() string {
+	in := b.in
 	var parts []string
 	if m := in.Model; m != nil {
 		if m.Data.Description != "" {
@@ -168,19 +176,12 @@ func createdText(t time.Time) string {
 	return t.UTC().Format("2006-01-02 15:04:05") + " UTC"
 }
 
-// writeSummary writes what the report is about, for a reader who never ran
-// the tool, and the key facts of this run.
-func (r *report) writeSummary() {
-	in := r.in
-	r.raw("<p class=\"intro\">This report comes from a statistical model of daily mean temperature fitted to a station " +
-		"record: T(t) = S(t) + X(t), where S is a linear trend plus a seasonal cycle of period 365.25 days and X is an " +
-		"autoregressive (AR) anomaly driven by random shocks whose size σ changes by calendar month. The model is " +
-		"checked against the record, then run many times to produce synthetic years of the target year; each synthetic " +
-		"year gives heating and cooling degree days (HDD, CDD), its coldest and hottest day and its longest cold spell. " +
-		"The tail tables summarise those years: percentiles, expected shortfall (the mean of the worst 5 % or 1 % of " +
-		"years) and 1-in-T return levels (passed on the adverse side once in T years on average).</p>\n")
-	r.raw("<dl class=\"facts\">\n")
-	fact := func(k, v string) { r.printf("<dt>%s</dt><dd>%s</dd>\n", esc(k), esc(v)) }
+// facts are the key facts of this run, below the page's introduction for a
+// reader who never ran the tool.
+func (b *builder) facts() [][2]string {
+	in := b.in
+	var facts [][2]string
+	fact := func(k, v string) { facts = append(facts, [2]string{k, v}) }
 	if m := in.Model; m != nil {
 		name := m.Data.File
 		if m.Data.Description != "" {
@@ -205,7 +206,7 @@ func (r *report) writeSummary() {
 	if d := in.Demand; d != nil {
 		fact("Demand", strings.TrimSpace(fmt.Sprintf("%s, %s, change-point form %s", d.Retailer, d.Unit, d.Form)))
 	}
-	r.raw("</dl>\n")
+	return facts
 }
 
 // modelOneLine describes a model's structure in one line.
@@ -252,24 +253,36 @@ func familyName(f string) string {
 	return f
 }
 
-// writeFigure writes a plot with its colour key and caption.
-func (r *report) writeFigure(f figure) {
-	r.printf("<figure id=\"%s\">\n%s\n", r.uniqueID(f.ID), f.SVG)
-	if len(f.Key) > 0 || f.Caption != "" {
-		r.raw("<figcaption>")
-		if len(f.Key) > 0 {
-			r.raw("<ul class=\"key\">")
-			for _, k := range f.Key {
-				r.printf("<li><span class=\"sw %s\" style=\"%s\"></span>%s</li>", k.Style, swatchStyle(k), esc(k.Label))
-			}
-			r.raw("</ul>")
-		}
-		if f.Caption != "" {
-			r.printf("<p>%s</p>", esc(f.Caption))
-		}
-		r.raw("</figcaption>\n")
+// figView is a plot as the template "figure" shows it.
+type figView struct {
+	ID      string
+	SVG     template.HTML // drawn by this package, not text of the input
+	Key     []keyView
+	Caption string
+}
+
+// keyView is one entry of a figure's colour key.
+type keyView struct {
+	Label, Style string
+	Swatch       template.CSS // made by swatchStyle from a colour
+}
+
+// figure gives f its unique id and makes it a figView.
+func (b *builder) figure(f figure) *figView {
+	v := &figView{ID: b.uniqueID(f.ID), SVG: template.HTML(f.SVG), Caption: f.Caption}
+	for _, k := range f.Key {
+		v.Key = append(v.Key, keyView{Label: k.Label, Style: k.Style, Swatch: template.CSS(swatchStyle(k))})
 	}
-	r.raw("</figure>\n")
+	return v
+}
+
+// figGroup is what the template "figures" shows: plots in a grid, inside a
+// closed <details> headed by Summary unless Open, and notes below.
+type figGroup struct {
+	Figures []*figView
+	Notes   []string
+	Open    bool
+	Summary string
 }
 
 // swatchStyle is the inline colour of a key's swatch.
@@ -291,71 +304,66 @@ func cssColor(c interface{ RGBA() (r, g, b, a uint32) }) string {
 	return fmt.Sprintf("rgba(%d,%d,%d,%.2f)", un(r), un(g), un(b), float64(a)/0xffff)
 }
 
-// kvTable writes a two-column table of label and value.
-func (r *report) kvTable(class, caption string, rows [][2]string) {
-	r.printf("<div class=\"wide\"><table class=\"kv %s\">\n", class)
-	if caption != "" {
-		r.printf("<caption>%s</caption>\n", esc(caption))
-	}
-	r.raw("<tbody>\n")
-	for _, row := range rows {
-		r.printf("<tr><th scope=\"row\">%s</th><td>%s</td></tr>\n", esc(row[0]), esc(row[1]))
-	}
-	r.raw("</tbody></table></div>\n")
+// kvTable is what the template "kv" shows: a two-column table of label
+// and value.
+type kvTable struct {
+	Class, Caption string
+	Rows           [][2]string
 }
 
-// simpleTable writes a table of text cells; columns listed in numeric are
-// right-aligned.
-func (r *report) simpleTable(class, caption string, header []string, rows [][]string, numeric ...int) {
-	isNum := map[int]bool{}
-	for _, k := range numeric {
-		isNum[k] = true
-	}
-	cls := func(k int) string {
-		if isNum[k] {
-			return " class=\"n\""
-		}
-		return ""
-	}
-	r.printf("<div class=\"wide\"><table class=\"%s\">\n", class)
-	if caption != "" {
-		r.printf("<caption>%s</caption>\n", esc(caption))
-	}
-	r.raw("<thead><tr>")
-	for k, h := range header {
-		r.printf("<th scope=\"col\"%s>%s</th>", cls(k), esc(h))
-	}
-	r.raw("</tr></thead>\n<tbody>\n")
-	for _, row := range rows {
-		r.raw("<tr>")
-		for k, c := range row {
-			r.printf("<td%s>%s</td>", cls(k), esc(c))
-		}
-		r.raw("</tr>\n")
-	}
-	r.raw("</tbody></table></div>\n")
+// textTable is what the template "table" shows: a table of text cells.
+type textTable struct {
+	Class, Caption string
+	Header         []textCell
+	Rows           [][]textCell
 }
 
-// writeData writes section 1: the record and its quality.
-func (r *report) writeData() error {
-	in := r.in
-	r.raw("<p>The daily mean temperatures the model was fitted to. Gaps are left as gaps: the fit uses only days " +
-		"with a value (and, for the AR part, days whose previous days are present).</p>\n")
+// textCell is a cell of a textTable; Num cells are right-aligned.
+type textCell struct {
+	Text string
+	Num  bool
+}
+
+// newTextTable lays out a table of text cells; columns listed in numeric
+// are right-aligned.
+func newTextTable(class, caption string, header []string, rows [][]string, numeric ...int) textTable {
+	cells := func(texts []string) []textCell {
+		out := make([]textCell, len(texts))
+		for k, t := range texts {
+			out[k] = textCell{Text: t, Num: slices.Contains(numeric, k)}
+		}
+		return out
+	}
+	t := textTable{Class: class, Caption: caption, Header: cells(header)}
+	for _, row := range rows {
+		t.Rows = append(t.Rows, cells(row))
+	}
+	return t
+}
+
+// dataView is section 1: the record and its quality.
+type dataView struct {
+	Record  *figView // nil without the observed series
+	Quality kvTable
+}
+
+func (b *builder) dataSection() (any, error) {
+	in := b.in
+	v := &dataView{Quality: kvTable{"quality", "Data quality", b.dataRows()}}
 	if in.Series != nil && len(in.Series.Dates) == len(in.Series.Temps) && len(in.Series.Dates) > 0 {
 		f, ok, err := seriesFigure(in.Series, in.Model)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		if ok {
-			r.writeFigure(f)
+			v.Record = b.figure(f)
 		}
 	}
-	r.kvTable("quality", "Data quality", r.dataRows())
-	return nil
+	return v, nil
 }
 
-func (r *report) dataRows() [][2]string {
-	in := r.in
+func (b *builder) dataRows() [][2]string {
+	in := b.in
 	if m := in.Model; m != nil {
 		d := m.Data
 		rows := [][2]string{}
@@ -450,91 +458,101 @@ func paramRows(m *model.File) [][2]string {
 	return rows
 }
 
-// writeFit writes section 2: the fitted model and its diagnostics.
-func (r *report) writeFit() error {
-	m := r.in.Model
-	dg := m.Diagnostics
-	r.printf("<p>Fitted model: %s. The seasonal mean explains %.1f %% of the daily variance (R²); the rest is the "+
-		"anomaly X, which persists from day to day (AR) and is driven by shocks of a size σ that depends on the month.</p>\n",
-		esc(modelOneLine(m)), 100*m.Seasonal.R2)
-	r.kvTable("params", "Fitted parameters", paramRows(m))
-	if m.Trend.Rule != "" {
-		r.printf("<p class=\"note\">Trend: %s.</p>\n", esc(m.Trend.Rule))
-	}
+// fitView is section 2: the fitted model and its diagnostics.
+type fitView struct {
+	OneLine   string
+	R2Percent float64
+	Params    kvTable
+	TrendRule string
 
-	r.raw("<h3>Seasonal cycle and volatility</h3>\n")
-	f, ok, err := seasonalFigure(m, r.in.Series)
-	if err != nil {
-		return err
-	}
-	if ok {
-		r.writeFigure(f)
-	}
-	r.raw("<div class=\"grid\">\n")
-	sf, err := sigmaFigure(m)
-	if err != nil {
-		return err
-	}
-	r.writeFigure(sf)
-	if dg != nil && len(dg.ACF) > 0 && len(dg.PACF) > 0 {
-		r.raw("</div>\n<h3>Persistence: autocorrelation of the anomaly X</h3>\n")
-		r.printf("<p>The anomaly's autocorrelation (ACF) decays with the lag; its partial autocorrelation (PACF) shows "+
-			"how many past days matter once the nearer days are known. For an AR(%d) the PACF should be small beyond "+
-			"lag %d. Bars beyond the dashed bounds are significant at the 5 %% level.</p>\n<div class=\"grid\">\n",
-			len(m.AR.Phi), len(m.AR.Phi))
-		acf, err := correlogramFigure("fig-acf", "ACF of the anomaly X", "autocorrelation", dg.ACF, dg.ACFBound)
-		if err != nil {
-			return err
-		}
-		r.writeFigure(acf)
-		pacf, err := correlogramFigure("fig-pacf", "PACF of the anomaly X", "partial autocorrelation", dg.PACF, dg.ACFBound)
-		if err != nil {
-			return err
-		}
-		r.writeFigure(pacf)
-	}
-	r.raw("</div>\n")
+	Seasonal  *figView // nil when it cannot be drawn
+	Sigma     *figView
+	AROrder   int
+	ACF, PACF *figView // nil without a correlogram
 
-	_, famName := shockDist(m)
-	hasQQ := dg != nil && len(dg.QQTheoretical) > 1 && len(dg.QQTheoretical) == len(dg.QQSample)
-	hasZ := r.in.Series != nil && len(r.in.Series.Z) > 0
-	if hasQQ || hasZ {
-		r.printf("<h3>Shocks: distribution of the standardized innovations z</h3>\n<p>z is each day's innovation divided "+
-			"by its month's σ. The simulator draws z from the fitted %s.</p>\n<div class=\"grid\">\n", esc(famName))
-		if hasQQ {
-			qq, err := qqFigure(dg.QQTheoretical, dg.QQSample, famName)
-			if err != nil {
-				return err
-			}
-			r.writeFigure(qq)
-		}
-		if hasZ {
-			h, ok, err := shockHistFigure(r.in.Series.Z, m)
-			if err != nil {
-				return err
-			}
-			if ok {
-				r.writeFigure(h)
-			}
-		}
-		r.raw("</div>\n")
-	}
-	if dg == nil {
-		r.raw("<p class=\"note\">The model file carries no diagnostics.</p>\n")
-		return nil
-	}
-	r.writeOrderTables(m)
-	r.writeTests(m)
-	r.writeSpread(m)
-	return nil
+	ShockBlock bool       // the shocks have a QQ plot or observed values
+	Family     string     // the shock family's name
+	Shocks     []*figView // QQ plot and histogram, those there are
+
+	Diagnostics *diagnosticsView // nil when the model file carries none
 }
 
-// writeOrderTables writes the harmonics and AR-order BIC tables and the
-// shock-family AIC table.
-func (r *report) writeOrderTables(m *model.File) {
+// diagnosticsView is the model choice, the tests and the window spread.
+type diagnosticsView struct {
+	Choice   []textTable
+	ARAdvice string
+	Tests    textTable
+	Spread   *spreadView // nil without window spreads
+}
+
+// spreadView compares the spread of window means with the model's.
+type spreadView struct {
+	Table    textTable
+	Verdicts []string
+}
+
+func (b *builder) fitSection() (any, error) {
+	m := b.in.Model
 	dg := m.Diagnostics
-	r.raw("<h3>Model choice</h3>\n<p>Lower BIC or AIC is better; a difference above 10 is strong evidence. " +
-		"Δ is the difference from the lowest value.</p>\n<div class=\"tables\">\n")
+	v := &fitView{OneLine: modelOneLine(m), R2Percent: 100 * m.Seasonal.R2,
+		Params: kvTable{"params", "Fitted parameters", paramRows(m)}, TrendRule: m.Trend.Rule, AROrder: len(m.AR.Phi)}
+	f, ok, err := seasonalFigure(m, b.in.Series)
+	if err != nil {
+		return nil, err
+	}
+	if ok {
+		v.Seasonal = b.figure(f)
+	}
+	sf, err := sigmaFigure(m)
+	if err != nil {
+		return nil, err
+	}
+	v.Sigma = b.figure(sf)
+	if dg != nil && len(dg.ACF) > 0 && len(dg.PACF) > 0 {
+		acf, err := correlogramFigure("fig-acf", "ACF of the anomaly X", "autocorrelation", dg.ACF, dg.ACFBound)
+		if err != nil {
+			return nil, err
+		}
+		v.ACF = b.figure(acf)
+		pacf, err := correlogramFigure("fig-pacf", "PACF of the anomaly X", "partial autocorrelation", dg.PACF, dg.ACFBound)
+		if err != nil {
+			return nil, err
+		}
+		v.PACF = b.figure(pacf)
+	}
+
+	_, v.Family = shockDist(m)
+	hasQQ := dg != nil && len(dg.QQTheoretical) > 1 && len(dg.QQTheoretical) == len(dg.QQSample)
+	hasZ := b.in.Series != nil && len(b.in.Series.Z) > 0
+	v.ShockBlock = hasQQ || hasZ
+	if hasQQ {
+		qq, err := qqFigure(dg.QQTheoretical, dg.QQSample, v.Family)
+		if err != nil {
+			return nil, err
+		}
+		v.Shocks = append(v.Shocks, b.figure(qq))
+	}
+	if hasZ {
+		h, ok, err := shockHistFigure(b.in.Series.Z, m)
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			v.Shocks = append(v.Shocks, b.figure(h))
+		}
+	}
+	if dg != nil {
+		v.Diagnostics = &diagnosticsView{Choice: orderTables(m), ARAdvice: dg.ARAdvice, Tests: testsTable(m),
+			Spread: spread(m)}
+	}
+	return v, nil
+}
+
+// orderTables are the harmonics and AR-order BIC tables and the
+// shock-family AIC table, those the diagnostics have.
+func orderTables(m *model.File) []textTable {
+	dg := m.Diagnostics
+	var tables []textTable
 	orderTable := func(caption, col string, s []model.OrderScore) {
 		if len(s) == 0 {
 			return
@@ -551,7 +569,7 @@ func (r *report) writeOrderTables(m *model.File) {
 			}
 			rows = append(rows, []string{strconv.Itoa(o.Order), render.Num(o.BIC, 1), render.Num(o.BIC-best, 1), note})
 		}
-		r.simpleTable("order", caption, []string{col, "BIC", "Δ BIC", ""}, rows, 1, 2)
+		tables = append(tables, newTextTable("order", caption, []string{col, "BIC", "Δ BIC", ""}, rows, 1, 2))
 	}
 	orderTable("Seasonal harmonics by BIC", "harmonics K", dg.HarmonicsTable)
 	orderTable("Fast AR order by BIC (exact likelihood; with the slow part in the model when it was considered)", "order p", dg.ARTable)
@@ -571,17 +589,14 @@ func (r *report) writeOrderTables(m *model.File) {
 			rows = append(rows, []string{familyName(s.Family), render.Num(s.LogLik, 1), strconv.Itoa(s.Params), render.Num(s.AIC, 1),
 				render.Num(s.AIC-best, 1), render.ShapeText(s), render.Mark(s.Chosen)})
 		}
-		r.simpleTable("order", "Shock family by AIC", []string{"family", "log-likelihood", "shape parameters", "AIC",
-			"Δ AIC", "shape", ""}, rows, 1, 2, 3, 4)
+		tables = append(tables, newTextTable("order", "Shock family by AIC", []string{"family", "log-likelihood",
+			"shape parameters", "AIC", "Δ AIC", "shape", ""}, rows, 1, 2, 3, 4))
 	}
-	r.raw("</div>\n")
-	if dg.ARAdvice != "" {
-		r.printf("<p class=\"warn\">Note: %s.</p>\n", esc(dg.ARAdvice))
-	}
+	return tables
 }
 
-// writeTests writes the diagnostic tests with plain-language verdicts.
-func (r *report) writeTests(m *model.File) {
+// testsTable is the diagnostic tests with plain-language verdicts.
+func testsTable(m *model.File) textTable {
 	dg := m.Diagnostics
 	p := len(m.AR.Phi)
 	lb := func(t model.Test) string {
@@ -624,8 +639,7 @@ func (r *report) writeTests(m *model.File) {
 		{"skewness of z", render.Num(dg.Skewness, 3), "", "", skewText(dg.Skewness)},
 		{"excess kurtosis of z", render.Num(dg.ExcessKurtosis, 3), "", "", kurtText(dg.ExcessKurtosis)},
 	}
-	r.raw("<h3>Diagnostic tests of the standardized shocks z</h3>\n")
-	r.simpleTable("tests", "", []string{"test", "statistic", "df", "p-value", "what it means"}, rows, 1, 2, 3)
+	return newTextTable("tests", "", []string{"test", "statistic", "df", "p-value", "what it means"}, rows, 1, 2, 3)
 }
 
 func skewText(s float64) string {
@@ -645,16 +659,16 @@ func kurtText(k float64) string {
 	return "tails close to normal"
 }
 
-// writeSpread writes the window-spread comparison and what it means for
-// seasonal degree-day tails.
-func (r *report) writeSpread(m *model.File) {
+// spread is the window-spread comparison and what it means for seasonal
+// degree-day tails; nil without window spreads.
+func spread(m *model.File) *spreadView {
 	dg := m.Diagnostics
 	if len(dg.Spread) == 0 {
-		return
+		return nil
 	}
 	u := degrees(m.Data.Units)
 	var rows [][]string
-	var notes []string
+	v := &spreadView{}
 	for _, s := range dg.Spread {
 		band, fast := "—", "—"
 		if s.Band[1] > 0 {
@@ -665,21 +679,11 @@ func (r *report) writeSpread(m *model.File) {
 		}
 		rows = append(rows, []string{fmt.Sprintf("%d-day means", s.Days), strconv.Itoa(s.Windows), render.Num(s.Observed, 3),
 			render.Num(s.Model, 3), band, s.Verdict, fast})
-		notes = append(notes, spreadSentence(s, m.Slow != nil))
+		v.Verdicts = append(v.Verdicts, spreadSentence(s, m.Slow != nil))
 	}
-	r.raw("<h3>Spread of window means: data against model</h3>\n<p>Degree days of a month or a season are sums of " +
-		"daily values, so their tails depend on how widely the mean anomaly of a whole window varies. This compares " +
-		"the standard deviation of non-overlapping window means of X in the record with what the fitted model implies, " +
-		"and gives the 5–95 % range of that sd in records of the same length and gaps simulated from the fitted model " +
-		"(and from the fast AR alone, for comparison): an observed sd outside the band is evidence against the model's " +
-		"spread at that scale.</p>\n")
-	r.simpleTable("spread", "", []string{"window", "windows", "observed sd (" + u + ")", "model sd (" + u + ")",
+	v.Table = newTextTable("spread", "", []string{"window", "windows", "observed sd (" + u + ")", "model sd (" + u + ")",
 		"90 % band (" + u + ")", "observed", "band without the slow part"}, rows, 1, 2, 3)
-	r.raw("<ul class=\"verdicts\">\n")
-	for _, n := range notes {
-		r.printf("<li>%s</li>\n", esc(n))
-	}
-	r.raw("</ul>\n")
+	return v
 }
 
 func spreadSentence(s model.WindowSpread, slow bool) string {
@@ -702,9 +706,16 @@ func spreadSentence(s model.WindowSpread, slow bool) string {
 	return fmt.Sprintf("%d-day windows: no band (too few windows or the lean fit).", s.Days)
 }
 
-// writeManifest writes section 6: provenance of the run and the cautions.
-func (r *report) writeManifest() error {
-	in := r.in
+// manifestView is section 6: provenance of the run and the cautions.
+type manifestView struct {
+	Run      kvTable
+	Inputs   *textTable // nil without input files
+	Params   *kvTable   // nil without a model
+	Cautions []string
+}
+
+func (b *builder) manifestSection() (any, error) {
+	in := b.in
 	version := ""
 	switch {
 	case in.Sim != nil:
@@ -743,27 +754,23 @@ func (r *report) writeManifest() error {
 			rows = append(rows, [2]string{"demand model", mf.DemandModel}, [2]string{"demand model SHA-256", mf.DemandSHA256})
 		}
 		if mf.Capacity > 0 {
-			rows = append(rows, [2]string{"capacity", strings.TrimSpace(fmt.Sprintf("%g %s", mf.Capacity, r.demandUnit()))})
+			rows = append(rows, [2]string{"capacity", strings.TrimSpace(fmt.Sprintf("%g %s", mf.Capacity, b.demandUnit()))})
 		}
 		rows = append(rows, [2]string{"quantile convention", mf.Quantiles})
 	}
-	r.kvTable("manifest", "Run", rows)
+	v := &manifestView{Run: kvTable{"manifest", "Run", rows}, Cautions: b.cautions()}
 	if len(in.Inputs) > 0 {
 		var files [][]string
 		for _, f := range in.Inputs {
 			files = append(files, []string{f.Role, f.Name, f.SHA256})
 		}
-		r.simpleTable("inputs", "Input files", []string{"role", "file", "SHA-256"}, files)
+		t := newTextTable("inputs", "Input files", []string{"role", "file", "SHA-256"}, files)
+		v.Inputs = &t
 	}
 	if in.Model != nil {
-		r.kvTable("params", "Model parameters", paramRows(in.Model))
+		v.Params = &kvTable{"params", "Model parameters", paramRows(in.Model)}
 	}
-	r.raw("<h3 id=\"cautions\">Cautions</h3>\n<ul class=\"cautions\">\n")
-	for _, c := range r.cautions() {
-		r.printf("<li>%s</li>\n", esc(c))
-	}
-	r.raw("</ul>\n")
-	return nil
+	return v, nil
 }
 
 func runTimeText(d time.Duration) string {
@@ -775,15 +782,15 @@ func runTimeText(d time.Duration) string {
 
 // cautions lists what a reader must keep in mind, the statement every
 // output carries first.
-func (r *report) cautions() []string {
+func (b *builder) cautions() []string {
 	out := []string{render.Caution}
-	if s := r.in.Sim; s != nil && s.Manifest.Paths > 0 {
+	if s := b.in.Sim; s != nil && s.Manifest.Paths > 0 {
 		n := s.Manifest.Paths
 		out = append(out, fmt.Sprintf("Tail numbers are Monte Carlo estimates from %d synthetic years: the 1-in-100 "+
 			"level rests on about %d years beyond it and the 99 %% expected shortfall on the worst %d, so they carry "+
 			"sampling error; more paths narrow it.", n, n/100, max(1, int(math.Ceil(0.01*float64(n))))))
 	}
-	if s := r.in.Sim; s != nil && len(s.Scenarios) > 0 {
+	if s := b.in.Sim; s != nil && len(s.Scenarios) > 0 {
 		out = append(out, "Scenarios are what-if changes to the fitted model (level, trend, volatility, persistence, "+
 			"tails or injected events), not projections of what will happen.")
 	}
@@ -791,74 +798,3 @@ func (r *report) cautions() []string {
 		"the tails, in particular the spread of window means for seasonal degree days.")
 	return out
 }
-
-// reportCSS styles the page on screen and in print. It names local font
-// families only; nothing is fetched.
-const reportCSS = `:root { --ink: #1b1b1b; --muted: #555; --rule: #d4d4d4; --head: #f1f1f1; --accent: #0072b2; --warn: #d55e00; }
-* { box-sizing: border-box; }
-html { -webkit-text-size-adjust: 100%; }
-body { margin: 0; color: var(--ink); background: #fff; font: 15px/1.45 "Liberation Sans", Arial, Helvetica, sans-serif; }
-main { max-width: 1200px; margin: 0 auto; padding: 20px 28px 48px; }
-h1 { font-size: 1.65em; margin: 0.2em 0 0.1em; }
-h2 { font-size: 1.35em; margin: 1.8em 0 0.6em; padding-bottom: 0.15em; border-bottom: 2px solid var(--accent); }
-h3 { font-size: 1.1em; margin: 1.5em 0 0.4em; }
-h4 { font-size: 1em; margin: 1.2em 0 0.3em; }
-p { max-width: 60em; }
-.sub { color: var(--muted); margin: 0 0 0.8em; }
-.caution { border-left: 6px solid var(--warn); background: #fbeee4; padding: 0.6em 1em; margin: 0.8em 0; max-width: 60em; }
-.intro { margin: 0.8em 0; }
-.facts { display: grid; grid-template-columns: max-content 1fr; gap: 0.15em 1.2em; margin: 0.8em 0; }
-.facts dt { font-weight: bold; }
-.facts dd { margin: 0; }
-.toc { margin: 1em 0; }
-.toc ol { margin: 0.3em 0; padding-left: 1.6em; columns: 2; max-width: 36em; }
-a { color: var(--accent); }
-.note { color: var(--muted); }
-.warn { color: var(--warn); font-weight: bold; }
-.wide { overflow-x: auto; }
-table { border-collapse: collapse; margin: 0.5em 0 1.2em; font-size: 0.88em; }
-caption { text-align: left; font-weight: bold; padding: 0 0 0.3em; }
-th, td { border-bottom: 1px solid var(--rule); padding: 0.2em 0.6em; text-align: left; vertical-align: top; }
-thead th { background: var(--head); border-bottom: 2px solid #999; vertical-align: bottom; }
-tbody th { font-weight: normal; }
-.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
-.u { display: block; font-weight: normal; color: var(--muted); font-size: 0.9em; }
-tr.sep th, tr.sep td { border-top: 2px solid #bbb; }
-tr.group th { background: #fafafa; font-weight: bold; }
-.kv th { white-space: nowrap; padding-right: 1.5em; }
-.kv td, .inputs td { overflow-wrap: anywhere; }
-.tables { display: flex; flex-wrap: wrap; gap: 0 2.5em; align-items: flex-start; }
-.verdicts li { margin: 0.2em 0; max-width: 60em; }
-figure { margin: 0.8em 0 1.4em; break-inside: avoid; page-break-inside: avoid; }
-figure svg { display: block; max-width: 100%; height: auto; }
-figcaption { font-size: 0.86em; color: var(--muted); max-width: 16cm; }
-figcaption p { margin: 0.3em 0 0; }
-.key { list-style: none; margin: 0.3em 0 0; padding: 0; display: flex; flex-wrap: wrap; gap: 0.15em 1.2em; color: var(--ink); }
-.sw { display: inline-block; width: 24px; height: 0; margin-right: 0.4em; vertical-align: middle; border-top: 3px solid; }
-.sw.dash { border-top-style: dashed; }
-.sw.band, .sw.bar { height: 11px; border-top: 0; }
-.sw.dot { width: 10px; height: 10px; border-top: 0; border-radius: 50%; }
-.grid { display: grid; grid-template-columns: repeat(auto-fill, minmax(450px, 1fr)); gap: 0 1.5em; align-items: start; }
-details { margin: 0.8em 0; }
-summary { cursor: pointer; font-weight: bold; color: var(--accent); }
-.cautions li { margin: 0.3em 0; max-width: 60em; }
-footer { margin-top: 3em; padding-top: 0.6em; border-top: 1px solid var(--rule); color: var(--muted); font-size: 0.85em; }
-@media (max-width: 700px) { main { padding: 12px; } .grid { grid-template-columns: 1fr; } .toc ol { columns: 1; } }
-@media print {
-  @page { margin: 14mm 12mm; }
-  body { font-size: 9.5pt; }
-  main { max-width: none; padding: 0; }
-  section.top { break-before: page; page-break-before: always; }
-  h2, h3, h4, caption { break-after: avoid; page-break-after: avoid; }
-  a { color: inherit; text-decoration: none; }
-  .wide { overflow: visible; }
-  table { font-size: 8.5pt; break-inside: auto; }
-  thead { display: table-header-group; }
-  tr { break-inside: avoid; page-break-inside: avoid; }
-  .grid { display: block; }
-  figure svg { max-width: 100%; }
-  details > summary { list-style: none; }
-  details::details-content { content-visibility: visible; display: contents; }
-  .caution { background: none; }
-}
-`

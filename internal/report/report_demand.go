@@ -80,15 +80,15 @@ func NewDemandView(retailer string, m *model.Demand, temps, loads []float64) *De
 }
 
 // demandUnit is the daily demand unit of the report, "" when unknown.
-func (r *report) demandUnit() string {
+func (b *builder) demandUnit() string {
 	switch {
-	case r.in.Sim != nil && r.in.Sim.Planning != nil && r.in.Sim.Planning.Unit != "":
-		return r.in.Sim.Planning.Unit
-	case r.in.Demand != nil:
-		return r.in.Demand.Unit
+	case b.in.Sim != nil && b.in.Sim.Planning != nil && b.in.Sim.Planning.Unit != "":
+		return b.in.Sim.Planning.Unit
+	case b.in.Demand != nil:
+		return b.in.Demand.Unit
 	}
-	if r.in.Sim != nil {
-		for _, row := range r.in.Sim.Rows {
+	if b.in.Sim != nil {
+		for _, row := range b.in.Sim.Rows {
 			if row.Index == sim.PeakDemand {
 				return row.Unit
 			}
@@ -97,185 +97,197 @@ func (r *report) demandUnit() string {
 	return ""
 }
 
-// writeDemand writes section 5: the demand model, the planning tables and
-// plots, and the demand indices.
-func (r *report) writeDemand() error {
-	in := r.in
-	if d := in.Demand; d != nil {
-		who := d.Retailer
-		if who == "" {
-			who = "The demand series"
-		}
-		r.printf("<p>%s: daily demand in %s modelled as a base load plus weekday and holiday terms plus heating and "+
-			"cooling slopes beyond balance-point temperatures (a change-point model, form %s), with an AR(1) error. "+
-			"Each synthetic year of temperature becomes a synthetic year of demand, which gives the period's energy "+
-			"and its peak day.</p>\n", esc(who), esc(d.Unit), esc(d.Form))
-		f, ok, err := demandFigure(d, r.units)
-		if err != nil {
-			return err
-		}
-		if ok {
-			r.writeFigure(f)
-		}
-		if len(d.Facts) > 0 {
-			r.kvTable("demand-model", "Demand model", d.Facts)
-		}
-		if len(d.Warnings) > 0 {
-			r.raw("<ul class=\"verdicts\">\n")
-			for _, w := range d.Warnings {
-				r.printf("<li class=\"warn\">Warning: %s</li>\n", esc(w))
-			}
-			r.raw("</ul>\n")
-		}
-	}
-	if in.Sim == nil {
-		return nil
-	}
-	if err := r.writePlanning(); err != nil {
-		return err
-	}
-	for k, g := range byPeriodOf(demandRows(in.Sim.Rows)) {
-		r.printf("<h3 id=\"%s\">Demand, period %s</h3>\n", r.uniqueID("demand-"+g[0].Period), esc(r.periodText(g[0].Period)))
-		r.tailTable("baseline", g, "Demand tail table, baseline, "+g[0].Period)
-		figs, notes, err := r.indexFigures(g)
-		if err != nil {
-			return err
-		}
-		r.writeFigures(figs, notes, k == 0, fmt.Sprintf("Histograms and exceedance curves of demand, %s (%d plots)",
-			g[0].Period, len(figs)))
-	}
-	r.writeNormals()
-	return nil
+// demandView is section 5: the demand model, the planning tables and plots,
+// and the demand indices.
+type demandView struct {
+	Model    *demandModelView // nil without a fitted demand model
+	Planning *planningBlock   // nil when there is nothing to plan with
+	Periods  []periodBlock
+	History  *historyBlock // nil without weather-normalized years
 }
 
-// writePlanning writes the design peaks, the daily demand fan and the
-// load-duration curve.
-func (r *report) writePlanning() error {
-	in := r.in
+// demandModelView describes the fitted demand model.
+type demandModelView struct {
+	Who, Unit, Form string
+	Figure          *figView
+	Facts           *kvTable // nil without facts
+	Warnings        []string
+}
+
+func (b *builder) demandSection() (any, error) {
+	in := b.in
+	v := &demandView{}
+	if d := in.Demand; d != nil {
+		mv := &demandModelView{Who: d.Retailer, Unit: d.Unit, Form: d.Form, Warnings: d.Warnings}
+		if mv.Who == "" {
+			mv.Who = "The demand series"
+		}
+		f, ok, err := demandFigure(d, b.units)
+		if err != nil {
+			return nil, err
+		}
+		if ok {
+			mv.Figure = b.figure(f)
+		}
+		if len(d.Facts) > 0 {
+			mv.Facts = &kvTable{"demand-model", "Demand model", d.Facts}
+		}
+		v.Model = mv
+	}
+	if in.Sim == nil {
+		return v, nil
+	}
+	var err error
+	if v.Planning, err = b.planning(); err != nil {
+		return nil, err
+	}
+	v.Periods, err = b.periodBlocks(demandRows(in.Sim.Rows), "demand-", "Demand, period ", "Demand tail table, baseline, ",
+		"Histograms and exceedance curves of demand")
+	if err != nil {
+		return nil, err
+	}
+	v.History = b.history()
+	return v, nil
+}
+
+// planningBlock is what the template "planning" shows: the design peaks,
+// the daily demand fan and the load-duration curve.
+type planningBlock struct {
+	Unit         string
+	Peaks        []peakRow
+	Capacity     string // "" without a capacity
+	Figures      []*figView
+	LoadDuration *loadDurationTable // nil without the curve
+}
+
+// peakRow is one period's design peaks.
+type peakRow struct {
+	Period string
+	Cells  []numCell
+}
+
+// loadDurationTable is the load-duration curve at LoadDurationRanks, cells
+// identified as in SimCSV (index "load-duration", statistic "rankN:pQQ").
+type loadDurationTable struct {
+	Unit  string
+	Paths int
+	Probs []string // column heads, "P5" ...
+	Ranks []rankRow
+}
+
+// rankRow is the n-th highest day's quantiles across the synthetic years.
+type rankRow struct {
+	Rank  int
+	Cells []numCell
+}
+
+// planning lays out the design peaks, the daily demand fan and the
+// load-duration curve; nil when the run has none of them.
+func (b *builder) planning() (*planningBlock, error) {
+	in := b.in
 	var peaks []sim.Row
 	for _, row := range in.Sim.Rows {
 		if row.Index == sim.PeakDemand && row.Info.Key == "peak" {
 			peaks = append(peaks, row)
 		}
 	}
-	var p *render.Planning
-	if in.Sim.Planning != nil {
-		p = in.Sim.Planning
-	}
+	p := in.Sim.Planning
 	hasFan := in.Fan != nil && len(in.Fan.DemandQ) == len(sim.FanProbs)
 	hasLD := p != nil && len(p.LoadDuration) == len(sim.FanProbs) && len(p.LoadDuration[0]) > 0
 	if len(peaks) == 0 && !hasFan && !hasLD {
-		return nil
+		return nil, nil
 	}
-	unit := r.demandUnit()
+	unit := b.demandUnit()
 	capacity := in.Sim.Manifest.Capacity
-	r.raw("<h3 id=\"planning\">Peak day and load duration for capacity planning</h3>\n")
-	if len(peaks) > 0 {
-		r.raw("<p>The 50/50 peak is exceeded in one year in two and the 90/10 peak in one year in ten (common practice " +
-			"in resource planning); the 1-in-20 and 1-in-50 peaks are the levels network planning sizes to; ES 99% is " +
-			"the mean peak of the worst 1 % of years.</p>\n")
-		r.printf("<div class=\"wide\"><table class=\"planning\">\n<caption>Peak-day demand (%s)</caption>\n"+
-			"<thead><tr><th scope=\"col\">period</th><th scope=\"col\" class=\"n\">50/50 (P50)</th><th scope=\"col\" class=\"n\">90/10 (P90)</th>"+
-			"<th scope=\"col\" class=\"n\">1-in-20</th><th scope=\"col\" class=\"n\">1-in-50</th><th scope=\"col\" class=\"n\">ES 99%%</th></tr></thead>\n<tbody>\n",
-			esc(unit))
-		for _, row := range peaks {
-			t := row.Tail
-			r.printf("<tr><th scope=\"row\">%s</th>", esc(row.Period))
-			for _, c := range []struct {
-				stat string
-				v    float64
-			}{{"p50", t.Quantiles[4]}, {"p90", t.Quantiles[6]}, {"rl20", t.ReturnLevels[3]}, {"rl50", t.ReturnLevels[4]},
-				{"es99", t.ES99}} {
-				r.printf("<td class=\"n\"%s>%s</td>", cellAttrs("baseline", row, c.stat), fixed(c.v, valueDecimals))
-			}
-			r.raw("</tr>\n")
+	v := &planningBlock{Unit: unit}
+	for _, row := range peaks {
+		t := row.Tail
+		pr := peakRow{Period: row.Period}
+		for _, c := range []struct {
+			stat string
+			v    float64
+		}{{"p50", t.Quantiles[4]}, {"p90", t.Quantiles[6]}, {"rl20", t.ReturnLevels[3]}, {"rl50", t.ReturnLevels[4]},
+			{"es99", t.ES99}} {
+			pr.Cells = append(pr.Cells, newNumCell("baseline", row, c.stat, fixed(c.v, valueDecimals)))
 		}
-		r.raw("</tbody></table></div>\n")
-		if capacity > 0 {
-			r.printf("<p>Capacity: %g %s; the tables below count the days above it in each synthetic year.</p>\n", capacity, esc(unit))
-		}
+		v.Peaks = append(v.Peaks, pr)
 	}
-	if hasFan || hasLD {
-		r.raw("<div class=\"grid\">\n")
-		if hasFan {
-			f, err := demandFanFigure(in.Fan, unit, capacity)
-			if err != nil {
-				return err
-			}
-			r.writeFigure(f)
+	if capacity > 0 {
+		v.Capacity = fmt.Sprintf("%g %s", capacity, unit)
+	}
+	if hasFan {
+		f, err := demandFanFigure(in.Fan, unit, capacity)
+		if err != nil {
+			return nil, err
 		}
-		if hasLD {
-			f, err := loadDurationFigure(p, unit, capacity, in.Sim.Manifest.Year)
-			if err != nil {
-				return err
-			}
-			r.writeFigure(f)
-		}
-		r.raw("</div>\n")
+		v.Figures = append(v.Figures, b.figure(f))
 	}
 	if hasLD {
-		r.loadDurationTable(p, unit)
+		f, err := loadDurationFigure(p, unit, capacity, in.Sim.Manifest.Year)
+		if err != nil {
+			return nil, err
+		}
+		v.Figures = append(v.Figures, b.figure(f))
+		v.LoadDuration = newLoadDurationTable(p, unit)
 	}
-	return nil
+	return v, nil
 }
 
-// loadDurationTable writes the load-duration curve at LoadDurationRanks,
-// cells identified as in SimCSV (index "load-duration", statistic
-// "rankN:pQQ").
-func (r *report) loadDurationTable(p *render.Planning, unit string) {
-	r.printf("<div class=\"wide\"><table class=\"load-duration\">\n<caption>Load-duration curve: the n-th highest day "+
-		"of the year (%s), across %d synthetic years</caption>\n<thead><tr><th scope=\"col\">n-th highest day</th>",
-		esc(unit), p.LoadDurationPaths)
+func newLoadDurationTable(p *render.Planning, unit string) *loadDurationTable {
+	t := &loadDurationTable{Unit: unit, Paths: p.LoadDurationPaths}
 	for _, q := range sim.FanProbs {
-		r.printf("<th scope=\"col\" class=\"n\">P%.0f</th>", 100*q)
+		t.Probs = append(t.Probs, fmt.Sprintf("P%.0f", 100*q))
 	}
-	r.raw("</tr></thead>\n<tbody>\n")
 	row := sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}}
 	for _, rank := range render.LoadDurationRanks {
 		if rank > len(p.LoadDuration[0]) {
 			break
 		}
-		r.printf("<tr><th scope=\"row\">%d</th>", rank)
+		rr := rankRow{Rank: rank}
 		for k, q := range sim.FanProbs {
-			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs("baseline", row, fmt.Sprintf("rank%d:p%02.0f", rank, 100*q)),
-				fixed(p.LoadDuration[k][rank-1], valueDecimals))
+			rr.Cells = append(rr.Cells, newNumCell("baseline", row, fmt.Sprintf("rank%d:p%02.0f", rank, 100*q),
+				fixed(p.LoadDuration[k][rank-1], valueDecimals)))
 		}
-		r.raw("</tr>\n")
+		t.Ranks = append(t.Ranks, rr)
 	}
-	r.raw("</tbody></table></div>\n")
+	return t
 }
 
-// writeNormals writes the weather-normalized history, cells identified as
-// in SimCSV (index "history", period the year).
-func (r *report) writeNormals() {
-	p := r.in.Sim.Planning
+// historyBlock is what the template "history" shows: the weather-normalized
+// history, cells identified as in SimCSV (index "history", period the
+// year).
+type historyBlock struct {
+	Unit  string // of a year's energy
+	Years []historyYear
+}
+
+// historyYear is one historical year's demand.
+type historyYear struct {
+	Year, Days int
+	Cells      []numCell
+	Effect     string // the weather's effect in per cent, "—" when undefined
+}
+
+func (b *builder) history() *historyBlock {
+	p := b.in.Sim.Planning
 	if p == nil || len(p.Normals) == 0 {
-		return
+		return nil
 	}
-	u := render.EnergyUnit(p.Unit)
-	r.raw("<h3 id=\"history\">Weather-normalized demand of the historical years</h3>\n<p>Each year's observed demand " +
-		"with the weather's effect taken out: weather-normalized = actual − model at the actual weather + model at " +
-		"normal weather (the mean over climatological simulations of that year, with the trend of that year and the " +
-		"same calendar). A positive weather effect means the year's weather raised demand.</p>\n")
-	r.printf("<div class=\"wide\"><table class=\"history\">\n<caption>Demand by historical year (%s)</caption>\n"+
-		"<thead><tr><th scope=\"col\">year</th><th scope=\"col\" class=\"n\">days</th><th scope=\"col\" class=\"n\">actual</th>"+
-		"<th scope=\"col\" class=\"n\">model, actual weather</th><th scope=\"col\" class=\"n\">model, normal weather</th>"+
-		"<th scope=\"col\" class=\"n\">weather-normalized</th><th scope=\"col\" class=\"n\">weather effect</th></tr></thead>\n<tbody>\n", esc(u))
+	h := &historyBlock{Unit: render.EnergyUnit(p.Unit)}
 	for _, y := range p.Normals {
 		row := sim.Row{Period: strconv.Itoa(y.Year), Info: sim.Info{Key: "history"}}
-		r.printf("<tr><th scope=\"row\">%d</th><td class=\"n\">%d</td>", y.Year, y.Days)
+		hy := historyYear{Year: y.Year, Days: y.Days, Effect: "—"}
 		for _, c := range []struct {
 			stat string
 			v    float64
 		}{{"actual", y.Actual}, {"model_at_actual_weather", y.AtActualWeather}, {"model_at_normal_weather", y.AtNormalWeather},
 			{"weather_normalized", y.Normalized}} {
-			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs("baseline", row, c.stat), fixed(c.v, valueDecimals))
+			hy.Cells = append(hy.Cells, newNumCell("baseline", row, c.stat, fixed(c.v, valueDecimals)))
 		}
-		effect := "—"
 		if y.Normalized != 0 {
-			effect = fmt.Sprintf("%+.1f %%", 100*(y.Actual/y.Normalized-1))
+			hy.Effect = fmt.Sprintf("%+.1f %%", 100*(y.Actual/y.Normalized-1))
 		}
-		r.printf("<td class=\"n\">%s</td></tr>\n", effect)
+		h.Years = append(h.Years, hy)
 	}
-	r.raw("</tbody></table></div>\n")
+	return h
 }

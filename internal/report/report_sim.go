@@ -95,9 +95,9 @@ func values(res *sim.Result, r sim.Row) []float64 {
 }
 
 // periodText describes a period with its dates when the run has them.
-func (r *report) periodText(name string) string {
-	if r.in.Base != nil {
-		for _, p := range r.in.Base.Periods {
+func (b *builder) periodText(name string) string {
+	if b.in.Base != nil {
+		for _, p := range b.in.Base.Periods {
 			if p.Name == name {
 				return fmt.Sprintf("%s: %s to %s, %d days", name, p.From, p.To, p.Days())
 			}
@@ -106,42 +106,69 @@ func (r *report) periodText(name string) string {
 	return name
 }
 
-// cellAttrs identifies a number cell for scripts and tests.
-func cellAttrs(scen string, row sim.Row, stat string) string {
-	return fmt.Sprintf(` data-scen="%s" data-period="%s" data-index="%s" data-stat="%s"`,
-		esc(scen), esc(row.Period), esc(row.Info.Key), esc(stat))
+// numCell is a number cell of a table, identified for scripts and tests by
+// scenario, period, index key and statistic key (as in SimCSV).
+type numCell struct {
+	Scen, Period, Index, Stat string
+	Text                      string
 }
 
-// tailTable writes the tail table of one period: statistics down, indices
-// across, every number cell identified by its attributes.
-func (r *report) tailTable(scen string, rows []sim.Row, caption string) {
-	r.printf("<div class=\"wide\"><table class=\"tail\" id=\"%s\">\n<caption>%s</caption>\n<thead><tr><th scope=\"col\">statistic</th>",
-		r.uniqueID("tail-"+scen+"-"+rows[0].Period), esc(caption))
+func newNumCell(scen string, row sim.Row, stat, text string) numCell {
+	return numCell{Scen: scen, Period: row.Period, Index: row.Info.Key, Stat: stat, Text: text}
+}
+
+// tailTable is what the template "tail" shows: the tail table of one
+// period, statistics down, indices across, and the probabilities of the
+// user's thresholds.
+type tailTable struct {
+	ID, Caption string
+	Columns     []struct{ Name, Unit string }
+	Stats       []tailStat
+	MeanSE      []numCell
+	Adverse     []string
+	Exceed      []exceedRow
+}
+
+// tailStat is one statistic's row of a tail table.
+type tailStat struct {
+	Label string
+	Sep   bool // a rule above: the quantiles, the risk measures, the return levels
+	Cells []numCell
+}
+
+// exceedRow is one threshold of an index.
+type exceedRow struct {
+	Name, Worse string
+	Prob, SE    numCell
+}
+
+func (b *builder) tailTable(scen string, rows []sim.Row, caption string) tailTable {
+	t := tailTable{ID: b.uniqueID("tail-" + scen + "-" + rows[0].Period), Caption: caption}
 	for _, row := range rows {
-		r.printf("<th scope=\"col\" class=\"n\">%s<span class=\"u\">%s</span></th>", esc(row.Name), esc(row.Unit))
+		t.Columns = append(t.Columns, struct{ Name, Unit string }{row.Name, row.Unit})
+		t.MeanSE = append(t.MeanSE, newNumCell(scen, row, "mean_se", fixed(row.Tail.MeanSE, seDecimals)))
+		t.Adverse = append(t.Adverse, render.AdverseSide(row))
 	}
-	r.raw("</tr></thead>\n<tbody>\n")
 	for _, s := range render.Statistics() {
-		sep := ""
-		if s.Key == "p01" || s.Key == "var95" || s.Key == "rl2" {
-			sep = " class=\"sep\""
-		}
-		r.printf("<tr%s><th scope=\"row\">%s</th>", sep, esc(statLabel(s)))
+		st := tailStat{Label: statLabel(s), Sep: s.Key == "p01" || s.Key == "var95" || s.Key == "rl2"}
 		for _, row := range rows {
-			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs(scen, row, s.Key), fixed(s.Value(row.Tail), valueDecimals))
+			st.Cells = append(st.Cells, newNumCell(scen, row, s.Key, fixed(s.Value(row.Tail), valueDecimals)))
 		}
-		r.raw("</tr>\n")
+		t.Stats = append(t.Stats, st)
 	}
-	r.raw("<tr class=\"sep\"><th scope=\"row\">s.e. of the mean</th>")
 	for _, row := range rows {
-		r.printf("<td class=\"n\"%s>%s</td>", cellAttrs(scen, row, "mean_se"), fixed(row.Tail.MeanSE, seDecimals))
+		for _, e := range row.Tail.Exceedances {
+			th := strconv.FormatFloat(e.Threshold, 'g', -1, 64)
+			dir := ">"
+			if !row.Info.HighIsAdverse {
+				dir = "<"
+			}
+			t.Exceed = append(t.Exceed, exceedRow{Name: row.Name, Worse: dir + " " + th + " " + row.Unit,
+				Prob: newNumCell(scen, row, "exceed:"+th, fixed(e.Prob, probDecimals)),
+				SE:   newNumCell(scen, row, "exceed_se:"+th, fixed(e.SE, probDecimals))})
+		}
 	}
-	r.raw("</tr>\n<tr><th scope=\"row\">adverse side</th>")
-	for _, row := range rows {
-		r.printf("<td class=\"n\">%s</td>", render.AdverseSide(row))
-	}
-	r.raw("</tr>\n</tbody></table></div>\n")
-	r.exceedTable(scen, rows)
+	return t
 }
 
 // statLabel explains the risk statistics in their row labels.
@@ -157,33 +184,6 @@ func statLabel(s render.Statistic) string {
 		return "ES 99% (mean of worst 1% of years)"
 	}
 	return s.Label
-}
-
-// exceedTable writes the probabilities of user thresholds, if any.
-func (r *report) exceedTable(scen string, rows []sim.Row) {
-	any := false
-	for _, row := range rows {
-		any = any || len(row.Tail.Exceedances) > 0
-	}
-	if !any {
-		return
-	}
-	r.raw("<div class=\"wide\"><table class=\"exceed\">\n<caption>Probability of a year worse than a threshold</caption>\n" +
-		"<thead><tr><th scope=\"col\">index</th><th scope=\"col\">worse than</th><th scope=\"col\" class=\"n\">probability</th>" +
-		"<th scope=\"col\" class=\"n\">± s.e.</th></tr></thead>\n<tbody>\n")
-	for _, row := range rows {
-		for _, e := range row.Tail.Exceedances {
-			th := strconv.FormatFloat(e.Threshold, 'g', -1, 64)
-			dir := ">"
-			if !row.Info.HighIsAdverse {
-				dir = "<"
-			}
-			r.printf("<tr><td>%s</td><td>%s %s %s</td><td class=\"n\"%s>%s</td><td class=\"n\"%s>%s</td></tr>\n",
-				esc(row.Name), dir, th, esc(row.Unit), cellAttrs(scen, row, "exceed:"+th), fixed(e.Prob, probDecimals),
-				cellAttrs(scen, row, "exceed_se:"+th), fixed(e.SE, probDecimals))
-		}
-	}
-	r.raw("</tbody></table></div>\n")
 }
 
 // byPeriodOf groups rows by period in order of first appearance.
@@ -204,11 +204,11 @@ func byPeriodOf(rows []sim.Row) [][]sim.Row {
 
 // indexFigures returns the histogram and exceedance curve of each row whose
 // per-path values are known and not all equal, and notes for the others.
-func (r *report) indexFigures(rows []sim.Row) ([]figure, []string, error) {
+func (b *builder) indexFigures(rows []sim.Row) ([]figure, []string, error) {
 	var figs []figure
 	var notes []string
 	for _, row := range rows {
-		v := values(r.in.Base, row)
+		v := values(b.in.Base, row)
 		switch {
 		case v == nil:
 			continue
@@ -235,108 +235,132 @@ func (r *report) indexFigures(rows []sim.Row) ([]figure, []string, error) {
 	return figs, notes, nil
 }
 
-// writeFigures writes figures in a grid, inside a closed <details> unless
-// open.
-func (r *report) writeFigures(figs []figure, notes []string, open bool, summary string) {
-	if len(figs) == 0 && len(notes) == 0 {
-		return
-	}
-	if !open {
-		r.printf("<details>\n<summary>%s</summary>\n", esc(summary))
-	}
-	r.raw("<div class=\"grid\">\n")
+// figures makes a figGroup of figs, giving each its id.
+func (b *builder) figures(figs []figure, notes []string, open bool, summary string) figGroup {
+	g := figGroup{Notes: notes, Open: open, Summary: summary}
 	for _, f := range figs {
-		r.writeFigure(f)
+		g.Figures = append(g.Figures, b.figure(f))
 	}
-	r.raw("</div>\n")
-	for _, n := range notes {
-		r.printf("<p class=\"note\">%s</p>\n", esc(n))
-	}
-	if !open {
-		r.raw("</details>\n")
-	}
+	return g
 }
 
-// writeSimulation writes section 3: the fan chart and, per period, the tail
+// periodBlock is what the template "period" shows: a period's heading, its
+// tail table and the plots of its indices.
+type periodBlock struct {
+	ID, Heading string
+	Table       tailTable
+	Figures     figGroup
+}
+
+// periodBlocks lays out the baseline's rows period by period: the heading
+// (idPrefix and heading followed by the period), the tail table (caption
+// followed by the period) and the plots, open for the first period.
+func (b *builder) periodBlocks(rows []sim.Row, idPrefix, heading, caption, plots string) ([]periodBlock, error) {
+	var out []periodBlock
+	for k, g := range byPeriodOf(rows) {
+		p := g[0].Period
+		blk := periodBlock{ID: b.uniqueID(idPrefix + p), Heading: heading + b.periodText(p)}
+		blk.Table = b.tailTable("baseline", g, caption+p)
+		figs, notes, err := b.indexFigures(g)
+		if err != nil {
+			return nil, err
+		}
+		blk.Figures = b.figures(figs, notes, k == 0, fmt.Sprintf("%s, %s (%d plots)", plots, p, len(figs)))
+		out = append(out, blk)
+	}
+	return out, nil
+}
+
+// runView is the simulation's settings, as the simulation section tells
+// them.
+type runView struct {
+	Paths, Year int
+	Seed        uint64
+	Start       string
+	Units       string // °C or °F
+	HDDBase     float64
+	CDDBase     float64
+	ColdBelow   float64
+}
+
+// simulationView is section 3: the fan chart and, per period, the tail
 // table with a histogram and an exceedance curve of each index.
-func (r *report) writeSimulation() error {
-	in := r.in
+type simulationView struct {
+	Run     *runView // nil without tail tables
+	Fan     *figView // nil without a fan chart
+	Periods []periodBlock
+}
+
+func (b *builder) simulationSection() (any, error) {
+	in := b.in
+	v := &simulationView{}
 	if s := in.Sim; s != nil {
 		mf := s.Manifest
 		start := "a burn-in from the model's stationary state (today's climate, no memory of recent weather)"
 		if mf.Start == sim.StartConditional {
 			start = "the last observed anomalies (the coming season, from today's state)"
 		}
-		u := degrees(mf.Units)
-		r.printf("<p>%d synthetic years for %d, each starting from %s, with seed %d: synthetic year i always draws "+
-			"the same random numbers, whatever the number of workers. Degree days use a base of %g %s for HDD and "+
-			"%g %s for CDD; a cold day has a mean below %g %s.</p>\n", mf.Paths, mf.Year, esc(start), mf.Seed,
-			mf.HDDBase, u, mf.CDDBase, u, mf.ColdBelow, u)
+		v.Run = &runView{Paths: mf.Paths, Year: mf.Year, Seed: mf.Seed, Start: start, Units: degrees(mf.Units),
+			HDDBase: mf.HDDBase, CDDBase: mf.CDDBase, ColdBelow: mf.ColdBelow}
 	}
 	if in.Fan != nil {
 		f, ok, err := fanFigure(in.Fan, in.Model)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		if ok {
-			r.raw("<h3>The simulated year</h3>\n")
-			r.writeFigure(f)
+			v.Fan = b.figure(f)
 		}
 	}
 	if in.Sim == nil {
-		return nil
+		return v, nil
 	}
-	groups := byPeriodOf(temperatureRows(in.Sim.Rows))
-	if len(groups) == 0 {
-		return nil
-	}
-	r.raw("<h3>How to read the tail tables</h3>\n<p>P1 … P99 are percentiles over the synthetic years (Hyndman–Fan " +
-		"type 4). The adverse side is high for degree days, the hottest day, cold days and cold spells, and low for " +
-		"the coldest day. VaR 95% is the adverse 95 % quantile; ES 95% (expected shortfall) is the mean of the worst " +
-		"5 % of years, always at least as adverse as VaR. The return level 1-in-T is passed on the adverse side once " +
-		"in T years on average. Each histogram marks the median and the adverse 95 % and 99 % levels; each " +
-		"exceedance curve gives, for every value, the probability that a year is at least that adverse, on a log " +
-		"scale so the rare years stay visible.</p>\n")
-	for k, g := range groups {
-		r.printf("<h3 id=\"%s\">Period %s</h3>\n", r.uniqueID("period-"+g[0].Period), esc(r.periodText(g[0].Period)))
-		r.tailTable("baseline", g, "Tail table, baseline, "+g[0].Period)
-		figs, notes, err := r.indexFigures(g)
-		if err != nil {
-			return err
-		}
-		r.writeFigures(figs, notes, k == 0, fmt.Sprintf("Histograms and exceedance curves, %s (%d plots)", g[0].Period, len(figs)))
-	}
-	return nil
+	var err error
+	v.Periods, err = b.periodBlocks(temperatureRows(in.Sim.Rows), "period-", "Period ", "Tail table, baseline, ",
+		"Histograms and exceedance curves")
+	return v, err
 }
 
-// writeScenarios writes section 4: the scenarios side by side with the
+// scenariosView is section 4: the scenarios side by side with the
 // baseline, and overlaid exceedance curves.
-func (r *report) writeScenarios() error {
-	s := r.in.Sim
-	r.raw("<p>Each scenario changes the fitted model and is simulated with the same seed and the same number of " +
-		"years, so synthetic year i of a scenario has the same random shocks as year i of the baseline (common random " +
-		"numbers). The change of the mean is therefore measured far more precisely than two independent runs would " +
-		"allow; its standard error (s.e.) is that of the paired differences.</p>\n<dl class=\"scenarios\">\n")
+type scenariosView struct {
+	Scenarios []scenarioView
+	Periods   []comparePeriod
+}
+
+// scenarioView names a scenario and what it changes.
+type scenarioView struct {
+	Name, Description string
+	What              string // "" when the scenario lists no changes
+}
+
+// comparePeriod is one period of the scenarios section.
+type comparePeriod struct {
+	ID, Heading string
+	Table       compareTable
+	Figures     figGroup
+}
+
+func (b *builder) scenariosSection() (any, error) {
+	s := b.in.Sim
+	v := &scenariosView{}
 	for _, sc := range s.Scenarios {
-		r.printf("<dt><strong>%s</strong></dt><dd>%s", esc(sc.Name), esc(sc.Description))
-		if len(sc.What) > 0 {
-			r.printf(" (%s)", esc(strings.Join(sc.What, "; ")))
-		}
-		r.raw("</dd>\n")
+		v.Scenarios = append(v.Scenarios, scenarioView{Name: sc.Name, Description: sc.Description,
+			What: strings.Join(sc.What, "; ")})
 	}
-	r.raw("</dl>\n")
-	groups := byPeriodOf(s.Rows)
-	for gi, g := range groups {
-		r.printf("<h3 id=\"%s\">Period %s</h3>\n", r.uniqueID("compare-"+g[0].Period), esc(r.periodText(g[0].Period)))
-		r.compareTable(g)
-		figs, err := r.overlayFigures(g, gi == 0)
+	for gi, g := range byPeriodOf(s.Rows) {
+		p := g[0].Period
+		cp := comparePeriod{ID: b.uniqueID("compare-" + p), Heading: "Period " + b.periodText(p)}
+		cp.Table = b.compareTable(g)
+		figs, err := b.overlayFigures(g, gi == 0)
 		if err != nil {
-			return err
+			return nil, err
 		}
-		r.writeFigures(figs, nil, gi == 0, fmt.Sprintf("Exceedance curves, baseline and scenarios, %s (%d plots)",
-			g[0].Period, len(figs)))
+		cp.Figures = b.figures(figs, nil, gi == 0, fmt.Sprintf("Exceedance curves, baseline and scenarios, %s (%d plots)",
+			p, len(figs)))
+		v.Periods = append(v.Periods, cp)
 	}
-	return nil
+	return v, nil
 }
 
 // rowPosition returns the position of row in the baseline's rows.
@@ -349,55 +373,68 @@ func rowPosition(rows []sim.Row, row sim.Row) int {
 	return -1
 }
 
-// compareTable writes the baseline and every scenario side by side for each
-// index of a period.
-func (r *report) compareTable(group []sim.Row) {
-	s := r.in.Sim
-	r.printf("<div class=\"wide\"><table class=\"compare\" id=\"%s\">\n<caption>Baseline and scenarios, %s</caption>\n"+
-		"<thead><tr><th scope=\"col\">scenario</th><th scope=\"col\" class=\"n\">mean</th><th scope=\"col\" class=\"n\">P50</th>"+
-		"<th scope=\"col\" class=\"n\">P95</th><th scope=\"col\" class=\"n\">P99</th><th scope=\"col\" class=\"n\">ES 95%%</th>"+
-		"<th scope=\"col\" class=\"n\">1-in-20</th><th scope=\"col\" class=\"n\">change of mean ± s.e.</th></tr></thead>\n<tbody>\n",
-		r.uniqueID("compare-table-"+group[0].Period), esc(group[0].Period))
-	cells := func(scen string, row sim.Row) {
-		t := row.Tail
+// compareTable is what the template "compare" shows: the baseline and every
+// scenario side by side for each index of a period.
+type compareTable struct {
+	ID, Period string
+	Indices    []compareIndex
+}
+
+// compareIndex is one index of a compareTable.
+type compareIndex struct {
+	Name, Unit, Adverse string
+	Baseline            []numCell
+	Scenarios           []compareRow
+}
+
+// compareRow is one scenario's statistics of an index and the change of
+// its mean against the baseline.
+type compareRow struct {
+	Name             string
+	Cells            []numCell
+	Change, ChangeSE numCell
+}
+
+func (b *builder) compareTable(group []sim.Row) compareTable {
+	s := b.in.Sim
+	t := compareTable{ID: b.uniqueID("compare-table-" + group[0].Period), Period: group[0].Period}
+	cells := func(scen string, row sim.Row) []numCell {
+		tl := row.Tail
+		var out []numCell
 		for _, c := range []struct {
 			stat string
 			v    float64
-		}{{"mean", t.Mean}, {"p50", t.Quantiles[4]}, {"p95", t.Quantiles[7]}, {"p99", t.Quantiles[8]},
-			{"es95", t.ES95}, {"rl20", t.ReturnLevels[3]}} {
-			r.printf("<td class=\"n\"%s>%s</td>", cellAttrs(scen, row, c.stat), fixed(c.v, valueDecimals))
+		}{{"mean", tl.Mean}, {"p50", tl.Quantiles[4]}, {"p95", tl.Quantiles[7]}, {"p99", tl.Quantiles[8]},
+			{"es95", tl.ES95}, {"rl20", tl.ReturnLevels[3]}} {
+			out = append(out, newNumCell(scen, row, c.stat, fixed(c.v, valueDecimals)))
 		}
+		return out
 	}
 	for _, base := range group {
 		k := rowPosition(s.Rows, base)
-		r.printf("<tr class=\"group sep\"><th scope=\"rowgroup\" colspan=\"8\">%s (%s), adverse side %s</th></tr>\n",
-			esc(base.Name), esc(base.Unit), render.AdverseSide(base))
-		r.raw("<tr><th scope=\"row\">baseline</th>")
-		cells("baseline", base)
-		r.raw("<td class=\"n\"></td></tr>\n")
+		ix := compareIndex{Name: base.Name, Unit: base.Unit, Adverse: render.AdverseSide(base), Baseline: cells("baseline", base)}
 		for _, sc := range s.Scenarios {
 			if k < 0 || k >= len(sc.Rows) || k >= len(sc.Changes) {
 				continue
 			}
 			row, c := sc.Rows[k], sc.Changes[k]
-			r.printf("<tr><th scope=\"row\">%s</th>", esc(sc.Name))
-			cells(sc.Name, row)
 			change := fixed(c.Mean, valueDecimals)
 			if !strings.HasPrefix(change, "-") && change != fixed(0, valueDecimals) {
 				change = "+" + change
 			}
-			r.printf("<td class=\"n\"><span%s>%s</span> ± <span%s>%s</span></td></tr>\n",
-				cellAttrs(sc.Name, row, statChangeMean), change,
-				cellAttrs(sc.Name, row, statChangeMeanSE), fixed(c.MeanSE, seDecimals))
+			ix.Scenarios = append(ix.Scenarios, compareRow{Name: sc.Name, Cells: cells(sc.Name, row),
+				Change:   newNumCell(sc.Name, row, statChangeMean, change),
+				ChangeSE: newNumCell(sc.Name, row, statChangeMeanSE, fixed(c.MeanSE, seDecimals))})
 		}
+		t.Indices = append(t.Indices, ix)
 	}
-	r.raw("</tbody></table></div>\n")
+	return t
 }
 
 // overlayFigures returns the overlaid exceedance curves of a period: every
 // index of the first period, the degree-day indices of the others.
-func (r *report) overlayFigures(group []sim.Row, first bool) ([]figure, error) {
-	in := r.in
+func (b *builder) overlayFigures(group []sim.Row, first bool) ([]figure, error) {
+	in := b.in
 	if in.Base == nil || len(in.Scenarios) != len(in.Sim.Scenarios) {
 		return nil, nil
 	}

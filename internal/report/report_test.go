@@ -697,6 +697,39 @@ func TestFitOnlyReportLeavesOutTheSimulation(t *testing.T) {
 	}
 }
 
+// TestTextOfTheInputIsEscaped puts markup into every kind of text a user
+// controls (title, file names, scenario names and descriptions, warnings):
+// html/template must show it as text, never as elements or attributes.
+func TestTextOfTheInputIsEscaped(t *testing.T) {
+	t.Parallel()
+	const evil = `<script>alert("x")</script><img src=x onerror=alert(1)>'&`
+	in := goldenInput()
+	in.Title = "title " + evil
+	in.Inputs = append(in.Inputs, InputFile{Role: "scenario", Name: `a"><img src=x>.toml`, SHA256: evil})
+	in.Model.Data.Warnings = []string{"warning " + evil}
+	in.Sim.Scenarios = []render.ScenarioReport{{Name: "scenario " + evil, Description: "description " + evil,
+		What: []string{"what " + evil}}}
+	page := renderReport(t, in)
+	doc := parse(t, page)
+	walk(doc, func(n *html.Node) {
+		if n.Type == html.ElementNode && (n.Data == "script" || n.Data == "img") {
+			t.Errorf("text of the input became a <%s> element", n.Data)
+		}
+		for _, a := range n.Attr {
+			if a.Key == "onerror" || a.Key == "src" {
+				t.Errorf("text of the input became an attribute %s=%q", a.Key, a.Val)
+			}
+		}
+	})
+	txt := text(doc)
+	for _, want := range []string{"title " + evil, "warning " + evil, "scenario " + evil, "description " + evil,
+		"what " + evil, `a"><img src=x>.toml`} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("page text lacks %q", want)
+		}
+	}
+}
+
 func TestDemandRowsAreTold(t *testing.T) {
 	t.Parallel()
 	for _, c := range []struct {
