@@ -115,8 +115,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
 		return err
 	}
-	rep, out := render.NewSimReport(runs), runs.Base
-	rep.Planning.Normals = res.Normals
+	rep, out := render.NewSimReport(res), runs.Base
 	rep.Manifest = manifest(m, modelPath, fileSHA(modelPath), out)
 	rep.Manifest.Scenarios = demoScenarios
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, fileSHA(demandPath)
@@ -128,7 +127,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return err
 	}
 	reportPath := filepath.Join(o.dir, "report.html")
-	in := &report.ReportInput{
+	meta := report.Meta{
 		Title:   fmt.Sprintf("%s and %s: %d synthetic years of %d (invented data)", demo.StationName, demo.Retailer, o.paths, year),
 		Created: time.Now(), RunTime: time.Since(start),
 		Inputs: []report.InputFile{
@@ -137,10 +136,9 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
 			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
 		},
-		Model: m, Series: seriesView(res.Fit), Sim: rep, Base: out, Scenarios: runs.Results(), Fan: runs.Fan,
-		Demand: report.NewDemandView(demo.Retailer, d, res.DemandDays.Temp, res.DemandDays.Load),
+		Manifest: rep.Manifest, Retailer: demo.Retailer,
 	}
-	if err := writeReport(reportPath, in); err != nil {
+	if err := writeReport(reportPath, res, meta); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)

@@ -406,9 +406,16 @@ func compRow(name string, t sim.Tail, change string) []string {
 		Num(t.ES95, 1), Num(t.ReturnLevels[3], 1), change}
 }
 
-// NewSimReport lays out a stress run for the renderers; the manifest, and
-// the planning tables' weather-normalized history, are left for the caller.
-func NewSimReport(s *stress.Set) *SimReport {
+// NewSimReport lays out a stress run's simulation for the renderers: the
+// baseline's and the scenarios' tail tables with their changes, and with a
+// demand model the planning tables (load-duration curve, weather-normalized
+// history). The manifest is left for the caller. It panics if res has no
+// simulation set.
+func NewSimReport(res *stress.Result) *SimReport {
+	s := res.Set
+	if s == nil {
+		panic("render: NewSimReport needs a result with a simulation set")
+	}
 	r := &SimReport{Rows: s.Rows}
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
@@ -416,7 +423,7 @@ func NewSimReport(s *stress.Set) *SimReport {
 			Rows: run.Rows, Changes: run.Changes})
 	}
 	if d := s.Config.Demand; d != nil {
-		r.Planning = &Planning{Unit: d.Unit}
+		r.Planning = &Planning{Unit: d.Unit, Normals: res.Normals}
 		if s.Fan != nil {
 			r.Planning.LoadDurationPaths, r.Planning.LoadDuration = s.Fan.Paths, s.Fan.LoadDuration
 		}

@@ -4,6 +4,14 @@
 // with the cautions, with inline SVG plots drawn by gonum/plot and no
 // script or external resource.
 //
+// New lays out the pipeline's result (stress.Run) with a Meta (title,
+// times, input files, the simulation's manifest) as an Input; Write
+// renders an Input:
+//
+//	res, err := stress.Run(ctx, job)
+//	...
+//	err = report.Write(w, report.New(res, report.Meta{Title: "...", Manifest: m}))
+//
 // The page is made by html/template from the templates embedded from
 // templates/*.html (go:embed): page.html lays out the page and each
 // section's template fills it, from views that this package builds from
@@ -18,8 +26,8 @@
 // a fixed number of decimals, and each carries data-scen, data-period,
 // data-index and data-stat attributes so that scripts can read them back.
 //
-// HTMLReport builds the page in memory and writes it with one Write, so a
-// failure leaves the writer untouched. It is safe for concurrent use on
-// different inputs (the parsed templates are shared, read only); a
-// ReportInput is only read.
+// Write builds the page in memory and writes it with one Write, so a
+// failure leaves the writer untouched. New and Write are safe for
+// concurrent use (the parsed templates are shared, read only); an Input and
+// the result behind it are only read.
 package report

@@ -16,7 +16,7 @@ import (
 	"wxstress/model"
 )
 
-// HTMLReport writes in as one self-contained HTML5 page: inline CSS and
+// Write writes in as one self-contained HTML5 page: inline CSS and
 // inline SVG plots, no script, no external resource of any kind, laid out to
 // print on A4 or Letter. Each section appears only when its input is
 // present: Data (Series or Model), Fit (Model), Simulation (Sim or Fan),
@@ -33,11 +33,11 @@ import (
 // cell carries data-scen, data-period, data-index and data-stat attributes
 // (statistic keys as in SimCSV) so that scripts can read them back.
 //
-// HTMLReport builds the page in memory and writes it with one Write, so a
-// plotting error leaves w untouched. It panics if in is nil.
-func HTMLReport(w io.Writer, in *ReportInput) error {
+// Write builds the page in memory and writes it with one Write, so a
+// plotting error leaves w untouched. It panics if in or its model is nil.
+func Write(w io.Writer, in *Input) error {
 	if in == nil || in.Model == nil {
-		panic("report: HTMLReport needs an input with a model")
+		panic("report: Write needs an input with a model")
 	}
 	p, err := newBuilder(in).page()
 	if err != nil {
@@ -61,16 +61,16 @@ var (
 	templates = template.Must(template.ParseFS(templateFiles, "templates/*.html"))
 )
 
-// builder turns a ReportInput into the page's view: the values the
+// builder turns a Input into the page's view: the values the
 // templates show, in the order the page shows them (ids are numbered in
 // that order).
 type builder struct {
-	in    *ReportInput
+	in    *Input
 	units string // "C", "F" or ""
 	ids   map[string]int
 }
 
-func newBuilder(in *ReportInput) *builder {
+func newBuilder(in *Input) *builder {
 	b := &builder{in: in, ids: map[string]int{}}
 	switch {
 	case in.Model != nil:

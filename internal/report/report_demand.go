@@ -17,12 +17,12 @@ import (
 // ordinary weekday": mid-week, away from Monday and Friday effects.
 const demandCurveDay = time.Wednesday
 
-// NewDemandView describes a fitted demand model for the report: the
+// newDemandView describes a fitted demand model for the report: the
 // observed daily pairs (temps, loads; NaN pairs are skipped when plotted),
 // the fitted load of an ordinary weekday over the observed temperature
 // range, the facts a reviewer checks (form, balance points, slopes, fit
 // quality against ASHRAE Guideline 14, noise) and the model's warnings.
-func NewDemandView(retailer string, m *model.Demand, temps, loads []float64) *DemandView {
+func newDemandView(retailer string, m *model.Demand, temps, loads []float64) *DemandView {
 	v := &DemandView{Retailer: retailer, Unit: m.Unit, Form: m.Form, Temps: temps, Loads: loads,
 		Warnings: slices.Clone(m.Warnings)}
 	lo, hi := math.Inf(1), math.Inf(-1)

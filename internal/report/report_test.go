@@ -34,71 +34,69 @@ import (
 
 var update = flag.Bool("update", false, "rewrite testdata/manifest.golden.html and docs/report.png")
 
-// demoFit is the fit of the embedded demo station, shared by the tests
-// (read-only).
-var demoFit = sync.OnceValues(func() (*calibrate.Result, error) {
-	s, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
-	if err != nil {
-		return nil, err
-	}
-	res, err := calibrate.Fit(s, nil)
-	if err != nil {
-		return nil, err
-	}
-	res.Model.ToolVersion = "0.0.0-test"
-	res.Model.Data.Description = demo.StationName + " (invented demonstration data)"
-	return res, nil
-})
-
-// demoDemand is the demand model fitted to the embedded demand history,
-// with the days it was fitted to.
-var demoDemand = sync.OnceValues(func() (*calibrate.DemandResult, error) {
-	fit, err := demoFit()
-	if err != nil {
-		return nil, err
-	}
-	dem, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
-	if err != nil {
-		return nil, err
-	}
-	days, err := calibrate.JoinDemand(dem, fit.Series)
-	if err != nil {
-		return nil, err
-	}
-	res, err := calibrate.FitDemand(days, &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit})
-	if err != nil {
-		return nil, err
-	}
-	res.Model.ToolVersion = "0.0.0-test"
-	return res, nil
-})
-
 // testCapacity is an invented daily capacity for the demo retailer, in its
 // demand unit (GJ/day).
 const testCapacity = 120000
 
-// fixture describes a report input built from the demo station.
+// fixture describes a run on the embedded demo data: paths 0 only fits the
+// temperature model; otherwise the demand history is fitted too and the
+// baseline and the scenarios are simulated with demand, keeping fanPaths
+// paths whole, with the weather-normalized history.
 type fixture struct {
 	paths, fanPaths int
-	normalPaths     int // climatological years per historical year, for weather normalization
 	scenarios       []string
-	demand          bool
 }
+
+// runDemo runs the fixture's job through the pipeline, as "wxstress demo"
+// does.
+func runDemo(fx fixture) (*stress.Result, error) {
+	temps, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		return nil, err
+	}
+	job := &stress.Job{Temps: temps, Fit: &calibrate.Settings{}, ToolVersion: "0.0.0-test"}
+	if fx.paths > 0 {
+		if job.DemandHistory, err = calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile,
+			calibrate.DemandReadOptions{}); err != nil {
+			return nil, err
+		}
+		job.DemandFit = &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit}
+		job.Config = sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Bases: sim.DefaultBases("C"), Capacity: testCapacity}
+		job.Thresholds = []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
+		job.Detail, job.Normals = fx.fanPaths, true
+		for _, name := range fx.scenarios {
+			sc, err := scenarios.Lookup(name)
+			if err != nil {
+				return nil, err
+			}
+			job.Scenarios = append(job.Scenarios, sc)
+		}
+	}
+	res, err := stress.Run(context.Background(), job)
+	if err != nil {
+		return nil, err
+	}
+	res.Model.Data.Description = demo.StationName + " (invented demonstration data)"
+	return res, nil
+}
+
+// demoFit is the temperature fit of the embedded demo station alone, shared
+// by the tests (read-only).
+var demoFit = sync.OnceValues(func() (*stress.Result, error) { return runDemo(fixture{}) })
 
 // Inputs shared by the tests: a small one (a few hundred paths, two
 // scenarios) and one the size of what "wxstress demo" makes.
 var (
-	smallInput = sync.OnceValues(func() (*ReportInput, error) {
-		return buildInput(fixture{paths: 400, fanPaths: 200, normalPaths: 50, demand: true,
-			scenarios: []string{"warm-1c", "cold-spell-10d"}})
+	smallInput = sync.OnceValues(func() (*Input, error) {
+		return buildInput(fixture{paths: 400, fanPaths: 200, scenarios: []string{"warm-1c", "cold-spell-10d"}})
 	})
-	demoInput = sync.OnceValues(func() (*ReportInput, error) {
-		return buildInput(fixture{paths: 10000, fanPaths: 2000, normalPaths: 1000, demand: true,
+	demoInput = sync.OnceValues(func() (*Input, error) {
+		return buildInput(fixture{paths: 10000, fanPaths: 2000,
 			scenarios: []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}})
 	})
 )
 
-func mustInput(t *testing.T, f func() (*ReportInput, error)) *ReportInput {
+func mustInput(t *testing.T, f func() (*Input, error)) *Input {
 	t.Helper()
 	in, err := f()
 	if err != nil {
@@ -107,74 +105,35 @@ func mustInput(t *testing.T, f func() (*ReportInput, error)) *ReportInput {
 	return in
 }
 
-// buildInput assembles a report input the way the demo command does: fit,
-// apply the scenarios, simulate each with the same configuration (and the
-// demand model), summarize and compare; then the fan, the load-duration
-// curve and the weather-normalized history.
-func buildInput(fx fixture) (*ReportInput, error) {
-	fit, err := demoFit()
+// buildInput runs the fixture through the pipeline and lays the result out
+// with New, with the manifest and input files a command would give.
+func buildInput(fx fixture) (*Input, error) {
+	res, err := runDemo(fx)
 	if err != nil {
 		return nil, err
 	}
-	m := fit.Model
-	ctx := context.Background()
-	cfg := sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Year: m.Data.LastDate.Year() + 1,
-		Bases: sim.DefaultBases(m.Data.Units)}
-	var dres *calibrate.DemandResult
-	if fx.demand {
-		if dres, err = demoDemand(); err != nil {
-			return nil, err
-		}
-		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.HolidayDates(stress.Holidays(dres.Days), nil, cfg.Year-1, cfg.Year)
+	m, c := res.Model, res.Set.Base.Config
+	meta := Meta{
+		Title:   "wxstress demo: " + demo.StationName,
+		Created: time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC),
+		RunTime: 1500 * time.Millisecond,
+		Inputs: []InputFile{{Role: "temperatures", Name: demo.StationFile, SHA256: res.Fit.Series.SHA256},
+			{Role: "demand", Name: demo.DemandFile, SHA256: res.Demand.Data.DemandSHA256}},
+		Manifest: render.Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
+			ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
+			Start: c.Start, Periods: c.Periods, SimulatedDays: res.Set.Base.SimulatedDays, Units: m.Data.Units,
+			HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
+			Scenarios: fx.scenarios, DemandModel: "demand.json", DemandSHA256: strings.Repeat("cd", 32),
+			Capacity: c.Capacity, Quantiles: render.QuantileConvention, Caution: render.Caution},
+		Retailer: demo.Retailer,
 	}
-	thresholds := []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
-	var scens []*scenarios.Scenario
-	for _, name := range fx.scenarios {
-		sc, err := scenarios.Lookup(name)
-		if err != nil {
-			return nil, err
-		}
-		scens = append(scens, sc)
-	}
-	set, err := stress.Simulate(ctx, m, cfg, scens, thresholds, fx.fanPaths)
-	if err != nil {
-		return nil, err
-	}
-	rep := render.NewSimReport(set)
-	in := &ReportInput{Model: m, Sim: rep, Base: set.Base, Scenarios: set.Results(), Fan: set.Fan}
-	c := in.Base.Config
-	rep.Manifest = render.Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
-		ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
-		Start: c.Start, Periods: c.Periods, SimulatedDays: in.Base.SimulatedDays, Units: m.Data.Units,
-		HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
-		Scenarios: fx.scenarios, Quantiles: render.QuantileConvention, Caution: render.Caution}
-	if dres != nil {
-		d, days := dres.Model, dres.Days
-		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256, rep.Manifest.Capacity = "demand.json", strings.Repeat("cd", 32), cfg.Capacity
-		normCfg := sim.Config{Seed: 1, Workers: 2, Bases: sim.DefaultBases(m.Data.Units)}
-		if rep.Planning.Normals, err = sim.WeatherNormalize(ctx, m, d, normCfg, stress.History(days), fx.normalPaths); err != nil {
-			return nil, err
-		}
-		in.Demand = NewDemandView(demo.Retailer, d, days.Temp, days.Load)
-		in.Inputs = append(in.Inputs, InputFile{Role: "demand", Name: demo.DemandFile, SHA256: d.Data.DemandSHA256})
-	}
-	s := fit.Series
-	sv := &SeriesView{Temps: s.Temps, Fitted: fit.Fitted, Z: fit.Z}
-	for i := range s.Temps {
-		sv.Dates = append(sv.Dates, s.Date(i))
-	}
-	in.Series = sv
-	in.Inputs = append([]InputFile{{Role: "temperatures", Name: demo.StationFile, SHA256: s.SHA256}}, in.Inputs...)
-	in.Title = "wxstress demo: " + demo.StationName
-	in.Created = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
-	in.RunTime = 1500 * time.Millisecond
-	return in, nil
+	return New(res, meta), nil
 }
 
-func renderReport(t *testing.T, in *ReportInput) []byte {
+func renderReport(t *testing.T, in *Input) []byte {
 	t.Helper()
 	var b bytes.Buffer
-	if err := HTMLReport(&b, in); err != nil {
+	if err := Write(&b, in); err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
@@ -207,7 +166,7 @@ func attr(n *html.Node, key string) (string, bool) {
 
 // expectedPlots counts the plots the input implies: one per plot the report
 // promises, leaving out indices whose simulated values are all equal.
-func expectedPlots(in *ReportInput) int {
+func expectedPlots(in *Input) int {
 	n := 0
 	if in.Series != nil {
 		n += 1 + 1 // record, shock histogram
@@ -528,7 +487,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 
 // goldenInput is a fixed input without any fitting or simulation, so that
 // the manifest section only changes when the report's code does.
-func goldenInput() *ReportInput {
+func goldenInput() *Input {
 	m := &model.File{
 		Schema: model.Schema, SchemaVersion: model.SchemaVersion, ToolVersion: "1.2.3",
 		Data: model.Data{File: "kestrel_bay_daily.csv", SHA256: strings.Repeat("0f", 32),
@@ -549,7 +508,7 @@ func goldenInput() *ReportInput {
 		m.Volatility.Band[k] = [2]float64{0.95 * s, 1.05 * s}
 		m.Volatility.Count[k] = 2100
 	}
-	return &ReportInput{
+	return &Input{
 		Title:   "Kestrel Bay Airfield, golden manifest",
 		Created: time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC),
 		RunTime: 2345 * time.Millisecond,
@@ -640,7 +599,7 @@ func normalize(s string) string { return strings.Join(strings.Fields(s), " ") }
 
 func TestCautionsAppearInText(t *testing.T) {
 	t.Parallel()
-	for name, in := range map[string]*ReportInput{"demo": mustInput(t, smallInput), "golden": goldenInput(),
+	for name, in := range map[string]*Input{"demo": mustInput(t, smallInput), "golden": goldenInput(),
 		"fit only": {Model: goldenInput().Model}} {
 		doc := parse(t, renderReport(t, in))
 		var body *html.Node
@@ -672,7 +631,7 @@ func TestFitOnlyReportLeavesOutTheSimulation(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	in := &ReportInput{Title: `Fit <only> & "quoted"`, Model: fit.Model}
+	in := New(fit, Meta{Title: `Fit <only> & "quoted"`})
 	page := renderReport(t, in)
 	doc := parse(t, page)
 	var sections []string
