@@ -3,6 +3,7 @@ package calibrate
 import (
 	"fmt"
 	"math"
+	"maps"
 	"math/rand/v2"
 	"slices"
 	"time"
@@ -404,7 +405,9 @@ func annualSlope(s *Series, seasonal model.Seasonal) (slope, se float64, years i
 		a.n++
 	}
 	var xs, ys []float64
-	for y, a := range byYear {
+	order := slices.Sorted(maps.Keys(byYear)) // a fixed order: the sums do not depend on map iteration
+	for _, y := range order {
+		a := byYear[y]
 		days := int(calendar.FromYMD(y+1, time.January, 1) - calendar.FromYMD(y, time.January, 1))
 		if a.n >= days*9/10 {
 			xs = append(xs, float64(y))

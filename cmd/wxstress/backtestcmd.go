@@ -9,7 +9,7 @@ import (
 
 	"wxstress/backtest"
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/render"
 	"wxstress/sim"
 )
 

@@ -14,8 +14,9 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
 	"wxstress/demo"
+	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/scenarios"
 	"wxstress/sim"
 	"wxstress/stress"
@@ -114,8 +115,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
 		return err
 	}
-	rep, out := render.NewSimReport(runs), runs.Base
-	rep.Planning.Normals = res.Normals
+	rep, out := render.NewSimReport(res), runs.Base
 	rep.Manifest = manifest(m, modelPath, fileSHA(modelPath), out)
 	rep.Manifest.Scenarios = demoScenarios
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, fileSHA(demandPath)
@@ -126,24 +126,23 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := writeSimDir(o.dir, rep, out); err != nil {
 		return err
 	}
-	report := filepath.Join(o.dir, "report.html")
-	in := &render.ReportInput{
+	reportPath := filepath.Join(o.dir, "report.html")
+	meta := report.Meta{
 		Title:   fmt.Sprintf("%s and %s: %d synthetic years of %d (invented data)", demo.StationName, demo.Retailer, o.paths, year),
 		Created: time.Now(), RunTime: time.Since(start),
-		Inputs: []render.InputFile{
+		Inputs: []report.InputFile{
 			{Role: "temperatures", Name: demo.StationFile, SHA256: series.SHA256},
 			{Role: "demand history", Name: demo.DemandFile, SHA256: dem.SHA256},
 			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
 			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
 		},
-		Model: m, Series: seriesView(res.Fit), Sim: rep, Base: out, Scenarios: runs.Results(), Fan: runs.Fan,
-		Demand: render.NewDemandView(demo.Retailer, d, res.DemandDays.Temp, res.DemandDays.Load),
+		Manifest: rep.Manifest, Retailer: demo.Retailer,
 	}
-	if err := writeReport(report, in); err != nil {
+	if err := writeReport(reportPath, res, meta); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)
-	fmt.Fprintf(stdout, "Report: %s\n", report)
+	fmt.Fprintf(stdout, "Report: %s\n", reportPath)
 	return nil
 }
 

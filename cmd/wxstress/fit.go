@@ -11,7 +11,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/report"
 	"wxstress/stress"
 )
 
@@ -127,12 +127,11 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if o.report == "" {
 		return nil
 	}
-	in := &render.ReportInput{
+	meta := report.Meta{
 		Title: "Temperature model of " + filepath.Base(o.temps), Created: time.Now(), RunTime: time.Since(start),
-		Inputs: []render.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
-		Model:  res.Model, Series: seriesView(res),
+		Inputs: []report.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
 	}
-	if err := writeReport(o.report, in); err != nil {
+	if err := writeReport(o.report, out, meta); err != nil {
 		return err
 	}
 	if o.format != "json" {

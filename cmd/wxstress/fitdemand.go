@@ -9,7 +9,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/stress"
 )

@@ -17,11 +17,12 @@ import (
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
-	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
 	"wxstress/internal/atomicfile"
+	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/model"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // emitFit prints the model summary or JSON and writes the model file.
@@ -156,16 +157,7 @@ func fileSHA(path string) string {
 	return hex.EncodeToString(h[:])
 }
 
-// writeReport renders the HTML report into path, atomically.
-func writeReport(path string, in *render.ReportInput) error {
-	return atomicfile.Write(path, func(w io.Writer) error { return render.HTMLReport(w, in) })
-}
-
-// seriesView is the observed record of a fit, for the report.
-func seriesView(res *calibrate.Result) *render.SeriesView {
-	v := &render.SeriesView{Temps: res.Series.Temps, Fitted: res.Fitted, Z: res.Z}
-	for i := range res.Series.Temps {
-		v.Dates = append(v.Dates, res.Series.Date(i))
-	}
-	return v
+// writeReport renders the HTML report of a run into path, atomically.
+func writeReport(path string, res *stress.Result, meta report.Meta) error {
+	return atomicfile.Write(path, func(w io.Writer) error { return report.Write(w, report.New(res, meta)) })
 }

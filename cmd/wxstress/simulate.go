@@ -11,7 +11,8 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/cmd/wxstress/render"
+	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -181,8 +182,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err != nil {
 		return err
 	}
-	runs := out.Set
-	rep, res := render.NewSimReport(runs), runs.Base
+	rep, res := render.NewSimReport(out), out.Set.Base
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {
@@ -194,20 +194,20 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		}
 	}
 	if o.report != "" {
-		in := &render.ReportInput{
+		meta := report.Meta{
 			Title: "Synthetic years of " + filepath.Base(o.modelPath), Created: time.Now(), RunTime: time.Since(start),
-			Inputs: []render.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
-			Model:  m, Sim: rep, Base: res, Scenarios: runs.Results(), Fan: runs.Fan,
+			Inputs:   []report.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
+			Manifest: rep.Manifest,
 		}
 		if o.demand != "" {
-			in.Inputs = append(in.Inputs, render.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
+			meta.Inputs = append(meta.Inputs, report.InputFile{Role: "demand model", Name: o.demand, SHA256: demandSum})
 		}
 		for _, f := range o.scenarios {
 			if sum := fileSHA(f); sum != "" {
-				in.Inputs = append(in.Inputs, render.InputFile{Role: "scenario", Name: f, SHA256: sum})
+				meta.Inputs = append(meta.Inputs, report.InputFile{Role: "scenario", Name: f, SHA256: sum})
 			}
 		}
-		if err := writeReport(o.report, in); err != nil {
+		if err := writeReport(o.report, out, meta); err != nil {
 			return err
 		}
 	}

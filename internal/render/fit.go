@@ -38,13 +38,13 @@ func FitSummary(w io.Writer, f *model.File) error {
 	e.printf("  %s\n", f.Trend.Rule)
 	rows := [][]string{}
 	for _, h := range f.Seasonal.Harmonics {
-		rows = append(rows, []string{fmt.Sprint(h.K), num(h.Amplitude, 3), num(h.Phase, 4),
-			num(h.PeakDayOfYear, 1), dayName(h.PeakDayOfYear)})
+		rows = append(rows, []string{fmt.Sprint(h.K), Num(h.Amplitude, 3), Num(h.Phase, 4),
+			Num(h.PeakDayOfYear, 1), DayName(h.PeakDayOfYear)})
 	}
 	e.table([]string{"harmonic", "amplitude " + u, "phase θ (rad)", "first peak (day of year)", "date"}, rows)
 	e.printf("  whole cycle: warmest on day %.1f (%s), coldest on day %.1f (%s)\n",
-		f.Seasonal.PeakDayOfYear, dayName(f.Seasonal.PeakDayOfYear),
-		f.Seasonal.TroughDayOfYear, dayName(f.Seasonal.TroughDayOfYear))
+		f.Seasonal.PeakDayOfYear, DayName(f.Seasonal.PeakDayOfYear),
+		f.Seasonal.TroughDayOfYear, DayName(f.Seasonal.TroughDayOfYear))
 
 	dg := f.Diagnostics
 	if dg != nil {
@@ -59,19 +59,19 @@ func FitSummary(w io.Writer, f *model.File) error {
 	}
 	rows = rows[:0]
 	for i, v := range f.AR.Phi {
-		rows = append(rows, []string{fmt.Sprintf("φ%d", i+1), num(v, 4), num(f.AR.PhiSE[i], 4)})
+		rows = append(rows, []string{fmt.Sprintf("φ%d", i+1), Num(v, 4), Num(f.AR.PhiSE[i], 4)})
 	}
 	if sl := f.Slow; sl != nil {
 		se := func(v float64, d int) string {
 			if v > 0 {
-				return num(v, d)
+				return Num(v, d)
 			}
 			return "—"
 		}
 		rows = append(rows,
-			[]string{"φ_slow", num(sl.Phi, 4), se(sl.PhiSE, 4)},
+			[]string{"φ_slow", Num(sl.Phi, 4), se(sl.PhiSE, 4)},
 			[]string{"  e-folding time", fmt.Sprintf("%.0f days", sl.EFoldingDays), ""},
-			[]string{"  stationary sd of F", num(sl.SD, 3) + " " + u, se(sl.SDSE, 3)},
+			[]string{"  stationary sd of F", Num(sl.SD, 3) + " " + u, se(sl.SDSE, 3)},
 			[]string{"  F at the data end", fmt.Sprintf("%+.2f ± %.2f %s", sl.State, sl.StateSD, u), ""})
 	}
 	e.table([]string{"coefficient", "estimate", "s.e."}, rows)
@@ -80,10 +80,10 @@ func FitSummary(w io.Writer, f *model.File) error {
 		e.printf("Slow part: %s\n", c.Rule)
 		if c.Setting != "none" {
 			e.table([]string{"model", "log-lik", "BIC", ""}, [][]string{
-				{"with the slow part", num(c.LogLikWith, 1), num(c.BICWith, 1), mark(c.Kept)},
-				{"fast AR alone", num(c.LogLikWithout, 1), num(c.BICWithout, 1), mark(!c.Kept)},
+				{"with the slow part", Num(c.LogLikWith, 1), Num(c.BICWith, 1), Mark(c.Kept)},
+				{"fast AR alone", Num(c.LogLikWithout, 1), Num(c.BICWithout, 1), Mark(!c.Kept)},
 			})
-			e.printf("  likelihood ratio %.2f, p-value %s (against ½χ²₁ + ½χ²₂: the null is on the boundary s_F = 0)\n", c.LR, pval(c.P))
+			e.printf("  likelihood ratio %.2f, p-value %s (against ½χ²₁ + ½χ²₂: the null is on the boundary s_F = 0)\n", c.LR, PValue(c.P))
 		}
 	}
 	if dg != nil {
@@ -102,21 +102,21 @@ func FitSummary(w io.Writer, f *model.File) error {
 	rows = rows[:0]
 	v := f.Volatility
 	for m := range 12 {
-		rows = append(rows, []string{time.Month(m + 1).String()[:3], num(v.Monthly[m], 3),
-			num(v.Band[m][0], 3) + "–" + num(v.Band[m][1], 3), fmt.Sprint(v.Count[m])})
+		rows = append(rows, []string{time.Month(m + 1).String()[:3], Num(v.Monthly[m], 3),
+			Num(v.Band[m][0], 3) + "–" + Num(v.Band[m][1], 3), fmt.Sprint(v.Count[m])})
 	}
 	e.table([]string{"month", "σ", "95% band", "innovations"}, rows)
 
-	e.printf("\nShocks: %s\n", shockText(f.Shocks))
+	e.printf("\nShocks: %s\n", ShockText(f.Shocks))
 	if dg != nil {
 		rows = rows[:0]
 		for _, s := range dg.ShockTable {
 			if s.Family == model.FamilyBootstrap {
-				rows = append(rows, []string{s.Family, "—", "—", "—", "—", mark(s.Chosen)})
+				rows = append(rows, []string{s.Family, "—", "—", "—", "—", Mark(s.Chosen)})
 				continue
 			}
-			rows = append(rows, []string{s.Family, num(s.LogLik, 1), fmt.Sprint(s.Params), num(s.AIC, 1),
-				shapeText(s), mark(s.Chosen)})
+			rows = append(rows, []string{s.Family, Num(s.LogLik, 1), fmt.Sprint(s.Params), Num(s.AIC, 1),
+				ShapeText(s), Mark(s.Chosen)})
 		}
 		e.table([]string{"family", "log-lik", "shape params", "AIC", "shape", ""}, rows)
 		writeDiagnostics(e, f)
@@ -135,16 +135,16 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 		lbRow("Ljung–Box Q(10) on z²", dg.LjungBoxZ210),
 		lbRow("Ljung–Box Q(20) on z²", dg.LjungBoxZ220),
 		lbRow("Jarque–Bera", dg.JarqueBera),
-		{"Kolmogorov–Smirnov D vs " + dg.KSFamily, num(dg.KS.Stat, 4), "", pval(dg.KS.P), verdict(dg.KS.P)},
-		{"skewness", num(dg.Skewness, 3), "", "", ""},
-		{"excess kurtosis", num(dg.ExcessKurtosis, 3), "", "", ""},
+		{"Kolmogorov–Smirnov D vs " + dg.KSFamily, Num(dg.KS.Stat, 4), "", PValue(dg.KS.P), verdict(dg.KS.P)},
+		{"skewness", Num(dg.Skewness, 3), "", "", ""},
+		{"excess kurtosis", Num(dg.ExcessKurtosis, 3), "", "", ""},
 	}
 	e.table([]string{"test", "statistic", "df", "p-value", "at 5 %"}, rows)
 	e.printf("\nPersistence: autocorrelation of X (95%% bound ±%.3f)\n", dg.ACFBound)
 	rows = rows[:0]
 	for _, lag := range []int{1, 2, 3, 5, 10, 20, 30} {
 		if lag <= len(dg.ACF) {
-			rows = append(rows, []string{fmt.Sprint(lag), num(dg.ACF[lag-1], 3), num(dg.PACF[lag-1], 3)})
+			rows = append(rows, []string{fmt.Sprint(lag), Num(dg.ACF[lag-1], 3), Num(dg.PACF[lag-1], 3)})
 		}
 	}
 	e.table([]string{"lag (days)", "ACF", "PACF"}, rows)
@@ -158,10 +158,10 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 			continue
 		}
 		row := []string{fmt.Sprintf("%d-day means", s.Days), fmt.Sprint(s.Windows),
-			num(s.Observed, 3), num(s.Model, 3), num(s.Band[0], 3) + "–" + num(s.Band[1], 3), s.Verdict}
+			Num(s.Observed, 3), Num(s.Model, 3), Num(s.Band[0], 3) + "–" + Num(s.Band[1], 3), s.Verdict}
 		if s.BandFastOnly != nil {
 			fastBand = true
-			row = append(row, num(s.BandFastOnly[0], 3)+"–"+num(s.BandFastOnly[1], 3))
+			row = append(row, Num(s.BandFastOnly[0], 3)+"–"+Num(s.BandFastOnly[1], 3))
 		}
 		rows = append(rows, row)
 	}
@@ -190,7 +190,7 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 }
 
 func lbRow(name string, t model.Test) []string {
-	return []string{name, num(t.Stat, 2), num(t.DF, 0), pval(t.P), verdict(t.P)}
+	return []string{name, Num(t.Stat, 2), Num(t.DF, 0), PValue(t.P), verdict(t.P)}
 }
 
 func verdict(p float64) string {
@@ -216,19 +216,22 @@ func orderRows(s []model.OrderScore) [][]string {
 		if i == best {
 			note = append(note, "lowest")
 		}
-		rows[i] = []string{fmt.Sprint(r.Order), num(r.BIC, 1), strings.Join(note, ", ")}
+		rows[i] = []string{fmt.Sprint(r.Order), Num(r.BIC, 1), strings.Join(note, ", ")}
 	}
 	return rows
 }
 
-func mark(b bool) string {
+// Mark is the note beside the chosen row of a model-choice table.
+func Mark(b bool) string {
 	if b {
 		return "chosen"
 	}
 	return ""
 }
 
-func shapeText(s model.FamilyScore) string {
+// ShapeText gives the shape parameters of a shock family's fit, "" for the
+// normal.
+func ShapeText(s model.FamilyScore) string {
 	switch s.Family {
 	case model.FamilyStudentT:
 		return fmt.Sprintf("ν = %.2f", s.DF)
@@ -238,7 +241,8 @@ func shapeText(s model.FamilyScore) string {
 	return ""
 }
 
-func shockText(s model.Shocks) string {
+// ShockText describes a model's shock family with its parameters.
+func ShockText(s model.Shocks) string {
 	switch s.Family {
 	case model.FamilyStudentT:
 		return fmt.Sprintf("unit-variance Student-t, ν = %.2f", s.DF)
@@ -250,8 +254,8 @@ func shockText(s model.Shocks) string {
 	return "standard normal"
 }
 
-// dayName turns a fractional day of year into a date label, e.g. "25 Jul".
-func dayName(doy float64) string {
+// DayName turns a fractional day of year into a date label, e.g. "25 Jul".
+func DayName(doy float64) string {
 	d := time.Date(2001, time.January, 1, 0, 0, 0, 0, time.UTC).AddDate(0, 0, int(doy)-1)
 	return d.Format("2 Jan")
 }

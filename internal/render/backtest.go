@@ -24,9 +24,9 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 		ev := row.Evidence
 		rows = append(rows, []string{
 			row.Index.Info().Name, row.Period, fmt.Sprint(len(row.Origins)),
-			fmt.Sprintf("%d/%d (p %s)", ev.Central50.Inside, ev.Cases, pval(ev.Central50.P)),
-			fmt.Sprintf("%d/%d (p %s)", ev.Central90.Inside, ev.Cases, pval(ev.Central90.P)),
-			pval(ev.KS.P), num(ev.ProbitSD, 2), numfmt.Fixed(ev.MeanCRPS, 1), numfmt.Fixed(ev.MeanRefCRPS, 1),
+			fmt.Sprintf("%d/%d (p %s)", ev.Central50.Inside, ev.Cases, PValue(ev.Central50.P)),
+			fmt.Sprintf("%d/%d (p %s)", ev.Central90.Inside, ev.Cases, PValue(ev.Central90.P)),
+			PValue(ev.KS.P), Num(ev.ProbitSD, 2), numfmt.Fixed(ev.MeanCRPS, 1), numfmt.Fixed(ev.MeanRefCRPS, 1),
 		})
 	}
 	e.table([]string{"index", "period", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",

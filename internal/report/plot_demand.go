@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"fmt"
@@ -6,6 +6,7 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 
+	"wxstress/internal/render"
 	"wxstress/sim"
 )
 
@@ -18,7 +19,7 @@ func quantileBands(p *plot.Plot, xs []float64, q [][]float64, what string) ([]ke
 				return q[k]
 			}
 		}
-		panic(fmt.Sprintf("render: no fan quantile %v", prob))
+		panic(fmt.Sprintf("report: no fan quantile %v", prob))
 	}
 	outer, err := band(xs, at(0.05), at(0.95), withAlpha(okSkyBlue, 110))
 	if err != nil {
@@ -80,7 +81,7 @@ func demandFanFigure(f *sim.Fan, unit string, capacity float64) (figure, error) 
 
 // loadDurationFigure plots the load-duration curve: the quantiles across
 // synthetic years of the n-th highest day of the year.
-func loadDurationFigure(pl *Planning, unit string, capacity float64, year int) (figure, error) {
+func loadDurationFigure(pl *render.Planning, unit string, capacity float64, year int) (figure, error) {
 	n := len(pl.LoadDuration[0])
 	xs := make([]float64, n)
 	for i := range xs {

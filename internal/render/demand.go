@@ -14,7 +14,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	e := &errWriter{w: w}
 	u := "°" + m.TemperatureUnits
 	d := m.Data
-	dec := demandLoadDecimals(m.Fit.MeanLoad)
+	dec := LoadDecimals(m.Fit.MeanLoad)
 	e.printf("Demand record  %s, with temperatures from %s (%s)\n", d.DemandFile, d.TemperatureFile, u)
 	e.printf("  %s to %s: %d rows, %d days fitted; %d without a load, %d without a temperature; %d holidays",
 		d.FirstDate, d.LastDate, d.Rows, d.Days, d.MissingLoad, d.MissingTemperature, d.Holidays)
@@ -22,7 +22,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		e.printf(" (column and %s)", d.HolidaysFile)
 	}
 	e.printf("; loads in %s\n", m.Unit)
-	if list := holidayListText(d); list != "" {
+	if list := HolidayListText(d); list != "" {
 		e.printf("  holidays from %s: %s\n", d.HolidaysFile, list)
 	}
 
@@ -31,7 +31,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	e.printf("\nCoefficients (%s; standard errors by OLS, conditional on the balance points)\n", m.Unit)
 	rows := [][]string{demandCoefRow("base load β0 (a Monday, not a holiday)", m.Intercept, m.SE.Intercept, dec)}
 	for i := 1; i < 7; i++ {
-		rows = append(rows, demandCoefRow(demandWeekdays[i]+" (vs Monday)", m.Weekday[i], m.SE.Weekday[i], dec))
+		rows = append(rows, demandCoefRow(Weekdays[i]+" (vs Monday)", m.Weekday[i], m.SE.Weekday[i], dec))
 	}
 	rows = append(rows, demandCoefRow("holiday", m.Holiday, m.SE.Holiday, dec))
 	if m.Heating.Present {
@@ -51,7 +51,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 
 	f := m.Fit
 	e.printf("\nFit  R² = %.4f; RMSE = %s %s (n = %d, p = %d); mean load %s %s\n",
-		f.R2, num(f.RMSE, dec), m.Unit, f.N, f.Parameters, num(f.MeanLoad, dec), m.Unit)
+		f.R2, Num(f.RMSE, dec), m.Unit, f.N, f.Parameters, Num(f.MeanLoad, dec), m.Unit)
 	e.printf("CV(RMSE) and NMBE beside the calibration levels of ASHRAE Guideline 14-2014 (from memory)\n")
 	rows = rows[:0]
 	for _, c := range f.Checks {
@@ -59,7 +59,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		if !c.Pass {
 			result = "FAILS the level"
 		}
-		rows = append(rows, []string{c.Data, fmt.Sprint(c.N), fmt.Sprint(c.P), num(c.CVRMSE, 2), demandPct(c.NMBE),
+		rows = append(rows, []string{c.Data, fmt.Sprint(c.N), fmt.Sprint(c.P), Num(c.CVRMSE, 2), DemandPercent(c.NMBE),
 			fmt.Sprintf("%s: ≤ %.0f %%, ±%.0f %%", c.Level, c.CVRMSEMax, c.NMBEMax), result})
 	}
 	e.table([]string{"compared", "n", "p", "CV(RMSE) %", "NMBE %", "guideline level", ""}, rows)
@@ -72,15 +72,15 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 
 	n := m.Noise
 	e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d pairs of consecutive days\n",
-		n.Phi, n.PhiSE, num(n.Sigma, dec), m.Unit, n.Pairs)
+		n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, n.Pairs)
 	if dg := m.Diagnostics; dg != nil {
 		rows = [][]string{
-			{"lag-1 autocorrelation of the residuals", num(dg.ACF1, 3), "", "", ""},
+			{"lag-1 autocorrelation of the residuals", Num(dg.ACF1, 3), "", "", ""},
 			lbRow("Ljung–Box Q(10) on the residuals", dg.LjungBoxResiduals),
 			lbRow("Ljung–Box Q(10) on the AR(1) innovations", dg.LjungBoxInnovations),
 			lbRow("Jarque–Bera on the innovations", dg.JarqueBera),
-			{"skewness of the innovations", num(dg.Skewness, 3), "", "", ""},
-			{"excess kurtosis of the innovations", num(dg.ExcessKurtosis, 3), "", "", ""},
+			{"skewness of the innovations", Num(dg.Skewness, 3), "", "", ""},
+			{"excess kurtosis of the innovations", Num(dg.ExcessKurtosis, 3), "", "", ""},
 		}
 		e.table([]string{"test", "statistic", "df", "p-value", "at 5 %"}, rows)
 		if dg.LjungBoxInnovations.P < 0.05 {
@@ -99,7 +99,9 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	return e.err
 }
 
-var demandWeekdays = [7]string{"Monday", "Tuesday", "Wednesday", "Thursday", "Friday", "Saturday", "Sunday"}
+// Weekdays names the days of the week in the demand model's order
+// (model.Demand.Weekday[0] is Monday).
+var Weekdays = [7]string{"Monday", "Tuesday", "Wednesday", "Thursday", "Friday", "Saturday", "Sunday"}
 
 func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 	if len(m.Forms) == 0 {
@@ -139,7 +141,7 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 		}
 		bic, delta := "—", "—"
 		if s.RSS > 0 {
-			bic, delta = num(s.BIC, 1), num(s.BIC-best, 1)
+			bic, delta = Num(s.BIC, 1), Num(s.BIC-best, 1)
 		}
 		rows = append(rows, []string{s.Form, strings.Join(bp, ", "), strings.Join(sl, ", "), fmt.Sprint(s.Parameters),
 			bic, delta, strings.Join(note, "; ")})
@@ -164,33 +166,33 @@ func demandBalanceText(m *model.Demand, u string) string {
 // standard error means the term was not estimated.
 func demandCoefRow(name string, v, se float64, dec int) []string {
 	if se == 0 {
-		return []string{name, num(v, dec), "—", "—"}
+		return []string{name, Num(v, dec), "—", "—"}
 	}
-	return []string{name, num(v, dec), num(se, dec), num(v/se, 1)}
+	return []string{name, Num(v, dec), Num(se, dec), Num(v/se, 1)}
 }
 
-// demandPct formats a percentage to two decimals, without a sign on a value that
+// DemandPercent formats a percentage to two decimals, without a sign on a value that
 // rounds to zero.
-func demandPct(v float64) string {
+func DemandPercent(v float64) string {
 	if math.Abs(v) < 0.005 {
 		return "0.00"
 	}
-	return num(v, 2)
+	return Num(v, 2)
 }
 
-// demandLoadDecimals picks decimals for loads of this size: four significant
+// LoadDecimals picks decimals for loads of this size: four significant
 // digits at the mean, at least none.
-func demandLoadDecimals(mean float64) int {
+func LoadDecimals(mean float64) int {
 	if !(mean > 0) {
 		return 2
 	}
 	return max(0, 3-int(math.Floor(math.Log10(mean))))
 }
 
-// holidayListText describes the holiday list a demand model was fitted with:
+// HolidayListText describes the holiday list a demand model was fitted with:
 // "3 dates, 4 rules (fourth Thursday of November, …)"; "" when the model
 // records none (no list, or a file written before rules).
-func holidayListText(d model.DemandData) string {
+func HolidayListText(d model.DemandData) string {
 	if d.HolidayListDates+len(d.HolidayRules) == 0 {
 		return ""
 	}

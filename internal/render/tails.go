@@ -110,7 +110,9 @@ type jsonExceed struct {
 	SE          float64 `json:"se"`
 }
 
-func adverseSide(r sim.Row) string {
+// AdverseSide is "high" or "low": the side of an index's values that is
+// adverse.
+func AdverseSide(r sim.Row) string {
 	if r.Info.HighIsAdverse {
 		return "high"
 	}
@@ -121,7 +123,7 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 	out := make([]jsonRow, len(rows))
 	for i, r := range rows {
 		t := r.Tail
-		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: adverseSide(r),
+		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: AdverseSide(r),
 			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, VaR95: t.VaR95, VaR99: t.VaR99, ES95: t.ES95, ES99: t.ES99,
 			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}}
 		for k, p := range sim.Probs {
@@ -158,29 +160,32 @@ func SimJSON(w io.Writer, r *SimReport) error {
 	}{r.Manifest, toJSONRows(r.Rows), scen, toJSONPlanning(r)})
 }
 
-// statistic is one named number of a tail table, in display order.
-type statistic struct {
-	key, label string
-	value      func(t sim.Tail) float64
+// Statistic is one named number of a tail table: its key in the CSV and the
+// report's cell attributes, its label in tables, and how to read it from a
+// tail.
+type Statistic struct {
+	Key, Label string
+	Value      func(t sim.Tail) float64
 }
 
-func statistics() []statistic {
-	s := []statistic{
+// Statistics lists the statistics of a tail table in display order.
+func Statistics() []Statistic {
+	s := []Statistic{
 		{"mean", "mean", func(t sim.Tail) float64 { return t.Mean }},
 		{"sd", "sd", func(t sim.Tail) float64 { return t.SD }},
 	}
 	for k, p := range sim.Probs {
-		s = append(s, statistic{fmt.Sprintf("p%02.0f", 100*p), fmt.Sprintf("P%.0f", 100*p),
+		s = append(s, Statistic{fmt.Sprintf("p%02.0f", 100*p), fmt.Sprintf("P%.0f", 100*p),
 			func(t sim.Tail) float64 { return t.Quantiles[k] }})
 	}
 	s = append(s,
-		statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }},
-		statistic{"es95", "ES 95%", func(t sim.Tail) float64 { return t.ES95 }},
-		statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
-		statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
+		Statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }},
+		Statistic{"es95", "ES 95%", func(t sim.Tail) float64 { return t.ES95 }},
+		Statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
+		Statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
 	)
 	for k, T := range sim.ReturnPeriods {
-		s = append(s, statistic{fmt.Sprintf("rl%d", T), fmt.Sprintf("1-in-%d", T),
+		s = append(s, Statistic{fmt.Sprintf("rl%d", T), fmt.Sprintf("1-in-%d", T),
 			func(t sim.Tail) float64 { return t.ReturnLevels[k] }})
 	}
 	return s
@@ -196,15 +201,15 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	}
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"scenario", "index", "period", "unit", "adverse", "statistic", "value"})
-	stats := statistics()
+	stats := Statistics()
 	write := func(scenario string, rows []sim.Row, changes []sim.Change) {
 		for k, row := range rows {
 			put := func(stat string, v float64) {
-				cw.Write([]string{scenario, row.Info.Key, row.Period, row.Unit, adverseSide(row), stat,
+				cw.Write([]string{scenario, row.Info.Key, row.Period, row.Unit, AdverseSide(row), stat,
 					strconv.FormatFloat(v, 'g', -1, 64)})
 			}
 			for _, s := range stats {
-				put(s.key, s.value(row.Tail))
+				put(s.Key, s.Value(row.Tail))
 			}
 			put("mean_se", row.Tail.MeanSE)
 			for _, e := range row.Tail.Exceedances {
@@ -240,7 +245,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				v float64
 			}{{"actual", y.Actual}, {"model_at_actual_weather", y.AtActualWeather},
 				{"model_at_normal_weather", y.AtNormalWeather}, {"weather_normalized", y.Normalized}} {
-				cw.Write([]string{"baseline", "history", strconv.Itoa(y.Year), energyUnit(p.Unit), "", kv.k, f(kv.v)})
+				cw.Write([]string{"baseline", "history", strconv.Itoa(y.Year), EnergyUnit(p.Unit), "", kv.k, f(kv.v)})
 			}
 		}
 	}
@@ -301,16 +306,16 @@ func writeTailTable(e *errWriter, group []sim.Row) {
 		header = append(header, fmt.Sprintf("%s (%s)", row.Name, row.Unit))
 	}
 	var rows [][]string
-	for _, s := range statistics() {
-		line := []string{s.label}
+	for _, s := range Statistics() {
+		line := []string{s.Label}
 		for _, row := range group {
-			line = append(line, num(s.value(row.Tail), 1))
+			line = append(line, Num(s.Value(row.Tail), 1))
 		}
 		rows = append(rows, line)
 	}
 	adverse := []string{"adverse side"}
 	for _, row := range group {
-		adverse = append(adverse, adverseSide(row))
+		adverse = append(adverse, AdverseSide(row))
 	}
 	e.table(header, append(rows, adverse))
 }
@@ -397,13 +402,20 @@ func writeComparison(e *errWriter, r *SimReport) {
 }
 
 func compRow(name string, t sim.Tail, change string) []string {
-	return []string{name, num(t.Mean, 1), num(t.Quantiles[4], 1), num(t.Quantiles[7], 1), num(t.Quantiles[8], 1),
-		num(t.ES95, 1), num(t.ReturnLevels[3], 1), change}
+	return []string{name, Num(t.Mean, 1), Num(t.Quantiles[4], 1), Num(t.Quantiles[7], 1), Num(t.Quantiles[8], 1),
+		Num(t.ES95, 1), Num(t.ReturnLevels[3], 1), change}
 }
 
-// NewSimReport lays out a stress run for the renderers; the manifest, and
-// the planning tables' weather-normalized history, are left for the caller.
-func NewSimReport(s *stress.Set) *SimReport {
+// NewSimReport lays out a stress run's simulation for the renderers: the
+// baseline's and the scenarios' tail tables with their changes, and with a
+// demand model the planning tables (load-duration curve, weather-normalized
+// history). The manifest is left for the caller. It panics if res has no
+// simulation set.
+func NewSimReport(res *stress.Result) *SimReport {
+	s := res.Set
+	if s == nil {
+		panic("render: NewSimReport needs a result with a simulation set")
+	}
 	r := &SimReport{Rows: s.Rows}
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
@@ -411,7 +423,7 @@ func NewSimReport(s *stress.Set) *SimReport {
 			Rows: run.Rows, Changes: run.Changes})
 	}
 	if d := s.Config.Demand; d != nil {
-		r.Planning = &Planning{Unit: d.Unit}
+		r.Planning = &Planning{Unit: d.Unit, Normals: res.Normals}
 		if s.Fan != nil {
 			r.Planning.LoadDurationPaths, r.Planning.LoadDuration = s.Fan.Paths, s.Fan.LoadDuration
 		}

@@ -1,6 +1,3 @@
-// Package render presents results: terminal tables, CSV, JSON and the HTML
-// report. It never computes a statistic; every function takes an io.Writer
-// and a result value built elsewhere.
 package render
 
 import (
@@ -40,16 +37,16 @@ func toAny(s []string) []any {
 	return out
 }
 
-// num formats a value with d decimals, "—" for NaN.
-func num(v float64, d int) string {
+// Num formats a value with d decimals, "—" for NaN.
+func Num(v float64, d int) string {
 	if math.IsNaN(v) {
 		return "—"
 	}
 	return fmt.Sprintf("%.*f", d, v)
 }
 
-// pval formats a p-value: "< 0.0001" below that.
-func pval(p float64) string {
+// PValue formats a p-value: "< 0.0001" below that.
+func PValue(p float64) string {
 	switch {
 	case math.IsNaN(p):
 		return "—"

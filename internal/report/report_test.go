@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"bytes"
@@ -25,6 +25,7 @@ import (
 	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/demo"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -33,71 +34,69 @@ import (
 
 var update = flag.Bool("update", false, "rewrite testdata/manifest.golden.html and docs/report.png")
 
-// demoFit is the fit of the embedded demo station, shared by the tests
-// (read-only).
-var demoFit = sync.OnceValues(func() (*calibrate.Result, error) {
-	s, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
-	if err != nil {
-		return nil, err
-	}
-	res, err := calibrate.Fit(s, nil)
-	if err != nil {
-		return nil, err
-	}
-	res.Model.ToolVersion = "0.0.0-test"
-	res.Model.Data.Description = demo.StationName + " (invented demonstration data)"
-	return res, nil
-})
-
-// demoDemand is the demand model fitted to the embedded demand history,
-// with the days it was fitted to.
-var demoDemand = sync.OnceValues(func() (*calibrate.DemandResult, error) {
-	fit, err := demoFit()
-	if err != nil {
-		return nil, err
-	}
-	dem, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
-	if err != nil {
-		return nil, err
-	}
-	days, err := calibrate.JoinDemand(dem, fit.Series)
-	if err != nil {
-		return nil, err
-	}
-	res, err := calibrate.FitDemand(days, &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit})
-	if err != nil {
-		return nil, err
-	}
-	res.Model.ToolVersion = "0.0.0-test"
-	return res, nil
-})
-
 // testCapacity is an invented daily capacity for the demo retailer, in its
 // demand unit (GJ/day).
 const testCapacity = 120000
 
-// fixture describes a report input built from the demo station.
+// fixture describes a run on the embedded demo data: paths 0 only fits the
+// temperature model; otherwise the demand history is fitted too and the
+// baseline and the scenarios are simulated with demand, keeping fanPaths
+// paths whole, with the weather-normalized history.
 type fixture struct {
 	paths, fanPaths int
-	normalPaths     int // climatological years per historical year, for weather normalization
 	scenarios       []string
-	demand          bool
 }
+
+// runDemo runs the fixture's job through the pipeline, as "wxstress demo"
+// does.
+func runDemo(fx fixture) (*stress.Result, error) {
+	temps, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		return nil, err
+	}
+	job := &stress.Job{Temps: temps, Fit: &calibrate.Settings{}, ToolVersion: "0.0.0-test"}
+	if fx.paths > 0 {
+		if job.DemandHistory, err = calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile,
+			calibrate.DemandReadOptions{}); err != nil {
+			return nil, err
+		}
+		job.DemandFit = &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit}
+		job.Config = sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Bases: sim.DefaultBases("C"), Capacity: testCapacity}
+		job.Thresholds = []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
+		job.Detail, job.Normals = fx.fanPaths, true
+		for _, name := range fx.scenarios {
+			sc, err := scenarios.Lookup(name)
+			if err != nil {
+				return nil, err
+			}
+			job.Scenarios = append(job.Scenarios, sc)
+		}
+	}
+	res, err := stress.Run(context.Background(), job)
+	if err != nil {
+		return nil, err
+	}
+	res.Model.Data.Description = demo.StationName + " (invented demonstration data)"
+	return res, nil
+}
+
+// demoFit is the temperature fit of the embedded demo station alone, shared
+// by the tests (read-only).
+var demoFit = sync.OnceValues(func() (*stress.Result, error) { return runDemo(fixture{}) })
 
 // Inputs shared by the tests: a small one (a few hundred paths, two
 // scenarios) and one the size of what "wxstress demo" makes.
 var (
-	smallInput = sync.OnceValues(func() (*ReportInput, error) {
-		return buildInput(fixture{paths: 400, fanPaths: 200, normalPaths: 50, demand: true,
-			scenarios: []string{"warm-1c", "cold-spell-10d"}})
+	smallInput = sync.OnceValues(func() (*Input, error) {
+		return buildInput(fixture{paths: 400, fanPaths: 200, scenarios: []string{"warm-1c", "cold-spell-10d"}})
 	})
-	demoInput = sync.OnceValues(func() (*ReportInput, error) {
-		return buildInput(fixture{paths: 10000, fanPaths: 2000, normalPaths: 1000, demand: true,
+	demoInput = sync.OnceValues(func() (*Input, error) {
+		return buildInput(fixture{paths: 10000, fanPaths: 2000,
 			scenarios: []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}})
 	})
 )
 
-func mustInput(t *testing.T, f func() (*ReportInput, error)) *ReportInput {
+func mustInput(t *testing.T, f func() (*Input, error)) *Input {
 	t.Helper()
 	in, err := f()
 	if err != nil {
@@ -106,74 +105,35 @@ func mustInput(t *testing.T, f func() (*ReportInput, error)) *ReportInput {
 	return in
 }
 
-// buildInput assembles a report input the way the demo command does: fit,
-// apply the scenarios, simulate each with the same configuration (and the
-// demand model), summarize and compare; then the fan, the load-duration
-// curve and the weather-normalized history.
-func buildInput(fx fixture) (*ReportInput, error) {
-	fit, err := demoFit()
+// buildInput runs the fixture through the pipeline and lays the result out
+// with New, with the manifest and input files a command would give.
+func buildInput(fx fixture) (*Input, error) {
+	res, err := runDemo(fx)
 	if err != nil {
 		return nil, err
 	}
-	m := fit.Model
-	ctx := context.Background()
-	cfg := sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Year: m.Data.LastDate.Year() + 1,
-		Bases: sim.DefaultBases(m.Data.Units)}
-	var dres *calibrate.DemandResult
-	if fx.demand {
-		if dres, err = demoDemand(); err != nil {
-			return nil, err
-		}
-		cfg.Demand, cfg.Capacity, cfg.Holidays = dres.Model, testCapacity, sim.HolidayDates(stress.Holidays(dres.Days), nil, cfg.Year-1, cfg.Year)
+	m, c := res.Model, res.Set.Base.Config
+	meta := Meta{
+		Title:   "wxstress demo: " + demo.StationName,
+		Created: time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC),
+		RunTime: 1500 * time.Millisecond,
+		Inputs: []InputFile{{Role: "temperatures", Name: demo.StationFile, SHA256: res.Fit.Series.SHA256},
+			{Role: "demand", Name: demo.DemandFile, SHA256: res.Demand.Data.DemandSHA256}},
+		Manifest: render.Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
+			ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
+			Start: c.Start, Periods: c.Periods, SimulatedDays: res.Set.Base.SimulatedDays, Units: m.Data.Units,
+			HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
+			Scenarios: fx.scenarios, DemandModel: "demand.json", DemandSHA256: strings.Repeat("cd", 32),
+			Capacity: c.Capacity, Quantiles: render.QuantileConvention, Caution: render.Caution},
+		Retailer: demo.Retailer,
 	}
-	thresholds := []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
-	var scens []*scenarios.Scenario
-	for _, name := range fx.scenarios {
-		sc, err := scenarios.Lookup(name)
-		if err != nil {
-			return nil, err
-		}
-		scens = append(scens, sc)
-	}
-	set, err := stress.Simulate(ctx, m, cfg, scens, thresholds, fx.fanPaths)
-	if err != nil {
-		return nil, err
-	}
-	rep := NewSimReport(set)
-	in := &ReportInput{Model: m, Sim: rep, Base: set.Base, Scenarios: set.Results(), Fan: set.Fan}
-	c := in.Base.Config
-	rep.Manifest = Manifest{Tool: "wxstress", ToolVersion: "0.0.0-test", ModelFile: "kestrel_model.json",
-		ModelSHA256: strings.Repeat("ab", 32), DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year,
-		Start: c.Start, Periods: c.Periods, SimulatedDays: in.Base.SimulatedDays, Units: m.Data.Units,
-		HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow, Shocks: m.Shocks.Family,
-		Scenarios: fx.scenarios, Quantiles: QuantileConvention, Caution: Caution}
-	if dres != nil {
-		d, days := dres.Model, dres.Days
-		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256, rep.Manifest.Capacity = "demand.json", strings.Repeat("cd", 32), cfg.Capacity
-		normCfg := sim.Config{Seed: 1, Workers: 2, Bases: sim.DefaultBases(m.Data.Units)}
-		if rep.Planning.Normals, err = sim.WeatherNormalize(ctx, m, d, normCfg, stress.History(days), fx.normalPaths); err != nil {
-			return nil, err
-		}
-		in.Demand = NewDemandView(demo.Retailer, d, days.Temp, days.Load)
-		in.Inputs = append(in.Inputs, InputFile{Role: "demand", Name: demo.DemandFile, SHA256: d.Data.DemandSHA256})
-	}
-	s := fit.Series
-	sv := &SeriesView{Temps: s.Temps, Fitted: fit.Fitted, Z: fit.Z}
-	for i := range s.Temps {
-		sv.Dates = append(sv.Dates, s.Date(i))
-	}
-	in.Series = sv
-	in.Inputs = append([]InputFile{{Role: "temperatures", Name: demo.StationFile, SHA256: s.SHA256}}, in.Inputs...)
-	in.Title = "wxstress demo: " + demo.StationName
-	in.Created = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
-	in.RunTime = 1500 * time.Millisecond
-	return in, nil
+	return New(res, meta), nil
 }
 
-func renderReport(t *testing.T, in *ReportInput) []byte {
+func renderReport(t *testing.T, in *Input) []byte {
 	t.Helper()
 	var b bytes.Buffer
-	if err := HTMLReport(&b, in); err != nil {
+	if err := Write(&b, in); err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
@@ -206,7 +166,7 @@ func attr(n *html.Node, key string) (string, bool) {
 
 // expectedPlots counts the plots the input implies: one per plot the report
 // promises, leaving out indices whose simulated values are all equal.
-func expectedPlots(in *ReportInput) int {
+func expectedPlots(in *Input) int {
 	n := 0
 	if in.Series != nil {
 		n += 1 + 1 // record, shock histogram
@@ -403,7 +363,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 	in := mustInput(t, smallInput)
 	doc := parse(t, renderReport(t, in))
 	var js bytes.Buffer
-	if err := SimJSON(&js, in.Sim); err != nil {
+	if err := render.SimJSON(&js, in.Sim); err != nil {
 		t.Fatal(err)
 	}
 	var out struct {
@@ -510,7 +470,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 	if p == nil || len(p.LoadDuration) == 0 || len(p.Normals) == 0 {
 		t.Fatal("the fixture has no planning tables to check")
 	}
-	for _, rank := range LoadDurationRanks {
+	for _, rank := range render.LoadDurationRanks {
 		if rank <= len(p.LoadDuration[0]) {
 			need("baseline", sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}},
 				fmt.Sprintf("rank%d:p05", rank), fmt.Sprintf("rank%d:p50", rank), fmt.Sprintf("rank%d:p95", rank))
@@ -527,7 +487,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 
 // goldenInput is a fixed input without any fitting or simulation, so that
 // the manifest section only changes when the report's code does.
-func goldenInput() *ReportInput {
+func goldenInput() *Input {
 	m := &model.File{
 		Schema: model.Schema, SchemaVersion: model.SchemaVersion, ToolVersion: "1.2.3",
 		Data: model.Data{File: "kestrel_bay_daily.csv", SHA256: strings.Repeat("0f", 32),
@@ -548,19 +508,19 @@ func goldenInput() *ReportInput {
 		m.Volatility.Band[k] = [2]float64{0.95 * s, 1.05 * s}
 		m.Volatility.Count[k] = 2100
 	}
-	return &ReportInput{
+	return &Input{
 		Title:   "Kestrel Bay Airfield, golden manifest",
 		Created: time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC),
 		RunTime: 2345 * time.Millisecond,
 		Inputs: []InputFile{{Role: "temperatures", Name: "kestrel_bay_daily.csv", SHA256: strings.Repeat("0f", 32)},
 			{Role: "scenario", Name: "cold_spell.toml", SHA256: strings.Repeat("c4", 32)}},
 		Model: m,
-		Sim: &SimReport{Manifest: Manifest{Tool: "wxstress", ToolVersion: "1.2.3", ModelFile: "model.json",
+		Sim: &render.SimReport{Manifest: render.Manifest{Tool: "wxstress", ToolVersion: "1.2.3", ModelFile: "model.json",
 			ModelSHA256: strings.Repeat("9e", 32), DataSHA256: strings.Repeat("0f", 32), Seed: 7, Paths: 10000,
 			Year: 2026, Start: "climate", Periods: []string{"year", "heating", "cooling"}, SimulatedDays: 457,
 			Units: "C", HDDBase: 18, CDDBase: 18, ColdBelow: 0, Shocks: "skew-t",
 			Scenarios: []string{"warm-1c", "cold_spell.toml"}, DemandModel: "demand.json",
-			DemandSHA256: strings.Repeat("d1", 32), Capacity: 120000, Quantiles: QuantileConvention, Caution: Caution}},
+			DemandSHA256: strings.Repeat("d1", 32), Capacity: 120000, Quantiles: render.QuantileConvention, Caution: render.Caution}},
 	}
 }
 
@@ -593,7 +553,7 @@ func TestManifestGolden(t *testing.T) {
 	}
 	want, err := os.ReadFile(path)
 	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/wxstress/render -run TestManifestGolden -update)", err)
+		t.Fatalf("%v (run go test ./internal/report -run TestManifestGolden -update)", err)
 	}
 	if got != string(want) {
 		t.Errorf("manifest section differs from %s (regenerate with -update if the change is meant):\n%s", path,
@@ -626,7 +586,7 @@ func TestManifestShowsTheRun(t *testing.T) {
 	txt := text(doc)
 	for _, want := range []string{"wxstress 1.2.3", "2026-12-01 09:30:00 UTC", "2.345s", in.Sim.Manifest.ModelSHA256,
 		in.Inputs[1].SHA256, "cold_spell.toml", "10000", "2026", "year, heating, cooling", "HDD 18 °C",
-		"warm-1c, cold_spell.toml", QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
+		"warm-1c, cold_spell.toml", render.QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
 		in.Sim.Manifest.DemandSHA256, "120000"} {
 		if !strings.Contains(txt, want) {
 			t.Errorf("manifest lacks %q", want)
@@ -639,7 +599,7 @@ func normalize(s string) string { return strings.Join(strings.Fields(s), " ") }
 
 func TestCautionsAppearInText(t *testing.T) {
 	t.Parallel()
-	for name, in := range map[string]*ReportInput{"demo": mustInput(t, smallInput), "golden": goldenInput(),
+	for name, in := range map[string]*Input{"demo": mustInput(t, smallInput), "golden": goldenInput(),
 		"fit only": {Model: goldenInput().Model}} {
 		doc := parse(t, renderReport(t, in))
 		var body *html.Node
@@ -649,7 +609,7 @@ func TestCautionsAppearInText(t *testing.T) {
 			}
 		})
 		txt := normalize(text(body))
-		caution := normalize(Caution)
+		caution := normalize(render.Caution)
 		if c := strings.Count(txt, caution); c < 2 {
 			t.Errorf("%s: the caution appears %d times, want it at the top and in the manifest", name, c)
 		}
@@ -671,7 +631,7 @@ func TestFitOnlyReportLeavesOutTheSimulation(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	in := &ReportInput{Title: `Fit <only> & "quoted"`, Model: fit.Model}
+	in := New(fit, Meta{Title: `Fit <only> & "quoted"`})
 	page := renderReport(t, in)
 	doc := parse(t, page)
 	var sections []string
@@ -693,6 +653,39 @@ func TestFitOnlyReportLeavesOutTheSimulation(t *testing.T) {
 	}
 	if !bytes.Contains(page, []byte("Fit &lt;only&gt; &amp; &#34;quoted&#34;")) || bytes.Contains(page, []byte("<only>")) {
 		t.Error("the title is not escaped")
+	}
+}
+
+// TestTextOfTheInputIsEscaped puts markup into every kind of text a user
+// controls (title, file names, scenario names and descriptions, warnings):
+// html/template must show it as text, never as elements or attributes.
+func TestTextOfTheInputIsEscaped(t *testing.T) {
+	t.Parallel()
+	const evil = `<script>alert("x")</script><img src=x onerror=alert(1)>'&`
+	in := goldenInput()
+	in.Title = "title " + evil
+	in.Inputs = append(in.Inputs, InputFile{Role: "scenario", Name: `a"><img src=x>.toml`, SHA256: evil})
+	in.Model.Data.Warnings = []string{"warning " + evil}
+	in.Sim.Scenarios = []render.ScenarioReport{{Name: "scenario " + evil, Description: "description " + evil,
+		What: []string{"what " + evil}}}
+	page := renderReport(t, in)
+	doc := parse(t, page)
+	walk(doc, func(n *html.Node) {
+		if n.Type == html.ElementNode && (n.Data == "script" || n.Data == "img") {
+			t.Errorf("text of the input became a <%s> element", n.Data)
+		}
+		for _, a := range n.Attr {
+			if a.Key == "onerror" || a.Key == "src" {
+				t.Errorf("text of the input became an attribute %s=%q", a.Key, a.Val)
+			}
+		}
+	})
+	txt := text(doc)
+	for _, want := range []string{"title " + evil, "warning " + evil, "scenario " + evil, "description " + evil,
+		"what " + evil, `a"><img src=x>.toml`} {
+		if !strings.Contains(txt, want) {
+			t.Errorf("page text lacks %q", want)
+		}
 	}
 }
 
@@ -862,7 +855,7 @@ func TestChromiumRendersReport(t *testing.T) {
 		t.Errorf("screenshot has %d colours, want at least %d: the page did not render", len(colours), minColours)
 	}
 	if *update {
-		if err := os.WriteFile(filepath.Join("..", "..", "..", "docs", "report.png"), b, 0o644); err != nil {
+		if err := os.WriteFile(filepath.Join("..", "..", "docs", "report.png"), b, 0o644); err != nil {
 			t.Fatal(err)
 		}
 	}

@@ -1,4 +1,4 @@
-package render
+package report
 
 import (
 	"bytes"
@@ -20,6 +20,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"wxstress/calendar"
+	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/shocks"
 	"wxstress/sim"
@@ -144,7 +145,7 @@ var (
 func toSVG(p *plot.Plot, w, h vg.Length, label string) (s string, err error) {
 	defer func() {
 		if r := recover(); r != nil { // gonum/plot panics on some degenerate data
-			err = fmt.Errorf("render: plot %q: %v", label, r)
+			err = fmt.Errorf("report: plot %q: %v", label, r)
 		}
 	}()
 	c := vgsvg.New(w, h)
@@ -763,7 +764,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 			return figure{}, err
 		}
 		p.Add(l)
-		key = append(key, keyItem{fmt.Sprintf("%s = %s", mk.label, num(mk.value, 1)), mk.color, mk.style})
+		key = append(key, keyItem{fmt.Sprintf("%s = %s", mk.label, render.Num(mk.value, 1)), mk.color, mk.style})
 	}
 	p.Y.Min = 0
 	below, above := 0, 0
@@ -777,7 +778,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 	caption := ""
 	if below+above > 0 {
 		caption = fmt.Sprintf("Beyond the axis: %d years below %s and %d above %s (see the exceedance curve).",
-			below, num(lo, 1), above, num(hi, 1))
+			below, render.Num(lo, 1), above, render.Num(hi, 1))
 	}
 	svg, err := toSVG(p, smallW, smallH, fmt.Sprintf("Histogram of %s, %s", r.Name, r.Period))
 	return figure{ID: id, SVG: svg, Key: key, Caption: caption}, err

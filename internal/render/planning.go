@@ -52,7 +52,7 @@ func writePlanning(e *errWriter, r *SimReport) {
 	e.printf("\nPeak-day demand for capacity planning (%s)\n", p.Unit)
 	rows := [][]string{}
 	for _, l := range levels {
-		rows = append(rows, []string{l.Period, num(l.P50, 0), num(l.P90, 0), num(l.In20, 0), num(l.In50, 0), num(l.Max, 0)})
+		rows = append(rows, []string{l.Period, Num(l.P50, 0), Num(l.P90, 0), Num(l.In20, 0), Num(l.In50, 0), Num(l.Max, 0)})
 	}
 	e.table([]string{"period", "50/50 (P50)", "90/10 (P90)", "1-in-20", "1-in-50", "ES 99%"}, rows)
 	e.printf("  50/50 and 90/10: the peak exceeded in one year in two and in one in ten (common practice in\n" +
@@ -67,7 +67,7 @@ func writePlanning(e *errWriter, r *SimReport) {
 			}
 			line := []string{fmt.Sprint(rank)}
 			for k := range sim.FanProbs {
-				line = append(line, num(p.LoadDuration[k][rank-1], 0))
+				line = append(line, Num(p.LoadDuration[k][rank-1], 0))
 			}
 			rows = append(rows, line)
 		}
@@ -92,12 +92,12 @@ func writeNormals(e *errWriter, normals []sim.YearNormal, unit string) {
 	if len(normals) == 0 {
 		return
 	}
-	u := energyUnit(unit)
+	u := EnergyUnit(unit)
 	e.printf("\nWeather-normalized demand by historical year (%s)\n", u)
 	rows := [][]string{}
 	for _, y := range normals {
-		rows = append(rows, []string{fmt.Sprint(y.Year), fmt.Sprint(y.Days), num(y.Actual, 0), num(y.AtActualWeather, 0),
-			num(y.AtNormalWeather, 0), num(y.Normalized, 0), fmt.Sprintf("%+.1f%%", 100*(y.Actual/y.Normalized-1))})
+		rows = append(rows, []string{fmt.Sprint(y.Year), fmt.Sprint(y.Days), Num(y.Actual, 0), Num(y.AtActualWeather, 0),
+			Num(y.AtNormalWeather, 0), Num(y.Normalized, 0), fmt.Sprintf("%+.1f%%", 100*(y.Actual/y.Normalized-1))})
 	}
 	e.table([]string{"year", "days", "actual", "model, actual weather", "model, normal weather", "weather-normalized",
 		"weather effect"}, rows)
@@ -105,7 +105,9 @@ func writeNormals(e *errWriter, normals []sim.YearNormal, unit string) {
 		"  climatological simulations of that year, with the trend at that year and the same calendar)\n")
 }
 
-func energyUnit(unit string) string {
+// EnergyUnit is the unit of a period's energy for daily loads in unit
+// ("GJ" for "GJ/day").
+func EnergyUnit(unit string) string {
 	return sim.Energy.Info().Unit("C", unit)
 }
 
