@@ -2,8 +2,8 @@ package calibrate
 
 import (
 	"fmt"
-	"math"
 	"maps"
+	"math"
 	"math/rand/v2"
 	"slices"
 	"time"
