@@ -99,7 +99,7 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 		opt.Paths = DefaultPaths
 	}
 	if opt.Bases == (sim.Bases{}) {
-		opt.Bases = sim.DefaultBases(string(s.Units))
+		opt.Bases = sim.BasesFor(s.Units)
 	}
 	var jobs []job
 	for _, name := range opt.Periods {

@@ -94,18 +94,6 @@ const fahrenheitHint = 45.0
 // a gap of more than a year usually means a mistyped date.
 const longGap = 365
 
-// ParseUnits reads a units name: C or F in any case, also degC, degF, °C and
-// °F.
-//
-// Deprecated: use model.ParseUnits.
-func ParseUnits(s string) (Units, error) {
-	u, err := model.ParseUnits(s)
-	if err != nil {
-		return "", fmt.Errorf("calibrate: unknown units %q: valid choices are C and F (also degC, degF, °C, °F)", s)
-	}
-	return u, nil
-}
-
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
 func ReadFile(path string, opt ReadOptions) (*Series, error) {
 	return readPath(path, func(r io.Reader) (*Series, error) { return ReadCSV(r, path, opt) })

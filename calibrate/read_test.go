@@ -76,33 +76,6 @@ var kestrelStart = calendar.FromYMD(2019, time.March, 1)
 
 const kestrelDays = 800 // a little over two years
 
-func TestParseUnits(t *testing.T) {
-	t.Parallel()
-	good := []struct {
-		in   string
-		want Units
-	}{
-		{"C", Celsius}, {"c", Celsius}, {"degC", Celsius}, {"DEGC", Celsius}, {"°C", Celsius}, {" °c ", Celsius},
-		{"F", Fahrenheit}, {"f", Fahrenheit}, {"degF", Fahrenheit}, {"°F", Fahrenheit}, {"DegF", Fahrenheit},
-	}
-	for _, c := range good {
-		got, err := ParseUnits(c.in)
-		if err != nil || got != c.want {
-			t.Errorf("ParseUnits(%q) = %q, %v; want %q", c.in, got, err, c.want)
-		}
-	}
-	for _, in := range []string{"", "K", "celsius degrees", "°", "deg", "CF"} {
-		_, err := ParseUnits(in)
-		if err == nil {
-			t.Errorf("ParseUnits(%q) accepted", in)
-			continue
-		}
-		if msg := err.Error(); !strings.HasPrefix(msg, "calibrate: ") || !strings.Contains(msg, "C and F") {
-			t.Errorf("ParseUnits(%q) error %q does not list the valid choices", in, msg)
-		}
-	}
-}
-
 func TestReadColumnVariants(t *testing.T) {
 	t.Parallel()
 	days := kestrelBay(kestrelStart, kestrelDays, 0, 1)

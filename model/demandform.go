@@ -54,11 +54,6 @@ func DemandFormNames() []string {
 	return out
 }
 
-// DemandForms lists the change-point forms in the order reports show them.
-//
-// Deprecated: use AllDemandForms or DemandFormNames, which return copies.
-var DemandForms = DemandFormNames()
-
 // index returns f's position in demandForms, or −1.
 func (f DemandForm) index() int {
 	for i, d := range demandForms {

@@ -18,11 +18,6 @@ var fanProbs = [...]float64{0.05, 0.25, 0.50, 0.75, 0.95}
 // holds, in increasing order (a copy).
 func FanQuantileProbs() []float64 { return slices.Clone(fanProbs[:]) }
 
-// FanProbs are the daily quantiles a fan chart shows.
-//
-// Deprecated: use FanQuantileProbs. Changing FanProbs changes nothing.
-var FanProbs = FanQuantileProbs()
-
 // Fan holds daily detail of the target year across paths: Q[k][d] is the
 // quantile FanQuantileProbs()[k] of the temperature on Dates[d]. With a
 // demand model it also holds the demand's daily quantiles (DemandQ), its

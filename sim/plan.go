@@ -36,17 +36,6 @@ func BasesFor(u model.Units) Bases {
 	return Bases{HDD: b, CDD: b, ColdBelow: u.ColdThreshold()}
 }
 
-// DefaultBases returns BasesFor the units "F", or for "C" given anything
-// else.
-//
-// Deprecated: use BasesFor.
-func DefaultBases(units string) Bases {
-	if model.Units(units) == model.Fahrenheit {
-		return BasesFor(model.Fahrenheit)
-	}
-	return BasesFor(model.Celsius)
-}
-
 // segment is a run of accumulated days [lo, hi) that no period boundary
 // splits; periods are unions of consecutive segments.
 type segment struct{ lo, hi int }

@@ -16,7 +16,7 @@ func Record(m *model.File, from, to calendar.Date, seed uint64, i int) ([]float6
 	if to < from {
 		return nil, fmt.Errorf("sim: record from %s to %s is empty", from, to)
 	}
-	cfg := Config{Paths: 1, Seed: seed, Year: to.Year(), Start: StartClimate, Bases: DefaultBases(m.Data.Units)}
+	cfg := Config{Paths: 1, Seed: seed, Year: to.Year(), Start: StartClimate, Bases: BasesFor(model.Units(m.Data.Units))}
 	if err := cfg.Validate(m); err != nil {
 		return nil, err
 	}

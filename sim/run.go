@@ -467,11 +467,3 @@ func max3(a, b, c float64) float64 {
 	}
 	return a
 }
-
-// HolidayDates is calendar.HolidaysIn: the holidays of the years a run
-// simulates (SimulatedYears) from listed dates and rules.
-//
-// Deprecated: use calendar.HolidaysIn.
-func HolidayDates(dates []calendar.Date, rules []calendar.HolidayRule, fromYear, toYear int) []calendar.Date {
-	return calendar.HolidaysIn(dates, rules, fromYear, toYear)
-}

@@ -23,18 +23,6 @@ func TailQuantileProbs() []float64 { return slices.Clone(tailProbs[:]) }
 // Tail holds, in increasing order (a copy).
 func TailReturnPeriods() []int { return slices.Clone(tailReturnPeriods[:]) }
 
-// Probs are the probabilities of the quantile columns of a tail table.
-//
-// Deprecated: use TailQuantileProbs, and Tail.Quantile to read a quantile.
-// Changing Probs changes nothing.
-var Probs = TailQuantileProbs()
-
-// ReturnPeriods are the T of the 1-in-T return levels, in years.
-//
-// Deprecated: use TailReturnPeriods, and Tail.ReturnLevel to read a level.
-// Changing ReturnPeriods changes nothing.
-var ReturnPeriods = TailReturnPeriods()
-
 // Tail summarises the distribution of one aggregate across paths.
 //
 // Quantiles use gonum's stat.LinInterp: linear interpolation of the

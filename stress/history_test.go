@@ -11,6 +11,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/demo"
+	"wxstress/model"
 	"wxstress/sim"
 )
 
@@ -28,7 +29,7 @@ func TestHistoricalSeasonsRecomputed(t *testing.T) {
 		t.Fatal(err)
 	}
 	res, err := Run(context.Background(), &Job{Temps: series, Fit: &calibrate.Settings{},
-		Config:  sim.Config{Paths: 4000, Seed: 1, Periods: []string{"heating", "year"}, Bases: sim.DefaultBases("C")},
+		Config:  sim.Config{Paths: 4000, Seed: 1, Periods: []string{"heating", "year"}, Bases: sim.BasesFor(model.Celsius)},
 		History: true})
 	if err != nil {
 		t.Fatal(err)

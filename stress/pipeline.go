@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 
+	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/model"
 	"wxstress/scenarios"
@@ -132,7 +133,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	if job.Normals && res.DemandDays != nil {
 		var err error
 		res.Normals, err = sim.WeatherNormalize(ctx, res.Model, res.Demand,
-			sim.Config{Seed: job.Config.Seed, Bases: sim.DefaultBases(res.Model.Data.Units)}, History(res.DemandDays), NormalPaths)
+			sim.Config{Seed: job.Config.Seed, Bases: sim.BasesFor(model.Units(res.Model.Data.Units))}, History(res.DemandDays), NormalPaths)
 		if err != nil {
 			return nil, err
 		}
@@ -176,7 +177,7 @@ func (job *Job) holidays(res *Result, cfg *sim.Config) error {
 		if err != nil {
 			return err
 		}
-		cfg.Holidays = sim.HolidayDates(Holidays(res.DemandDays), nil, first, last)
+		cfg.Holidays = calendar.HolidaysIn(Holidays(res.DemandDays), nil, first, last)
 		return nil
 	}
 	if h == nil {
@@ -186,6 +187,6 @@ func (job *Job) holidays(res *Result, cfg *sim.Config) error {
 	if err != nil {
 		return err
 	}
-	cfg.Holidays = sim.HolidayDates(h.Dates, h.Rules, first, last)
+	cfg.Holidays = calendar.HolidaysIn(h.Dates, h.Rules, first, last)
 	return nil
 }

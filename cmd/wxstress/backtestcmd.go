@@ -10,6 +10,7 @@ import (
 	"wxstress/backtest"
 	"wxstress/calibrate"
 	"wxstress/internal/render"
+	"wxstress/model"
 	"wxstress/sim"
 )
 
@@ -80,9 +81,9 @@ func (o *backtestOptions) validate() error {
 		}
 	}
 	if o.units != "" {
-		u, err := calibrate.ParseUnits(o.units)
+		u, err := model.ParseUnits(o.units)
 		if err != nil {
-			return usagef("backtest: --units: %v", err)
+			return usagef("backtest: --units %q: want C or F (also degC, degF, °C, °F)", o.units)
 		}
 		o.readOpts.Units = u
 	}
@@ -101,7 +102,7 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if err != nil {
 		return err
 	}
-	b := sim.DefaultBases(string(series.Units))
+	b := sim.BasesFor(series.Units)
 	if o.fs.Changed("hdd-base") {
 		b.HDD = o.hddBase
 	}

@@ -17,6 +17,7 @@ import (
 	"wxstress/demo"
 	"wxstress/internal/render"
 	"wxstress/internal/report"
+	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
 	"wxstress/stress"
@@ -91,7 +92,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	job := &stress.Job{
 		Temps: series, Fit: &calibrate.Settings{},
 		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
-		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.DefaultBases("C"), Capacity: demoCapacity},
+		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
 		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, ToolVersion: version,
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))

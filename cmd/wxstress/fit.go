@@ -12,6 +12,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/internal/report"
+	"wxstress/model"
 	"wxstress/stress"
 )
 
@@ -67,9 +68,9 @@ func (o *fitOptions) validate() error {
 		return usagef("fit: --format %q: want table or json", o.format)
 	}
 	if o.units != "" {
-		u, err := calibrate.ParseUnits(o.units)
+		u, err := model.ParseUnits(o.units)
 		if err != nil {
-			return usagef("fit: --units: %v", err)
+			return usagef("fit: --units %q: want C or F (also degC, degF, °C, °F)", o.units)
 		}
 		o.readOpts.Units = u
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"context"
 	"io"
-	"slices"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -68,7 +67,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.demand, "demand", "", "daily demand CSV: date, load and an optional holiday column (required)")
 	fs.StringVar(&o.unit, "unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
 	fs.StringVar(&o.holidays, "holidays", "", "holiday dates and rules (fixed 12-25, 4 Thu Nov, last Mon May, easter -2): one per line, or CSV with a date and/or rule column")
-	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandForms, ", "))
+	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandFormNames(), ", "))
 	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
 	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
@@ -87,13 +86,13 @@ func (o *fitDemandOptions) validate() error {
 	if o.format != "table" && o.format != "json" {
 		return usagef("fit-demand: --format %q: want table or json", o.format)
 	}
-	if o.form != "auto" && !slices.Contains(model.DemandForms, o.form) {
-		return usagef("fit-demand: --form %q: want auto, %s", o.form, strings.Join(model.DemandForms, ", "))
+	if o.form != "auto" && !model.DemandForm(o.form).Valid() {
+		return usagef("fit-demand: --form %q: want auto, %s", o.form, strings.Join(model.DemandFormNames(), ", "))
 	}
 	if o.units != "" {
-		u, err := calibrate.ParseUnits(o.units)
+		u, err := model.ParseUnits(o.units)
 		if err != nil {
-			return usagef("fit-demand: --units: %v", err)
+			return usagef("fit-demand: --units %q: want C or F (also degC, degF, °C, °F)", o.units)
 		}
 		o.readOpts.Units = u
 	}

@@ -163,7 +163,7 @@ func TestFitDemandErrors(t *testing.T) {
 		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--form", "6p"}, exitUsage,
 			`--form "6p": want auto, 3p-heating, 3p-cooling, 4p, 5p`},
 		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--format", "xml"}, exitUsage, "want table or json"},
-		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--units", "K"}, exitUsage, "valid choices are C and F"},
+		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--units", "K"}, exitUsage, "want C or F"},
 		{[]string{"--bogus"}, exitUsage, "unknown flag"},
 		{[]string{"--temps", demoTemps, "--demand", "/nonexistent/d.csv", "--unit", "GJ/day"}, exitFailure, "no such file"},
 		{[]string{"--temps", demoTemps, "--demand", bad, "--unit", "GJ/day"}, exitFailure, bad + `:3:12: field load: not a number: "n/a"`},

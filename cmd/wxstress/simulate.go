@@ -133,7 +133,7 @@ func (o *simulateOptions) validate() error {
 
 // config builds the simulation settings for model m.
 func (o *simulateOptions) config(m *model.File) sim.Config {
-	b := sim.DefaultBases(m.Data.Units)
+	b := sim.BasesFor(model.Units(m.Data.Units))
 	if o.fs.Changed("hdd-base") {
 		b.HDD = o.hddBase
 	}

@@ -16,7 +16,7 @@ var LoadDurationRanks = []int{1, 2, 3, 5, 10, 20, 30, 60, 90, 120, 180, 270, 365
 type Planning struct {
 	Unit string // demand unit, e.g. GJ/day
 	// LoadDuration is from the first LoadDurationPaths paths of the baseline:
-	// Bands[k][r] is quantile sim.FanProbs[k] of the (r+1)-th highest day.
+	// Bands[k][r] is quantile sim.FanQuantileProbs()[k] of the (r+1)-th highest day.
 	LoadDurationPaths int
 	LoadDuration      [][]float64
 	Normals           []sim.YearNormal
@@ -37,7 +37,7 @@ func peakLevels(rows []sim.Row) []peakLevel {
 			continue
 		}
 		t := r.Tail
-		out = append(out, peakLevel{r.Period, t.Quantiles[4], t.Quantiles[6], t.ReturnLevels[3], t.ReturnLevels[4], t.ES99})
+		out = append(out, peakLevel{r.Period, t.Quantile(0.50), t.Quantile(0.90), t.ReturnLevel(20), t.ReturnLevel(50), t.ES99})
 	}
 	return out
 }
@@ -66,13 +66,13 @@ func writePlanning(e *errWriter, r *SimReport) {
 				break
 			}
 			line := []string{fmt.Sprint(rank)}
-			for k := range sim.FanProbs {
+			for k := range sim.FanQuantileProbs() {
 				line = append(line, Num(p.LoadDuration[k][rank-1], 0))
 			}
 			rows = append(rows, line)
 		}
 		header := []string{"n-th highest day"}
-		for _, q := range sim.FanProbs {
+		for _, q := range sim.FanQuantileProbs() {
 			header = append(header, fmt.Sprintf("P%.0f", 100*q))
 		}
 		e.table(header, rows)
@@ -158,7 +158,7 @@ func toJSONPlanning(r *SimReport) *jsonPlanning {
 	if p.LoadDuration != nil {
 		for rank := 1; rank <= len(p.LoadDuration[0]); rank++ {
 			q := map[string]float64{}
-			for k, pr := range sim.FanProbs {
+			for k, pr := range sim.FanQuantileProbs() {
 				q[fmt.Sprintf("%.2f", pr)] = p.LoadDuration[k][rank-1]
 			}
 			j.LoadDuration = append(j.LoadDuration, jsonRank{rank, q})

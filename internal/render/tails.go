@@ -8,6 +8,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
 	"wxstress/internal/numfmt"
 
 	"wxstress/sim"
@@ -126,11 +127,11 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: AdverseSide(r),
 			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, VaR95: t.VaR95, VaR99: t.VaR99, ES95: t.ES95, ES99: t.ES99,
 			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}}
-		for k, p := range sim.Probs {
-			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantiles[k]
+		for _, p := range sim.TailQuantileProbs() {
+			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantile(p)
 		}
-		for k, T := range sim.ReturnPeriods {
-			j.ReturnLevels[strconv.Itoa(T)] = t.ReturnLevels[k]
+		for _, T := range sim.TailReturnPeriods() {
+			j.ReturnLevels[strconv.Itoa(T)] = t.ReturnLevel(T)
 		}
 		for _, e := range t.Exceedances {
 			j.Exceedance = append(j.Exceedance, jsonExceed{e.Threshold, e.Prob, e.SE})
@@ -174,9 +175,9 @@ func Statistics() []Statistic {
 		{"mean", "mean", func(t sim.Tail) float64 { return t.Mean }},
 		{"sd", "sd", func(t sim.Tail) float64 { return t.SD }},
 	}
-	for k, p := range sim.Probs {
+	for _, p := range sim.TailQuantileProbs() {
 		s = append(s, Statistic{fmt.Sprintf("p%02.0f", 100*p), fmt.Sprintf("P%.0f", 100*p),
-			func(t sim.Tail) float64 { return t.Quantiles[k] }})
+			func(t sim.Tail) float64 { return t.Quantile(p) }})
 	}
 	s = append(s,
 		Statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }},
@@ -184,9 +185,9 @@ func Statistics() []Statistic {
 		Statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
 		Statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
 	)
-	for k, T := range sim.ReturnPeriods {
+	for _, T := range sim.TailReturnPeriods() {
 		s = append(s, Statistic{fmt.Sprintf("rl%d", T), fmt.Sprintf("1-in-%d", T),
-			func(t sim.Tail) float64 { return t.ReturnLevels[k] }})
+			func(t sim.Tail) float64 { return t.ReturnLevel(T) }})
 	}
 	return s
 }
@@ -234,7 +235,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	if p := r.Planning; p != nil {
 		f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 		for rank := 1; p.LoadDuration != nil && rank <= len(p.LoadDuration[0]); rank++ {
-			for k, q := range sim.FanProbs {
+			for k, q := range sim.FanQuantileProbs() {
 				cw.Write([]string{"baseline", "load-duration", "year", p.Unit, "high",
 					fmt.Sprintf("rank%d:p%02.0f", rank, 100*q), f(p.LoadDuration[k][rank-1])})
 			}
@@ -402,8 +403,8 @@ func writeComparison(e *errWriter, r *SimReport) {
 }
 
 func compRow(name string, t sim.Tail, change string) []string {
-	return []string{name, Num(t.Mean, 1), Num(t.Quantiles[4], 1), Num(t.Quantiles[7], 1), Num(t.Quantiles[8], 1),
-		Num(t.ES95, 1), Num(t.ReturnLevels[3], 1), change}
+	return []string{name, Num(t.Mean, 1), Num(t.Quantile(0.50), 1), Num(t.Quantile(0.95), 1), Num(t.Quantile(0.99), 1),
+		Num(t.ES95, 1), Num(t.ReturnLevel(20), 1), change}
 }
 
 // NewSimReport lays out a stress run's simulation for the renderers: the

@@ -11,10 +11,10 @@ import (
 )
 
 // quantileBands draws the P5–P95 and P25–P75 bands and the median of
-// q[k][i] (k over sim.FanProbs) against xs, and returns their key.
+// q[k][i] (k over sim.FanQuantileProbs()) against xs, and returns their key.
 func quantileBands(p *plot.Plot, xs []float64, q [][]float64, what string) ([]keyItem, error) {
 	at := func(prob float64) []float64 {
-		for k, v := range sim.FanProbs {
+		for k, v := range sim.FanQuantileProbs() {
 			if v == prob {
 				return q[k]
 			}

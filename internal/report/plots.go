@@ -591,7 +591,7 @@ func shockHistFigure(z []float64, m *model.File) (figure, bool, error) {
 // fanFigure plots the daily quantiles of simulated temperature with the
 // observed climatology.
 func fanFigure(f *sim.Fan, m *model.File) (figure, bool, error) {
-	if f == nil || len(f.Dates) < 2 || len(f.Q) != len(sim.FanProbs) {
+	if f == nil || len(f.Dates) < 2 || len(f.Q) != len(sim.FanQuantileProbs()) {
 		return figure{}, false, nil
 	}
 	xs := make([]float64, len(f.Dates))
@@ -731,7 +731,7 @@ func quantileMarks(r sim.Row) []struct {
 		color color.Color
 		style string
 	}{
-		{"P50", r.Tail.Quantiles[4], okBlack, "line"},
+		{"P50", r.Tail.Quantile(0.50), okBlack, "line"},
 		{l95, r.Tail.VaR95, okOrange, "dash"},
 		{l99, r.Tail.VaR99, okVermillion, "line"},
 	}
@@ -856,11 +856,11 @@ func exceedanceFigure(id string, r sim.Row, values []float64) (figure, error) {
 	p.Add(l)
 	var rl plotter.XYs
 	var names []string
-	for k, T := range sim.ReturnPeriods {
+	for _, T := range sim.TailReturnPeriods() {
 		if T > len(values) {
 			continue
 		}
-		rl = append(rl, plotter.XY{X: r.Tail.ReturnLevels[k], Y: -math.Log10(float64(T))})
+		rl = append(rl, plotter.XY{X: r.Tail.ReturnLevel(T), Y: -math.Log10(float64(T))})
 		names = append(names, fmt.Sprintf("1-in-%d", T))
 	}
 	d, err := dots(rl, okVermillion, 2.6)

@@ -192,8 +192,8 @@ func (b *builder) planning() (*planningBlock, error) {
 		}
 	}
 	p := in.Sim.Planning
-	hasFan := in.Fan != nil && len(in.Fan.DemandQ) == len(sim.FanProbs)
-	hasLD := p != nil && len(p.LoadDuration) == len(sim.FanProbs) && len(p.LoadDuration[0]) > 0
+	hasFan := in.Fan != nil && len(in.Fan.DemandQ) == len(sim.FanQuantileProbs())
+	hasLD := p != nil && len(p.LoadDuration) == len(sim.FanQuantileProbs()) && len(p.LoadDuration[0]) > 0
 	if len(peaks) == 0 && !hasFan && !hasLD {
 		return nil, nil
 	}
@@ -206,7 +206,7 @@ func (b *builder) planning() (*planningBlock, error) {
 		for _, c := range []struct {
 			stat string
 			v    float64
-		}{{"p50", t.Quantiles[4]}, {"p90", t.Quantiles[6]}, {"rl20", t.ReturnLevels[3]}, {"rl50", t.ReturnLevels[4]},
+		}{{"p50", t.Quantile(0.50)}, {"p90", t.Quantile(0.90)}, {"rl20", t.ReturnLevel(20)}, {"rl50", t.ReturnLevel(50)},
 			{"es99", t.ES99}} {
 			pr.Cells = append(pr.Cells, newNumCell("baseline", row, c.stat, fixed(c.v, valueDecimals)))
 		}
@@ -235,7 +235,7 @@ func (b *builder) planning() (*planningBlock, error) {
 
 func newLoadDurationTable(p *render.Planning, unit string) *loadDurationTable {
 	t := &loadDurationTable{Unit: unit, Paths: p.LoadDurationPaths}
-	for _, q := range sim.FanProbs {
+	for _, q := range sim.FanQuantileProbs() {
 		t.Probs = append(t.Probs, fmt.Sprintf("P%.0f", 100*q))
 	}
 	row := sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}}
@@ -244,7 +244,7 @@ func newLoadDurationTable(p *render.Planning, unit string) *loadDurationTable {
 			break
 		}
 		rr := rankRow{Rank: rank}
-		for k, q := range sim.FanProbs {
+		for k, q := range sim.FanQuantileProbs() {
 			rr.Cells = append(rr.Cells, newNumCell("baseline", row, fmt.Sprintf("rank%d:p%02.0f", rank, 100*q),
 				fixed(p.LoadDuration[k][rank-1], valueDecimals)))
 		}

@@ -404,8 +404,8 @@ func (b *builder) compareTable(group []sim.Row) compareTable {
 		for _, c := range []struct {
 			stat string
 			v    float64
-		}{{"mean", tl.Mean}, {"p50", tl.Quantiles[4]}, {"p95", tl.Quantiles[7]}, {"p99", tl.Quantiles[8]},
-			{"es95", tl.ES95}, {"rl20", tl.ReturnLevels[3]}} {
+		}{{"mean", tl.Mean}, {"p50", tl.Quantile(0.50)}, {"p95", tl.Quantile(0.95)}, {"p99", tl.Quantile(0.99)},
+			{"es95", tl.ES95}, {"rl20", tl.ReturnLevel(20)}} {
 			out = append(out, newNumCell(scen, row, c.stat, fixed(c.v, valueDecimals)))
 		}
 		return out

@@ -61,7 +61,7 @@ func runDemo(fx fixture) (*stress.Result, error) {
 			return nil, err
 		}
 		job.DemandFit = &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit}
-		job.Config = sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Bases: sim.DefaultBases("C"), Capacity: testCapacity}
+		job.Config = sim.Config{Paths: fx.paths, Seed: 1, Workers: 2, Bases: sim.BasesFor(model.Celsius), Capacity: testCapacity}
 		job.Thresholds = []sim.Threshold{{Index: sim.HDD, Period: "year", Value: 3300}, {Index: sim.Coldest, Value: -15}}
 		job.Detail, job.Normals = fx.fanPaths, true
 		for _, name := range fx.scenarios {
