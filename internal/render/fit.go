@@ -111,7 +111,7 @@ func FitSummary(w io.Writer, f *model.File) error {
 	if dg != nil {
 		rows = rows[:0]
 		for _, s := range dg.ShockTable {
-			if s.Family == model.FamilyBootstrap {
+			if f, _ := model.LookupFamily(s.Family); !f.Parametric() {
 				rows = append(rows, []string{s.Family, "—", "—", "—", "—", Mark(s.Chosen)})
 				continue
 			}
@@ -228,31 +228,11 @@ func Mark(b bool) string {
 	}
 	return ""
 }
-
-// ShapeText gives the shape parameters of a shock family's fit, "" for the
-// normal.
-func ShapeText(s model.FamilyScore) string {
-	switch s.Family {
-	case model.FamilyStudentT:
-		return fmt.Sprintf("ν = %.2f", s.DF)
-	case model.FamilySkewT:
-		return fmt.Sprintf("ν = %.2f, ξ = %.3f", s.DF, s.Skew)
-	}
-	return ""
-}
+// ShapeText is the family's shape parameters as reports show them.
+func ShapeText(s model.FamilyScore) string { return s.ShapeText() }
 
 // ShockText describes a model's shock family with its parameters.
-func ShockText(s model.Shocks) string {
-	switch s.Family {
-	case model.FamilyStudentT:
-		return fmt.Sprintf("unit-variance Student-t, ν = %.2f", s.DF)
-	case model.FamilySkewT:
-		return fmt.Sprintf("unit-variance skewed Student-t, ν = %.2f, ξ = %.3f (ξ < 1: longer cold tail)", s.DF, s.Skew)
-	case model.FamilyBootstrap:
-		return "seasonal bootstrap of the standardized innovations (same calendar month)"
-	}
-	return "standard normal"
-}
+func ShockText(s model.Shocks) string { return s.Text() }
 
 // DayName turns a fractional day of year into a date label, e.g. "25 Jul".
 func DayName(doy float64) string {

@@ -522,20 +522,16 @@ func qqFigure(th, smp []float64, family string) (figure, error) {
 // the chosen family, or for the bootstrap the parametric family the KS test
 // used.
 func shockDist(m *model.File) (shocks.Dist, string) {
-	family, nu, xi := m.Shocks.Family, m.Shocks.DF, m.Shocks.Skew
-	if family == model.FamilyBootstrap && m.Diagnostics != nil {
-		family = m.Diagnostics.KSFamily
+	sh := m.Shocks
+	if f, _ := model.LookupFamily(sh.Family); !f.Parametric() && m.Diagnostics != nil {
 		for _, s := range m.Diagnostics.ShockTable {
-			if s.Family == family {
-				nu, xi = s.DF, s.Skew
+			if s.Family == m.Diagnostics.KSFamily {
+				sh = s.Shocks()
 			}
 		}
 	}
-	switch {
-	case family == model.FamilyStudentT && nu > 2 && !math.IsInf(nu, 0):
-		return shocks.StudentT{Nu: nu}, fmt.Sprintf("Student-t (ν = %.2f)", nu)
-	case family == model.FamilySkewT && nu > 2 && !math.IsInf(nu, 0) && xi > 0:
-		return shocks.SkewT{Nu: nu, Xi: xi}, fmt.Sprintf("skewed Student-t (ν = %.2f, ξ = %.3f)", nu, xi)
+	if d := sh.Dist(); d != nil && sh.Family != model.FamilyNormal {
+		return d, model.FamilyLabel(sh.Family) + " (" + sh.ShapeText() + ")"
 	}
 	return shocks.Normal{}, "normal"
 }

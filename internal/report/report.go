@@ -241,17 +241,7 @@ func maxOf(v []float64) float64 {
 	return out
 }
 
-func familyName(f string) string {
-	switch f {
-	case model.FamilyStudentT:
-		return "Student-t"
-	case model.FamilySkewT:
-		return "skewed Student-t"
-	case model.FamilyBootstrap:
-		return "seasonal bootstrap"
-	}
-	return f
-}
+func familyName(f string) string { return model.FamilyLabel(f) }
 
 // figView is a plot as the template "figure" shows it.
 type figView struct {
