@@ -345,17 +345,7 @@ func truncate(s *calibrate.Series, cut calendar.Date) *calibrate.Series {
 // realized returns the record's days of p, missing ones filled with m's
 // mean for the date, and the number filled.
 func realized(s *calibrate.Series, m *model.File, p sim.Period) ([]float64, int) {
-	days := make([]float64, 0, p.Days())
-	missing := 0
-	for d := p.From; d <= p.To; d++ {
-		v := s.Temps[int(d-s.Start)]
-		if math.IsNaN(v) {
-			v = m.Mean(d.ModelTime())
-			missing++
-		}
-		days = append(days, v)
-	}
-	return days, missing
+	return s.Span(p.From, p.To, func(d calendar.Date) float64 { return m.Mean(d.ModelTime()) })
 }
 
 func aggregate(r *sim.Result, x sim.Index) []float64 {

@@ -37,6 +37,22 @@ type Series struct {
 // End returns the last day of the series.
 func (s *Series) End() calendar.Date { return s.Start + calendar.Date(len(s.Temps)-1) }
 
+// Span returns the record's days from..to (which must lie inside it), each
+// missing day replaced by fill(date), and how many were filled.
+func (s *Series) Span(from, to calendar.Date, fill func(calendar.Date) float64) ([]float64, int) {
+	days := make([]float64, 0, int(to-from)+1)
+	missing := 0
+	for d := from; d <= to; d++ {
+		v := s.Temps[int(d-s.Start)]
+		if math.IsNaN(v) {
+			v = fill(d)
+			missing++
+		}
+		days = append(days, v)
+	}
+	return days, missing
+}
+
 // Date returns the date of index i.
 func (s *Series) Date(i int) calendar.Date { return s.Start + calendar.Date(i) }
 

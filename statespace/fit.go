@@ -72,20 +72,9 @@ func Fit(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
 		start.SDSlow, start.PhiSlow = 0, 0
 		starts = []Params{start}
 	}
-	var best *optimize.Result
-	var firstErr error
-	for _, s := range starts {
-		res, err := minimize(nll, encode(s, slow), 1e-10)
-		if err != nil {
-			firstErr = err
-			continue
-		}
-		if best == nil || res.F < best.F {
-			best = res
-		}
-	}
-	if best == nil {
-		return nil, firstErr
+	best, err := bestOf(nll, starts, slow, 1e-10)
+	if err != nil {
+		return nil, err
 	}
 	prm, _ := decode(best.X, p, slow)
 	return newFitted(x, month, prm, -best.F, slow), nil
@@ -117,20 +106,9 @@ func FitLean(x []float64, month []uint8, start Params, slow bool) (*Fitted, erro
 		}
 		return -LogLik(x, month, prm)
 	}
-	var best *optimize.Result
-	var firstErr error
-	for _, st := range starts {
-		res, err := minimize(nll, encode(st, slow), 1e-9)
-		if err != nil {
-			firstErr = err
-			continue
-		}
-		if best == nil || res.F < best.F {
-			best = res
-		}
-	}
-	if best == nil {
-		return nil, firstErr
+	best, err := bestOf(nll, starts, slow, 1e-9)
+	if err != nil {
+		return nil, err
 	}
 	prm, _ := decode(best.X, p, slow)
 	out := &Fitted{Params: prm, LogLik: -best.F, N: countObserved(x), K: p + 12}
@@ -184,6 +162,27 @@ func newFitted(x []float64, month []uint8, prm Params, ll float64, slow bool) *F
 	}
 	out.SE = standardErrors(x, month, prm, slow)
 	return out
+}
+
+// bestOf minimizes nll from each start and returns the lowest result; an
+// error only when no start gave one.
+func bestOf(nll func([]float64) float64, starts []Params, slow bool, rel float64) (*optimize.Result, error) {
+	var best *optimize.Result
+	var firstErr error
+	for _, st := range starts {
+		res, err := minimize(nll, encode(st, slow), rel)
+		if err != nil {
+			firstErr = err
+			continue
+		}
+		if best == nil || res.F < best.F {
+			best = res
+		}
+	}
+	if best == nil {
+		return nil, firstErr
+	}
+	return best, nil
 }
 
 // minimize runs BFGS with central-difference gradients until the objective

@@ -91,15 +91,9 @@ func Historical(s *calibrate.Series, m *model.File, set *Set) (*HistoricalSeason
 				continue
 			}
 			shift := h.ShiftPerYear * float64(cfg.Year-y)
-			days := make([]float64, 0, p.Days())
-			missing := 0
-			for d := p.From; d <= p.To; d++ {
-				v := s.Temps[int(d-s.Start)]
-				if math.IsNaN(v) {
-					v = m.Mean(d.ModelTime())
-					missing++
-				}
-				days = append(days, v+shift)
+			days, missing := s.Span(p.From, p.To, func(d calendar.Date) float64 { return m.Mean(d.ModelTime()) })
+			for i := range days {
+				days[i] += shift
 			}
 			if float64(missing) > MaxSeasonGaps*float64(len(days)) {
 				continue
