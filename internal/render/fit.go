@@ -228,6 +228,7 @@ func Mark(b bool) string {
 	}
 	return ""
 }
+
 // ShapeText is the family's shape parameters as reports show them.
 func ShapeText(s model.FamilyScore) string { return s.ShapeText() }
 
