@@ -27,6 +27,7 @@ import (
 	"wxstress/evidence"
 	"wxstress/model"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // Defaults.
@@ -171,11 +172,12 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 				out[i].skipped = true
 				return nil
 			}
-			res, err := sim.Run(gctx, m, sim.Config{Paths: opt.Paths, Seed: opt.Seed, Workers: 1, Year: j.p.To.Year(),
-				Start: sim.StartConditional, Periods: []string{j.period}, Bases: opt.Bases})
+			run, err := stress.Run(gctx, &stress.Job{Model: m, Config: sim.Config{Paths: opt.Paths, Seed: opt.Seed, Workers: 1,
+				Year: j.p.To.Year(), Start: sim.StartConditional, Periods: []string{j.period}, Bases: opt.Bases}})
 			if err != nil {
 				return fmt.Errorf("backtest: %s %d: %w", j.period, j.p.To.Year(), err)
 			}
+			res := run.Set.Base
 			vals := sim.TempIndices(days, opt.Bases)
 			for k, x := range indices {
 				sample := aggregate(res, x)

@@ -19,6 +19,9 @@ import (
 // also has a slow component (persistence 0.985, sd 0.6 °C), which the fit
 // must find beside the fast AR(1) of φ = 0.72.
 func TestRecoversDemoTruth(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the 71-year demo record")
+	}
 	t.Parallel()
 	s, err := ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, ReadOptions{Units: Celsius})
 	if err != nil {

@@ -3,12 +3,17 @@ package render
 import (
 	"fmt"
 	"io"
+	"slices"
 
 	"wxstress/sim"
 )
 
-// LoadDurationRanks are the ranks of the load-duration curve the tables show.
-var LoadDurationRanks = []int{1, 2, 3, 5, 10, 20, 30, 60, 90, 120, 180, 270, 365}
+// loadDurationRanks are the ranks of the load-duration curve the tables show.
+var loadDurationRanks = [...]int{1, 2, 3, 5, 10, 20, 30, 60, 90, 120, 180, 270, 365}
+
+// LoadDurationRanks returns the ranks of the load-duration curve the tables
+// show (a copy).
+func LoadDurationRanks() []int { return slices.Clone(loadDurationRanks[:]) }
 
 // Planning is what a capacity planner reads beside the tail tables: the peak
 // day at the usual design levels, the load-duration curve and the weather-
@@ -61,7 +66,7 @@ func writePlanning(e *errWriter, r *SimReport) {
 		e.printf("\nLoad-duration curve of %d (the n-th highest day of the year, %d paths; %s)\n",
 			r.Manifest.Year, p.LoadDurationPaths, p.Unit)
 		rows = rows[:0]
-		for _, rank := range LoadDurationRanks {
+		for _, rank := range loadDurationRanks {
 			if rank > len(p.LoadDuration[0]) {
 				break
 			}

@@ -239,7 +239,7 @@ func newLoadDurationTable(p *render.Planning, unit string) *loadDurationTable {
 		t.Probs = append(t.Probs, fmt.Sprintf("P%.0f", 100*q))
 	}
 	row := sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}}
-	for _, rank := range render.LoadDurationRanks {
+	for _, rank := range render.LoadDurationRanks() {
 		if rank > len(p.LoadDuration[0]) {
 			break
 		}

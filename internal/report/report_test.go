@@ -470,7 +470,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 	if p == nil || len(p.LoadDuration) == 0 || len(p.Normals) == 0 {
 		t.Fatal("the fixture has no planning tables to check")
 	}
-	for _, rank := range render.LoadDurationRanks {
+	for _, rank := range render.LoadDurationRanks() {
 		if rank <= len(p.LoadDuration[0]) {
 			need("baseline", sim.Row{Period: "year", Info: sim.Info{Key: "load-duration"}},
 				fmt.Sprintf("rank%d:p05", rank), fmt.Sprintf("rank%d:p50", rank), fmt.Sprintf("rank%d:p95", rank))
@@ -794,6 +794,9 @@ func TestHistogramRangeLeavesOutLoneExtremes(t *testing.T) {
 }
 
 func TestDemoSizedReport(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs the demo-sized pipeline")
+	}
 	t.Parallel()
 	page := renderReport(t, mustInput(t, demoInput))
 	const maxBytes = 3 << 20 // the demo report must stay easy to mail and open
@@ -807,6 +810,9 @@ func TestDemoSizedReport(t *testing.T) {
 const chromium = "/usr/bin/chromium"
 
 func TestChromiumRendersReport(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a browser")
+	}
 	t.Parallel()
 	if _, err := os.Stat(chromium); err != nil {
 		t.Skipf("Chromium not found at %s (apt-get install chromium): %v", chromium, err)
