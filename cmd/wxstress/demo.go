@@ -93,7 +93,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		Temps: series, Fit: &calibrate.Settings{},
 		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
 		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
-		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, ToolVersion: version,
+		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, ToolVersion: version,
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))
 	res, err := stress.Run(ctx, job)

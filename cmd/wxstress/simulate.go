@@ -35,7 +35,8 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --scenario warm-1c --scenario scenarios/cold_spell.toml
   wxstress simulate --model model.json --demand demand.json --capacity 95000 --holidays holidays.txt
   wxstress simulate --model model.json --paths 1000000 --out results/
-  wxstress simulate --model model.json --scenario warm-2c --report stress.html`,
+  wxstress simulate --model model.json --scenario warm-2c --report stress.html
+  wxstress simulate --model model.json --history station.csv --period heating`,
 }
 
 type simulateOptions struct {
@@ -54,6 +55,7 @@ type simulateOptions struct {
 	demand    string
 	capacity  float64
 	holidays  string
+	history   string
 	format    string
 	out       string
 	report    string
@@ -79,6 +81,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate a scenario (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
 	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
+	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
@@ -174,6 +177,16 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	if o.report != "" {
 		job.Detail = stress.DetailPaths
+	}
+	if o.history != "" {
+		if job.Temps, err = calibrate.ReadFile(o.history, calibrate.ReadOptions{Units: model.Units(m.Data.Units)}); err != nil {
+			return err
+		}
+		if m.Data.SHA256 != "" && job.Temps.SHA256 != m.Data.SHA256 {
+			fmt.Fprintf(stderr, "wxstress: warning: %s is not the record the model was fitted to (%s); its seasons are compared all the same\n",
+				o.history, m.Data.File)
+		}
+		job.History = true
 	}
 	start := time.Now()
 	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))

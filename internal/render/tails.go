@@ -54,6 +54,9 @@ type SimReport struct {
 	Rows      []sim.Row // the baseline
 	Scenarios []ScenarioReport
 	Planning  *Planning // with a demand model
+	// History is the record's own seasons beside the model; nil without a
+	// record.
+	History *stress.HistoricalSeasons
 }
 
 // ScenarioReport is one scenario's tail tables and their changes against
@@ -158,7 +161,8 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		Indices   []jsonRow      `json:"indices"`
 		Scenarios []jsonScenario `json:"scenarios"`
 		Planning  *jsonPlanning  `json:"planning,omitempty"`
-	}{r.Manifest, toJSONRows(r.Rows), scen, toJSONPlanning(r)})
+		History   *jsonHistory   `json:"historical_seasons,omitempty"`
+	}{r.Manifest, toJSONRows(r.Rows), scen, toJSONPlanning(r), toJSONHistory(r.History)})
 }
 
 // Statistic is one named number of a tail table: its key in the CSV and the
@@ -291,6 +295,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 	}
 	writePlanning(e, r)
+	writeHistory(e, r.History, r.Manifest.Units)
 	if len(r.Scenarios) > 0 {
 		writeComparison(e, r)
 	}
@@ -417,7 +422,7 @@ func NewSimReport(res *stress.Result) *SimReport {
 	if s == nil {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
-	r := &SimReport{Rows: s.Rows}
+	r := &SimReport{Rows: s.Rows, History: res.History}
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
 		r.Scenarios = append(r.Scenarios, ScenarioReport{Name: sc.Name, Description: sc.Description, What: run.What,

@@ -1,0 +1,130 @@
+package render
+
+import (
+	"fmt"
+	"strings"
+
+	"wxstress/internal/numfmt"
+	"wxstress/sim"
+	"wxstress/stress"
+)
+
+// historyShown reports whether a row of the record's seasons is worth a
+// line: an index that occurs in the period, not one that is zero in nineteen
+// of twenty seasons of the record and averages below one in the model (CDD
+// in winter, cold days in summer). The JSON keeps every row.
+func historyShown(r stress.HistoryRow) bool {
+	return !(r.P95 == 0 && r.ModelMean < 1)
+}
+
+// writeHistory writes the record's own seasons beside the model: the
+// distribution of each index over the record's complete seasons (moved along
+// the fitted trend to the target year) against the model's, and the model's
+// probability of the record's three worst seasons.
+func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
+	if h == nil || len(h.Rows) == 0 {
+		return
+	}
+	e.printf("\nThe record's own seasons beside the model (each moved along the fitted trend to %d: %+.3f °%s per year)\n",
+		h.TargetYear, h.ShiftPerYear, units)
+	rows := [][]string{}
+	for _, r := range h.Rows {
+		if !historyShown(r) {
+			continue
+		}
+		worst := ""
+		if len(r.Worst) > 0 {
+			worst = fmt.Sprintf("%s (%d)", numfmt.Fixed(r.Worst[0].Value, 1), r.Worst[0].Year)
+		}
+		rows = append(rows, []string{r.Index.Info().Name, r.Period, fmt.Sprint(len(r.Values)),
+			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, 1), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
+			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, 1),
+			numfmt.Fixed(r.SDBand[0], 1) + "–" + numfmt.Fixed(r.SDBand[1], 1), r.SDVerdict})
+	}
+	e.table([]string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
+		"model mean", "model sd", "sd band", "record sd"}, rows)
+	e.printf("  sd band: 5–95 %% of the sd of that many seasons drawn from the simulated years; a record sd outside it\n" +
+		"  says the model's spread is wrong for that index.\n")
+	for _, r := range h.Rows {
+		if !historyShown(r) || (r.Index != sim.HDD && r.Index != sim.CDD && r.Index != sim.Coldest) {
+			continue
+		}
+		var parts []string
+		for _, w := range r.Worst {
+			parts = append(parts, fmt.Sprintf("%d: %s, model probability %s (1 in %s)", w.Year, numfmt.Fixed(w.Value, 1),
+				numfmt.Prob(w.Prob), oneIn(w.Prob)))
+		}
+		e.printf("  worst %s, %s: %s\n", r.Index.Info().Name, r.Period, strings.Join(parts, "; "))
+	}
+}
+
+// oneIn writes a probability as a return period in years: "137", or
+// "more than N" when no simulated year was as bad.
+func oneIn(p float64) string {
+	if p <= 0 {
+		return "more than the paths run"
+	}
+	return numfmt.Number(float64(int(1/p + 0.5)))
+}
+
+// jsonHistory is the record's seasons in the JSON output.
+type jsonHistory struct {
+	TargetYear   int                     `json:"target_year"`
+	ShiftPerYear float64                 `json:"trend_shift_per_year"`
+	Rows         []jsonHistoryRow        `json:"rows"`
+	Seasons      map[string][]jsonSeason `json:"seasons"`
+}
+
+type jsonHistoryRow struct {
+	Index     string            `json:"index"`
+	Period    string            `json:"period"`
+	Seasons   int               `json:"seasons"`
+	Mean      float64           `json:"mean"`
+	SD        float64           `json:"sd"`
+	P05       float64           `json:"p05"`
+	P50       float64           `json:"p50"`
+	P95       float64           `json:"p95"`
+	ModelMean float64           `json:"model_mean"`
+	ModelSD   float64           `json:"model_sd"`
+	SDBand    [2]float64        `json:"sd_band_90"`
+	Verdict   string            `json:"sd_verdict"`
+	Worst     []jsonWorstSeason `json:"worst"`
+}
+
+type jsonWorstSeason struct {
+	Year   int     `json:"year"`
+	Value  float64 `json:"value"`
+	Prob   float64 `json:"model_probability"`
+	ProbSE float64 `json:"model_probability_se"`
+}
+
+type jsonSeason struct {
+	Year    int                `json:"year"`
+	Missing int                `json:"missing_days"`
+	Values  map[string]float64 `json:"values"`
+}
+
+func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
+	if h == nil {
+		return nil
+	}
+	j := &jsonHistory{TargetYear: h.TargetYear, ShiftPerYear: h.ShiftPerYear, Seasons: map[string][]jsonSeason{}}
+	for _, r := range h.Rows {
+		row := jsonHistoryRow{Index: r.Index.Info().Key, Period: r.Period, Seasons: len(r.Values), Mean: r.Mean, SD: r.SD,
+			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, SDBand: r.SDBand, Verdict: r.SDVerdict}
+		for _, w := range r.Worst {
+			row.Worst = append(row.Worst, jsonWorstSeason{w.Year, w.Value, w.Prob, w.ProbSE})
+		}
+		j.Rows = append(j.Rows, row)
+	}
+	for name, ss := range h.Seasons {
+		for _, s := range ss {
+			v := map[string]float64{}
+			for _, x := range sim.TempIndexList() {
+				v[x.Info().Key] = s.Values[x]
+			}
+			j.Seasons[name] = append(j.Seasons[name], jsonSeason{s.Year, s.Missing, v})
+		}
+	}
+	return j
+}
