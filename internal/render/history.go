@@ -17,17 +17,16 @@ func historyShown(r stress.HistoryRow) bool {
 	return !(r.P95 == 0 && r.ModelMean < 1)
 }
 
-// writeHistory writes the record's own seasons beside the model: the
+// HistoryTable lays out the record's own seasons beside the model: the
 // distribution of each index over the record's complete seasons (moved along
-// the fitted trend to the target year) against the model's, and the model's
-// probability of the record's three worst seasons.
-func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
-	if h == nil || len(h.Rows) == 0 {
-		return
-	}
-	e.printf("\nThe record's own seasons beside the model (each moved along the fitted trend to %d: %+.3f °%s per year)\n",
+// the fitted trend to the target year) against the model's, and, in notes,
+// the model's probability of the record's three worst seasons. The terminal
+// and the HTML report show the same cells.
+func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, header []string, rows [][]string, notes []string) {
+	title = fmt.Sprintf("The record's own seasons beside the model (each moved along the fitted trend to %d: %+.3f °%s per year)",
 		h.TargetYear, h.ShiftPerYear, units)
-	rows := [][]string{}
+	header = []string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
+		"model mean", "model sd", "sd band", "record sd"}
 	for _, r := range h.Rows {
 		if !historyShown(r) {
 			continue
@@ -41,10 +40,8 @@ func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
 			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, 1),
 			numfmt.Fixed(r.SDBand[0], 1) + "–" + numfmt.Fixed(r.SDBand[1], 1), r.SDVerdict})
 	}
-	e.table([]string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
-		"model mean", "model sd", "sd band", "record sd"}, rows)
-	e.printf("  sd band: 5–95 %% of the sd of that many seasons drawn from the simulated years; a record sd outside it\n" +
-		"  says the model's spread is wrong for that index.\n")
+	notes = append(notes, "sd band: 5–95 % of the sd of that many seasons drawn from the simulated years; a record sd outside it "+
+		"says the model's spread is wrong for that index.")
 	for _, r := range h.Rows {
 		if !historyShown(r) || (r.Index != sim.HDD && r.Index != sim.CDD && r.Index != sim.Coldest) {
 			continue
@@ -54,7 +51,20 @@ func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
 			parts = append(parts, fmt.Sprintf("%d: %s, model probability %s (1 in %s)", w.Year, numfmt.Fixed(w.Value, 1),
 				numfmt.Prob(w.Prob), oneIn(w.Prob)))
 		}
-		e.printf("  worst %s, %s: %s\n", r.Index.Info().Name, r.Period, strings.Join(parts, "; "))
+		notes = append(notes, fmt.Sprintf("worst %s, %s: %s", r.Index.Info().Name, r.Period, strings.Join(parts, "; ")))
+	}
+	return title, header, rows, notes
+}
+
+func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
+	if h == nil || len(h.Rows) == 0 {
+		return
+	}
+	title, header, rows, notes := HistoryTable(h, units)
+	e.printf("\n%s\n", title)
+	e.table(header, rows)
+	for _, n := range notes {
+		e.printf("  %s\n", n)
 	}
 }
 

@@ -289,11 +289,21 @@ type simulationView struct {
 	Run     *runView // nil without tail tables
 	Fan     *figView // nil without a fan chart
 	Periods []periodBlock
+	// History is the record's own seasons beside the model, with its notes;
+	// nil without a record.
+	History      *textTable
+	HistoryTitle string
+	HistoryNotes []string
 }
 
 func (b *builder) simulationSection() (any, error) {
 	in := b.in
 	v := &simulationView{}
+	if s := in.Sim; s != nil && s.History != nil && len(s.History.Rows) > 0 {
+		title, header, rows, notes := render.HistoryTable(s.History, s.Manifest.Units)
+		t := newTextTable("history", "", header, rows, 2, 3, 4, 5, 6, 7, 8, 9)
+		v.History, v.HistoryTitle, v.HistoryNotes = &t, title, notes
+	}
 	if s := in.Sim; s != nil {
 		mf := s.Manifest
 		start := "a burn-in from the model's stationary state (today's climate, no memory of recent weather)"
