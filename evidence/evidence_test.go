@@ -10,8 +10,6 @@ import (
 
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
-
-	"wxstress/sim"
 )
 
 const tolBrute = 1e-12 // relative: O(n log n) sum against the O(n²) double sum
@@ -391,35 +389,6 @@ func TestShortfallSEBySimulation(t *testing.T) {
 		}
 		if math.Abs(c.trueSE/sd-1) > tolSE {
 			t.Errorf("%s: asymptotic s.e. %.4f, sd of ES over repetitions %.4f", c.name, c.trueSE, sd)
-		}
-	}
-}
-
-func TestConventionsMatchSim(t *testing.T) {
-	t.Parallel()
-	// Value and ES must be the numbers sim.Summarize puts in the tail table.
-	rng := rand.New(rand.NewPCG(13, 14))
-	x := make([]float64, 1001)
-	for i := range x {
-		x[i] = 3000 + 400*rng.NormFloat64()
-	}
-	for _, high := range []bool{true, false} {
-		tail := sim.Summarize(x, high, nil)
-		p95, p99 := 0.95, 0.99
-		if !high {
-			p95, p99 = 0.05, 0.01
-		}
-		if q := Quantile(x, p95); q.Value != tail.VaR95 {
-			t.Errorf("high=%v: quantile %v, sim VaR95 %v", high, q.Value, tail.VaR95)
-		}
-		if q := Quantile(x, p99); q.Value != tail.VaR99 {
-			t.Errorf("high=%v: quantile %v, sim VaR99 %v", high, q.Value, tail.VaR99)
-		}
-		if e := Shortfall(x, 0.05, high); e.Value != tail.ES95 || e.K != 51 {
-			t.Errorf("high=%v: shortfall %v of %d paths, sim ES95 %v", high, e.Value, e.K, tail.ES95)
-		}
-		if e := Shortfall(x, 0.01, high); e.Value != tail.ES99 || e.K != 11 {
-			t.Errorf("high=%v: shortfall %v of %d paths, sim ES99 %v", high, e.Value, e.K, tail.ES99)
 		}
 	}
 }

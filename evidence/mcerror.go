@@ -46,14 +46,20 @@ type QuantileEstimate struct {
 // sim.Summarize does. x is not modified. It panics if x is empty or p is not
 // in (0, 1).
 func Quantile(x []float64, p float64) QuantileEstimate {
-	n := len(x)
+	return QuantileSorted(sortedCopy(x), p)
+}
+
+// QuantileSorted is Quantile for values already sorted ascending (not
+// checked), without the copy: for callers that summarise many quantiles of
+// one column.
+func QuantileSorted(s []float64, p float64) QuantileEstimate {
+	n := len(s)
 	if n == 0 {
 		panic("evidence: quantile of no values")
 	}
 	if !(p > 0 && p < 1) {
 		panic("evidence: quantile probability outside (0, 1)")
 	}
-	s := sortedCopy(x)
 	tail := (1 - IntervalLevel) / 2
 	b := distuv.Binomial{N: float64(n), P: p}
 	// CDF(m) rises with m: J is the first m in [0, n] with CDF(m) > tail.
@@ -105,14 +111,19 @@ type ShortfallEstimate struct {
 // function (x − v)₊/a + v − ES). The variance needs a finite second moment.
 // x is not modified. It panics if x is empty or α is not in (0, 1].
 func Shortfall(x []float64, alpha float64, highIsAdverse bool) ShortfallEstimate {
-	n := len(x)
+	return ShortfallSorted(sortedCopy(x), alpha, highIsAdverse)
+}
+
+// ShortfallSorted is Shortfall for values already sorted ascending (not
+// checked), without the copy.
+func ShortfallSorted(s []float64, alpha float64, highIsAdverse bool) ShortfallEstimate {
+	n := len(s)
 	if n == 0 {
 		panic("evidence: shortfall of no values")
 	}
 	if !(alpha > 0 && alpha <= 1) {
 		panic("evidence: shortfall tail fraction outside (0, 1]")
 	}
-	s := sortedCopy(x)
 	k := min(max(int(math.Ceil(alpha*float64(n)-1e-9)), 1), n) // as sim's shortfall
 	tail, v := s[:k], s[k-1]
 	if highIsAdverse {

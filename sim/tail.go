@@ -6,6 +6,8 @@ import (
 	"slices"
 
 	"gonum.org/v1/gonum/stat"
+
+	"wxstress/evidence"
 )
 
 // The probabilities of a tail table's quantiles, and the T of its 1-in-T
@@ -45,6 +47,17 @@ type Tail struct {
 	// when low is adverse) of the per-year value. Read them with ReturnLevel.
 	ReturnLevels []float64
 	Exceedances  []Exceedance
+
+	// Monte Carlo standard errors: of each quantile and return level from
+	// the distribution-free order-statistic interval (evidence.Quantile), of
+	// the expected shortfalls from their asymptotic variance
+	// (evidence.Shortfall). +Inf where the paths cannot bound a quantile.
+	QuantileSE    []float64 // at TailQuantileProbs
+	ReturnLevelSE []float64 // at TailReturnPeriods
+	VaR95SE       float64
+	VaR99SE       float64
+	ES95SE        float64
+	ES99SE        float64
 }
 
 // Quantile returns the quantile at probability p, one of
@@ -106,6 +119,24 @@ func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail 
 	t.ES95, t.ES99 = shortfall(x, 0.05, highIsAdverse), shortfall(x, 0.01, highIsAdverse)
 	for _, T := range tailReturnPeriods {
 		t.ReturnLevels = append(t.ReturnLevels, adverse(1-1/float64(T)))
+	}
+	if n >= 2 {
+		se := func(p float64) float64 { return evidence.QuantileSorted(x, p).SE }
+		adverseSE := func(p float64) float64 {
+			if highIsAdverse {
+				return se(p)
+			}
+			return se(1 - p)
+		}
+		for _, p := range tailProbs {
+			t.QuantileSE = append(t.QuantileSE, se(p))
+		}
+		for _, T := range tailReturnPeriods {
+			t.ReturnLevelSE = append(t.ReturnLevelSE, adverseSE(1-1/float64(T)))
+		}
+		t.VaR95SE, t.VaR99SE = adverseSE(0.95), adverseSE(0.99)
+		t.ES95SE = evidence.ShortfallSorted(x, 0.05, highIsAdverse).SE
+		t.ES99SE = evidence.ShortfallSorted(x, 0.01, highIsAdverse).SE
 	}
 	for _, th := range thresholds {
 		var k int

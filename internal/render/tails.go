@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"wxstress/evidence"
 	"wxstress/internal/numfmt"
 
 	"wxstress/sim"
@@ -87,6 +88,42 @@ type jsonRow struct {
 	ReturnLevels map[string]float64 `json:"return_levels"`
 	Exceedance   []jsonExceed       `json:"exceedance,omitempty"`
 	Change       *jsonChange        `json:"change_vs_baseline,omitempty"`
+	// MonteCarloSE holds the standard errors of the tail numbers from the
+	// paths run (null where the paths cannot bound a quantile).
+	MonteCarloSE *jsonMCSE `json:"monte_carlo_se,omitempty"`
+}
+
+// jsonMCSE is the Monte Carlo error of a row's tail numbers.
+type jsonMCSE struct {
+	Quantiles    map[string]*float64 `json:"quantiles"`
+	ReturnLevels map[string]*float64 `json:"return_levels"`
+	VaR95        *float64            `json:"var95"`
+	VaR99        *float64            `json:"var99"`
+	ES95         *float64            `json:"es95"`
+	ES99         *float64            `json:"es99"`
+}
+
+// finitePtr is v, or nil (JSON null) when v is not finite.
+func finitePtr(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+func toJSONMCSE(t sim.Tail) *jsonMCSE {
+	if len(t.QuantileSE) == 0 {
+		return nil
+	}
+	m := &jsonMCSE{Quantiles: map[string]*float64{}, ReturnLevels: map[string]*float64{},
+		VaR95: finitePtr(t.VaR95SE), VaR99: finitePtr(t.VaR99SE), ES95: finitePtr(t.ES95SE), ES99: finitePtr(t.ES99SE)}
+	for i, p := range sim.TailQuantileProbs() {
+		m.Quantiles[fmt.Sprintf("%.2f", p)] = finitePtr(t.QuantileSE[i])
+	}
+	for i, T := range sim.TailReturnPeriods() {
+		m.ReturnLevels[strconv.Itoa(T)] = finitePtr(t.ReturnLevelSE[i])
+	}
+	return m
 }
 
 // jsonChange is a scenario row's change against the baseline.
@@ -129,7 +166,7 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 		t := r.Tail
 		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: AdverseSide(r),
 			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, VaR95: t.VaR95, VaR99: t.VaR99, ES95: t.ES95, ES99: t.ES99,
-			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}}
+			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}, MonteCarloSE: toJSONMCSE(t)}
 		for _, p := range sim.TailQuantileProbs() {
 			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantile(p)
 		}
@@ -324,6 +361,47 @@ func writeTailTable(e *errWriter, group []sim.Row) {
 		adverse = append(adverse, AdverseSide(row))
 	}
 	e.table(header, append(rows, adverse))
+	for _, w := range monteCarloWarnings(group) {
+		e.printf("  %s\n", w)
+	}
+}
+
+// mcTolerance is the Monte Carlo standard error, as a share of the index's
+// sd, above which a tail number is flagged: beyond it the paths run do not
+// support the digits a table shows.
+const mcTolerance = 0.05
+
+// monteCarloWarnings names the tail numbers whose Monte Carlo standard error
+// exceeds mcTolerance of the index's sd, with the paths that would bring it
+// there (s.e. ∝ 1/√paths).
+func monteCarloWarnings(group []sim.Row) []string {
+	var out []string
+	for _, r := range group {
+		t := r.Tail
+		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || t.Quantile(0.95) == 0 && t.Mean < 1 {
+			continue // no spread, a date, or an index that hardly occurs in the period
+		}
+		target := mcTolerance * t.SD
+		worst, name, value := 0.0, "", 0.0
+		for _, c := range []struct {
+			name  string
+			v, se float64
+		}{{"ES 99%", t.ES99, t.ES99SE}, {"1-in-50", t.ReturnLevel(50), t.ReturnLevelSE[4]}, {"1-in-100", t.ReturnLevel(100), t.ReturnLevelSE[5]}} {
+			if c.se > worst {
+				worst, name, value = c.se, c.name, c.v
+			}
+		}
+		if worst <= target {
+			continue
+		}
+		need := "more paths than any run"
+		if !math.IsInf(worst, 1) {
+			need = "about " + numfmt.Number(float64(evidence.PathsNeeded(worst, t.N, target))) + " paths"
+		}
+		out = append(out, fmt.Sprintf("Monte Carlo error: the %s of %s is %s %s from %s paths, more than a twentieth of its sd; %s would bring it to %s",
+			name, r.Name, numfmt.Value(value, worst), numfmt.SE(worst), numfmt.Number(float64(t.N)), need, numfmt.SE(target)))
+	}
+	return out
 }
 
 // splitDemand separates the weather indices of a period from its demand
