@@ -52,6 +52,9 @@ type Job struct {
 	// History asks for the record's own complete seasons beside the model
 	// (needs Temps and a simulation).
 	History bool
+	// Uncertainty asks for parameter uncertainty by a parametric bootstrap
+	// (needs Temps, the record the model describes, and a simulation).
+	Uncertainty *Uncertainty
 
 	// ToolVersion is stamped on the fitted model files.
 	ToolVersion string
@@ -65,6 +68,11 @@ const (
 	NormalPaths = 1000
 )
 
+// bandPaths caps the paths each refitted model is simulated with for the
+// bands: with common random numbers across refits the band is the
+// parameters' spread, and more paths only refine the tails a little.
+const bandPaths = 20000
+
 // Result is everything a stress test produced; renderers take it whole.
 type Result struct {
 	Fit   *calibrate.Result // nil when the job gave a model or fitted none
@@ -77,6 +85,10 @@ type Result struct {
 	Set     *Set               // nil when the job only fits
 	Normals []sim.YearNormal   // with Job.Normals
 	History *HistoricalSeasons // with Job.History
+	// Refits are the bootstrap's refitted models and Bands the 90 %
+	// confidence bands of the baseline's tail numbers (band mode).
+	Refits []*model.File
+	Bands  []RowBands
 }
 
 // ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
@@ -153,9 +165,37 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	if detail == 0 && cfg.Demand != nil {
 		detail = DetailPaths
 	}
-	set, err := Simulate(ctx, res.Model, cfg, job.Scenarios, job.Thresholds, detail)
+	u := job.Uncertainty
+	if u != nil {
+		if job.Temps == nil {
+			return nil, fmt.Errorf("%w: parameter uncertainty refits synthetic copies of the record: give the record", ErrJob)
+		}
+		if u.Mode != "" && u.Mode != UncertaintyBand && u.Mode != UncertaintyMix {
+			return nil, fmt.Errorf("%w: uncertainty mode %q: want band or mix", ErrJob, u.Mode)
+		}
+		if u.Refits < 2 {
+			return nil, fmt.Errorf("%w: parameter uncertainty needs at least 2 refits, got %d", ErrJob, u.Refits)
+		}
+		var err error
+		if res.Refits, err = Refits(ctx, job.Temps, res.Model, u.Refits, cfg.Seed); err != nil {
+			return nil, err
+		}
+	}
+	var mix []*model.File
+	if u != nil && u.Mode == UncertaintyMix {
+		mix = res.Refits
+	}
+	set, err := simulate(ctx, res.Model, mix, cfg, job.Scenarios, job.Thresholds, detail)
 	if err != nil {
 		return nil, err
+	}
+	if u != nil && u.Mode != UncertaintyMix {
+		bc := set.Config
+		bc.Paths = min(bc.Paths, bandPaths)
+		bc.Progress = nil
+		if res.Bands, err = bands(ctx, res.Refits, bc, set.Rows); err != nil {
+			return nil, err
+		}
 	}
 	res.Set = set
 	if job.History && job.Temps != nil {

@@ -44,22 +44,58 @@ type Set struct {
 // the baseline whole.
 func Simulate(ctx context.Context, m *model.File, cfg sim.Config, scens []*scenarios.Scenario,
 	thresholds []sim.Threshold, detail int) (*Set, error) {
+	return simulate(ctx, m, nil, cfg, scens, thresholds, detail)
+}
+
+// simulate is Simulate; with mix set, every run (baseline and scenarios,
+// each scenario applied to every model) spreads its paths over the models
+// in mix (the predictive distribution with parameter uncertainty), while m
+// still gives the scenario descriptions and the detail paths.
+func simulate(ctx context.Context, m *model.File, mix []*model.File, cfg sim.Config, scens []*scenarios.Scenario,
+	thresholds []sim.Threshold, detail int) (*Set, error) {
 	cfg.Year = m.TargetYear(cfg.Year)
+	run := func(ms []*model.File) (*sim.Result, error) {
+		if ms == nil {
+			return nil, nil
+		}
+		return mixed(ctx, ms, cfg)
+	}
+	apply := func(sc *scenarios.Scenario, ms []*model.File) ([]*model.File, error) {
+		var out []*model.File
+		for _, x := range ms {
+			sm, err := sc.Apply(x, cfg.Year)
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, sm)
+		}
+		return out, nil
+	}
 	models := make([]*model.File, len(scens))
+	mixes := make([][]*model.File, len(scens))
 	for i, sc := range scens {
 		sm, err := sc.Apply(m, cfg.Year)
 		if err != nil {
 			return nil, err
 		}
 		models[i] = sm
+		if mixes[i], err = apply(sc, mix); err != nil {
+			return nil, err
+		}
 	}
-	base, err := sim.Run(ctx, m, cfg)
+	base, err := run(mix)
+	if base == nil && err == nil {
+		base, err = sim.Run(ctx, m, cfg)
+	}
 	if err != nil {
 		return nil, err
 	}
 	set := &Set{Config: base.Config, Base: base, Rows: base.Summarize(model.Units(m.Data.Units), thresholds)}
 	for i, sm := range models {
-		res, err := sim.Run(ctx, sm, cfg)
+		res, err := run(mixes[i])
+		if res == nil && err == nil {
+			res, err = sim.Run(ctx, sm, cfg)
+		}
 		if err != nil {
 			return nil, err
 		}

@@ -94,6 +94,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
 		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
 		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, ToolVersion: version,
+		Uncertainty: &stress.Uncertainty{Refits: demoRefits},
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))
 	res, err := stress.Run(ctx, job)
@@ -146,6 +147,10 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	fmt.Fprintf(stdout, "Report: %s\n", reportPath)
 	return nil
 }
+
+// demoRefits is the number of bootstrap refits behind the demo's parameter
+// bands: enough for a 90 % band, few enough to keep the demo quick.
+const demoRefits = 20
 
 // demoScenarios are the built-in scenarios the demo runs beside the baseline.
 var demoScenarios = []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}

@@ -36,7 +36,8 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --demand demand.json --capacity 95000 --holidays holidays.txt
   wxstress simulate --model model.json --paths 1000000 --out results/
   wxstress simulate --model model.json --scenario warm-2c --report stress.html
-  wxstress simulate --model model.json --history station.csv --period heating`,
+  wxstress simulate --model model.json --history station.csv --period heating
+  wxstress simulate --model model.json --history station.csv --uncertainty 50 --uncertainty-mode band`,
 }
 
 type simulateOptions struct {
@@ -56,6 +57,8 @@ type simulateOptions struct {
 	capacity  float64
 	holidays  string
 	history   string
+	refits    int
+	mode      string
 	format    string
 	out       string
 	report    string
@@ -82,6 +85,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
 	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
+	fs.IntVar(&o.refits, "uncertainty", 0, "with --history: parameter uncertainty from N refits to synthetic records of the model (parametric bootstrap; 20–100)")
+	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
@@ -102,6 +107,15 @@ func (o *simulateOptions) validate() error {
 	}
 	if o.capacity < 0 || o.capacity > 0 && o.demand == "" {
 		return usagef("simulate: --capacity needs --demand and a positive value")
+	}
+	if o.refits != 0 && (o.refits < 2 || o.refits > 1000) {
+		return usagef("simulate: --uncertainty %d: want 2..1000 refits (20 or more for a 90%% band)", o.refits)
+	}
+	if o.refits > 0 && o.history == "" {
+		return usagef("simulate: --uncertainty refits synthetic copies of the record: give it with --history")
+	}
+	if o.mode != stress.UncertaintyBand && o.mode != stress.UncertaintyMix {
+		return usagef("simulate: --uncertainty-mode %q: want band or mix", o.mode)
 	}
 	if o.holidays != "" && o.demand == "" {
 		return usagef("simulate: --holidays needs --demand")
@@ -187,6 +201,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				o.history, m.Data.File)
 		}
 		job.History = true
+	}
+	if o.refits > 0 {
+		job.Uncertainty = &stress.Uncertainty{Refits: o.refits, Mode: o.mode}
 	}
 	start := time.Now()
 	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))

@@ -58,6 +58,12 @@ type SimReport struct {
 	// History is the record's own seasons beside the model; nil without a
 	// record.
 	History *stress.HistoricalSeasons
+	// Bands are the parameter-uncertainty bands of Rows (band mode) from
+	// Refits refitted models; Mixed says the paths were spread over the
+	// refitted models instead.
+	Bands  []stress.RowBands
+	Refits int
+	Mixed  bool
 }
 
 // ScenarioReport is one scenario's tail tables and their changes against
@@ -91,6 +97,9 @@ type jsonRow struct {
 	// MonteCarloSE holds the standard errors of the tail numbers from the
 	// paths run (null where the paths cannot bound a quantile).
 	MonteCarloSE *jsonMCSE `json:"monte_carlo_se,omitempty"`
+	// Band is the parameter-uncertainty band of the tail numbers (with
+	// --uncertainty in band mode).
+	Band *jsonRowBands `json:"band,omitempty"`
 }
 
 // jsonMCSE is the Monte Carlo error of a row's tail numbers.
@@ -160,6 +169,17 @@ func AdverseSide(r sim.Row) string {
 	return "low"
 }
 
+// baseRows is the baseline's JSON rows with their parameter bands.
+func baseRows(r *SimReport) []jsonRow {
+	rows := toJSONRows(r.Rows)
+	for k := range rows {
+		if k < len(r.Bands) {
+			rows[k].Band = toJSONBands(r.Bands[k])
+		}
+	}
+	return rows
+}
+
 func toJSONRows(rows []sim.Row) []jsonRow {
 	out := make([]jsonRow, len(rows))
 	for i, r := range rows {
@@ -196,10 +216,12 @@ func SimJSON(w io.Writer, r *SimReport) error {
 	return enc.Encode(struct {
 		Manifest  Manifest       `json:"manifest"`
 		Indices   []jsonRow      `json:"indices"`
+		Refits    int            `json:"parameter_refits,omitempty"`
+		Mixed     bool           `json:"parameter_uncertainty_mixed,omitempty"`
 		Scenarios []jsonScenario `json:"scenarios"`
 		Planning  *jsonPlanning  `json:"planning,omitempty"`
 		History   *jsonHistory   `json:"historical_seasons,omitempty"`
-	}{r.Manifest, toJSONRows(r.Rows), scen, toJSONPlanning(r), toJSONHistory(r.History)})
+	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History)})
 }
 
 // Statistic is one named number of a tail table: its key in the CSV and the
@@ -332,6 +354,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 	}
 	writePlanning(e, r)
+	writeBands(e, r)
 	writeHistory(e, r.History, r.Manifest.Units)
 	if len(r.Scenarios) > 0 {
 		writeComparison(e, r)
@@ -500,7 +523,8 @@ func NewSimReport(res *stress.Result) *SimReport {
 	if s == nil {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
-	r := &SimReport{Rows: s.Rows, History: res.History}
+	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits)}
+	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
 		r.Scenarios = append(r.Scenarios, ScenarioReport{Name: sc.Name, Description: sc.Description, What: run.What,

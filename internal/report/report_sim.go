@@ -294,11 +294,19 @@ type simulationView struct {
 	History      *textTable
 	HistoryTitle string
 	HistoryNotes []string
+	// Bands is the parameter-uncertainty table; nil without bands.
+	Bands      *textTable
+	BandsTitle string
 }
 
 func (b *builder) simulationSection() (any, error) {
 	in := b.in
 	v := &simulationView{}
+	if s := in.Sim; s != nil && len(s.Bands) > 0 {
+		title, header, rows := render.BandTable(s.Rows, s.Bands, s.Refits)
+		t := newTextTable("bands", "", header, rows, 2, 3, 4, 5)
+		v.Bands, v.BandsTitle = &t, title
+	}
 	if s := in.Sim; s != nil && s.History != nil && len(s.History.Rows) > 0 {
 		title, header, rows, notes := render.HistoryTable(s.History, s.Manifest.Units)
 		t := newTextTable("history", "", header, rows, 2, 3, 4, 5, 6, 7, 8, 9)
