@@ -48,8 +48,8 @@ type Band struct{ Lo, Hi float64 }
 // RowBands are the bands of the main tail numbers of one row of the
 // baseline.
 type RowBands struct {
-	Period                     string
-	Index                      sim.Index
+	Period                        string
+	Index                         sim.Index
 	Mean, VaR95, ES95, RL20, RL50 Band
 }
 
