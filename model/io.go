@@ -371,9 +371,19 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // Write writes the model file atomically (a temporary file renamed into place).
 func (f *File) Write(path string) error {
+	b, err := f.MarshalIndent()
+	if err != nil {
+		return err
+	}
+	return atomicfile.WriteFile(path, b)
+}
+
+// MarshalIndent returns the model file's JSON, indented, with a final
+// newline: the bytes Write writes.
+func (f *File) MarshalIndent() ([]byte, error) {
 	b, err := json.MarshalIndent(f, "", "  ")
 	if err != nil {
-		return fmt.Errorf("model: encoding: %w", err)
+		return nil, fmt.Errorf("model: encoding: %w", err)
 	}
-	return atomicfile.WriteFile(path, append(b, '\n'))
+	return append(b, '\n'), nil
 }

@@ -39,6 +39,9 @@ type Config struct {
 	Progress func(paths int)
 }
 
+// maxPaths bounds a run's path count (each path keeps its aggregates).
+const maxPaths = 1_000_000_000
+
 // BatchSize is the number of paths a worker takes at a time.
 const BatchSize = 2048
 
@@ -61,8 +64,8 @@ type Result struct {
 
 // Validate checks a configuration against a model and fills in defaults.
 func (c *Config) Validate(m *model.File) error {
-	if c.Paths <= 0 {
-		return fmt.Errorf("sim: paths must be positive, got %d", c.Paths)
+	if c.Paths <= 0 || c.Paths > maxPaths {
+		return fmt.Errorf("sim: paths must be from 1 to %d, got %d", maxPaths, c.Paths)
 	}
 	if c.Workers < 0 {
 		return fmt.Errorf("sim: workers must be positive, got %d", c.Workers)

@@ -58,6 +58,9 @@ type Job struct {
 
 	// ToolVersion is stamped on the fitted model files.
 	ToolVersion string
+	// MaxMemory refuses, before any work, a simulation whose estimated
+	// memory (MemoryEstimate) is above it; 0 means no limit.
+	MaxMemory int64
 }
 
 // DetailPaths is how many paths the fan chart and the load-duration curve
@@ -97,6 +100,11 @@ var ErrJob = errors.New("stress: bad job")
 // Run runs the job's pipeline. It stops at the next batch boundary when ctx
 // is cancelled and returns ctx's error.
 func Run(ctx context.Context, job *Job) (*Result, error) {
+	if job.Config.Paths > 0 {
+		if err := checkMemory(job, job.MaxMemory); err != nil {
+			return nil, err
+		}
+	}
 	fitTemps := job.Model == nil && job.Temps != nil && (job.Fit != nil || job.Config.Paths > 0)
 	if job.Model == nil && !fitTemps && job.DemandHistory == nil {
 		return nil, fmt.Errorf("%w: nothing to do: give a temperature record or a model", ErrJob)

@@ -63,8 +63,8 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := parseFlags(newDemoFlags(&o), demoUsage, args, stdout); err != nil {
 		return err
 	}
-	if o.paths <= 0 {
-		return usagef("demo: --paths must be a positive number, got %d", o.paths)
+	if o.paths <= 0 || o.paths > stress.MaxPaths {
+		return usagef("demo: --paths must be a number from 1 to %d, got %d", stress.MaxPaths, o.paths)
 	}
 	if o.dir == "" {
 		o.dir = freeDir("wxstress-demo")
@@ -72,6 +72,11 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := claimDir(o.dir, o.force); err != nil {
 		return err
 	}
+	plan := newOutputPlan(o.force)
+	if err := plan.checkDir(o.dir, demoFiles...); err != nil {
+		return err
+	}
+	defer plan.abort()
 	start := time.Now()
 	series, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
 	if err != nil {
@@ -94,10 +99,10 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
 		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
 		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, ToolVersion: version,
-		Uncertainty: &stress.Uncertainty{Refits: demoRefits},
+		Uncertainty: &stress.Uncertainty{Refits: demoRefits}, MaxMemory: stress.DefaultMemoryLimit(),
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))
-	res, err := stress.Run(ctx, job)
+	res, err := runPipeline(ctx, job)
 	stop()
 	if err != nil {
 		return err
@@ -106,28 +111,20 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	m.Data.Description = demo.StationName + " (invented demonstration data)"
 	year := runs.Config.Year
 
-	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
-		demo.StationName, demo.Retailer)
-	modelPath := filepath.Join(o.dir, "model.json")
-	if err := emitFit(stdout, stderr, m, "table", modelPath); err != nil {
+	modelPath, demandPath := filepath.Join(o.dir, "model.json"), filepath.Join(o.dir, "demand.json")
+	modelJSON, err := m.MarshalIndent()
+	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
-	demandPath := filepath.Join(o.dir, "demand.json")
-	if err := emitDemand(stdout, io.Discard, d, "table", demandPath); err != nil {
+	demandJSON, err := d.MarshalIndent()
+	if err != nil {
 		return err
 	}
 	rep, out := render.NewSimReport(res), runs.Base
-	rep.Manifest = manifest(m, modelPath, fileSHA(modelPath), out)
+	rep.Manifest = manifest(m, modelPath, bytesSHA(modelJSON), out)
+	rep.Manifest.RunID = plan.runID()
 	rep.Manifest.Scenarios = demoScenarios
-	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, fileSHA(demandPath)
-	fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
-	if err := render.SimTables(stdout, rep); err != nil {
-		return err
-	}
-	if err := writeSimDir(o.dir, rep, out); err != nil {
-		return err
-	}
+	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, bytesSHA(demandJSON)
 	reportPath := filepath.Join(o.dir, "report.html")
 	meta := report.Meta{
 		Title:   fmt.Sprintf("%s and %s: %d synthetic years of %d (invented data)", demo.StationName, demo.Retailer, o.paths, year),
@@ -135,18 +132,49 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		Inputs: []report.InputFile{
 			{Role: "temperatures", Name: demo.StationFile, SHA256: series.SHA256},
 			{Role: "demand history", Name: demo.DemandFile, SHA256: dem.SHA256},
-			{Role: "model", Name: modelPath, SHA256: fileSHA(modelPath)},
-			{Role: "demand model", Name: demandPath, SHA256: fileSHA(demandPath)},
+			{Role: "model", Name: modelPath, SHA256: rep.Manifest.ModelSHA256},
+			{Role: "demand model", Name: demandPath, SHA256: rep.Manifest.DemandSHA256},
 		},
 		Manifest: rep.Manifest, Retailer: demo.Retailer,
 	}
-	if err := writeReport(reportPath, res, meta); err != nil {
+	if err := plan.addBytes(modelPath, modelJSON); err != nil {
+		return err
+	}
+	if err := plan.addBytes(demandPath, demandJSON); err != nil {
+		return err
+	}
+	if err := addSimDir(plan, o.dir, rep, out); err != nil {
+		return err
+	}
+	if err := addReport(plan, reportPath, res, meta); err != nil {
+		return err
+	}
+	if err := plan.commit(ctx); err != nil {
+		return err
+	}
+
+	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
+		demo.StationName, demo.Retailer)
+	if err := emitFit(stdout, stderr, m, "table"); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\nModel written to %s\n", modelPath)
+	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
+	if err := emitDemand(stdout, io.Discard, d, "table"); err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "\nDemand model written to %s\n", demandPath)
+	fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
+	if err := render.SimTables(stdout, rep); err != nil {
 		return err
 	}
 	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)
 	fmt.Fprintf(stdout, "Report: %s\n", reportPath)
 	return nil
 }
+
+// demoFiles are the files the demo writes into its directory.
+var demoFiles = []string{"model.json", "demand.json", "tails.json", "tails.csv", "paths.csv", "report.html"}
 
 // demoRefits is the number of bootstrap refits behind the demo's parameter
 // bands: enough for a 90 % band, few enough to keep the demo quick.
@@ -167,13 +195,13 @@ func freeDir(base string) string {
 	}
 }
 
-// claimDir makes dir for a run's outputs; an existing, non-empty dir is
-// refused unless force is set.
+// claimDir refuses an existing, non-empty dir unless force is set (the
+// outputs make the directory when they are written).
 func claimDir(dir string, force bool) error {
 	entries, err := os.ReadDir(dir)
 	switch {
 	case errors.Is(err, fs.ErrNotExist):
-		return os.MkdirAll(dir, 0o755)
+		return nil
 	case err != nil:
 		return err
 	case len(entries) > 0 && !force:

@@ -36,6 +36,7 @@ type fitOptions struct {
 	units, meanColumn    string
 	harmonics, ar, trend string
 	slow, shocks, report string
+	force                bool
 	settings             calibrate.Settings
 	readOpts             calibrate.ReadOptions
 }
@@ -58,6 +59,7 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.trend, "trend", "auto", "trend: auto (linear from 15 years of data), linear or none")
 	fs.StringVar(&o.shocks, "shocks", "auto", "shock family: auto (by AIC), normal, t, skew-t or bootstrap")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report of the data and the fit here")
+	fs.BoolVar(&o.force, "force", false, "replace existing output files")
 }
 
 func (o *fitOptions) validate() error {
@@ -112,31 +114,52 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
+	plan := newOutputPlan(o.force, o.temps)
+	if err := plan.check(o.out, o.report); err != nil {
+		return err
+	}
+	defer plan.abort()
 	start := time.Now()
-	series, err := calibrate.ReadFile(o.temps, o.readOpts)
+	series, err := interruptible(ctx, func() (*calibrate.Series, error) { return calibrate.ReadFile(o.temps, o.readOpts) })
 	if err != nil {
 		return err
 	}
-	out, err := stress.Run(ctx, &stress.Job{Temps: series, Fit: &o.settings, ToolVersion: version})
+	out, err := runPipeline(ctx, &stress.Job{Temps: series, Fit: &o.settings, ToolVersion: version})
 	if err != nil {
 		return err
 	}
-	res := out.Fit
-	if err := emitFit(stdout, stderr, res.Model, o.format, o.out); err != nil {
+	m := out.Model
+	if o.out != "" {
+		b, err := m.MarshalIndent()
+		if err != nil {
+			return err
+		}
+		if err := plan.addBytes(o.out, b); err != nil {
+			return err
+		}
+	}
+	if o.report != "" {
+		meta := report.Meta{
+			Title: "Temperature model of " + filepath.Base(o.temps), Created: time.Now(), RunTime: time.Since(start),
+			Inputs: []report.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
+		}
+		if err := addReport(plan, o.report, out, meta); err != nil {
+			return err
+		}
+	}
+	if err := plan.commit(ctx); err != nil {
 		return err
 	}
-	if o.report == "" {
-		return nil
-	}
-	meta := report.Meta{
-		Title: "Temperature model of " + filepath.Base(o.temps), Created: time.Now(), RunTime: time.Since(start),
-		Inputs: []report.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}},
-	}
-	if err := writeReport(o.report, out, meta); err != nil {
+	if err := emitFit(stdout, stderr, m, o.format); err != nil {
 		return err
 	}
 	if o.format != "json" {
-		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
+		if o.out != "" {
+			fmt.Fprintf(stdout, "\nModel written to %s\n", o.out)
+		}
+		if o.report != "" {
+			fmt.Fprintf(stdout, "Report written to %s\n", o.report)
+		}
 	}
 	return nil
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"fmt"
 	"io"
 	"strings"
 
@@ -52,6 +53,7 @@ type fitDemandOptions struct {
 	unit, form, units       string
 	out, format             string
 	modelPath               string
+	force                   bool
 	settings                calibrate.DemandSettings
 	readOpts                calibrate.ReadOptions
 }
@@ -71,6 +73,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
 	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
+	fs.BoolVar(&o.force, "force", false, "replace an existing output file")
 	fs.StringVar(&o.modelPath, "model", "", "temperature model of the same station (from 'wxstress fit'): adds each year's weather-normalized demand")
 }
 
@@ -108,7 +111,12 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err := o.validate(); err != nil {
 		return err
 	}
-	temps, err := calibrate.ReadFile(o.temps, o.readOpts)
+	plan := newOutputPlan(o.force, o.temps, o.demand, o.holidays, o.modelPath)
+	if err := plan.check(o.out); err != nil {
+		return err
+	}
+	defer plan.abort()
+	temps, err := interruptible(ctx, func() (*calibrate.Series, error) { return calibrate.ReadFile(o.temps, o.readOpts) })
 	if err != nil {
 		return err
 	}
@@ -130,13 +138,28 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 		}
 		job.Normals, job.Config.Seed = true, 1
 	}
-	out, err := stress.Run(ctx, job)
+	out, err := runPipeline(ctx, job)
 	if err != nil {
 		return err
 	}
 	m := out.Demand
-	if err := emitDemand(stdout, stderr, m, o.format, o.out); err != nil {
+	if o.out != "" {
+		b, err := m.MarshalIndent()
+		if err != nil {
+			return err
+		}
+		if err := plan.addBytes(o.out, b); err != nil {
+			return err
+		}
+	}
+	if err := plan.commit(ctx); err != nil {
 		return err
+	}
+	if err := emitDemand(stdout, stderr, m, o.format); err != nil {
+		return err
+	}
+	if o.out != "" && o.format != "json" {
+		fmt.Fprintf(stdout, "\nDemand model written to %s\n", o.out)
 	}
 	if !job.Normals {
 		return nil

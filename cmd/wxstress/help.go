@@ -45,6 +45,8 @@ func runHelpCmd(_ context.Context, args []string, stdout, _ io.Writer) error {
 		writeUsage(stdout, scenariosUsage, newScenariosFlags(new(scenariosOptions)))
 	case "demo":
 		writeUsage(stdout, demoUsage, newDemoFlags(&demoOptions{}))
+	case "backtest":
+		writeUsage(stdout, backtestUsage, newBacktestFlags(&backtestOptions{}))
 	case "version", "help":
 		writeMainUsage(stdout)
 	default:

@@ -10,6 +10,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 )
 
@@ -63,12 +64,36 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	}
 	for _, c := range commands() {
 		if c.name == name {
-			return exitCode(c.run(ctx, args[1:], stdout, stderr), ctx, stderr)
+			out := &stickyWriter{w: stdout}
+			err := c.run(ctx, args[1:], out, stderr)
+			if err == nil && out.err != nil {
+				err = fmt.Errorf("writing the output: %w", out.err)
+			}
+			return exitCode(err, ctx, stderr)
 		}
 	}
 	fmt.Fprintf(stderr, "wxstress: unknown command %q\n\n", name)
 	writeMainUsage(stderr)
 	return exitUsage
+}
+
+// stickyWriter remembers the first write error, so that a command whose
+// output could not be written (a closed pipe, a full disk) fails with exit 1
+// even where it does not check each write.
+type stickyWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (s *stickyWriter) Write(p []byte) (int, error) {
+	if s.err != nil {
+		return 0, s.err
+	}
+	n, err := s.w.Write(p)
+	if err != nil {
+		s.err = err
+	}
+	return n, err
 }
 
 // usageError marks an error in how the tool was called (exit 2).
@@ -90,9 +115,29 @@ func exitCode(err error, ctx context.Context, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "wxstress: interrupted; no output was written")
 		return exitInterrupted
 	case errors.As(err, &ue):
-		fmt.Fprintf(stderr, "wxstress: %v\n(run 'wxstress help' for usage)\n", err)
+		fmt.Fprintf(stderr, "wxstress: %s\n(run 'wxstress help' for usage)\n", cleanMessage(err.Error()))
 		return exitUsage
 	}
-	fmt.Fprintf(stderr, "wxstress: %v\n", err)
+	fmt.Fprintf(stderr, "wxstress: %s\n", cleanMessage(err.Error()))
 	return exitFailure
+}
+
+// internalPackages are the package names library errors start with; a
+// person reading a message has no use for them.
+var internalPackages = map[string]bool{"backtest": true, "calendar": true, "calibrate": true, "diagnose": true,
+	"evidence": true, "extremes": true, "hedge": true, "model": true, "outputs": true, "scenarios": true, "shocks": true,
+	"sim": true, "statespace": true, "stress": true}
+
+// cleanMessage drops the package prefixes ("stress: ", "sim: ") from the
+// colon-separated parts of an error message.
+func cleanMessage(msg string) string {
+	parts := strings.Split(msg, ": ")
+	out := parts[:0]
+	for i, p := range parts {
+		if internalPackages[p] && i < len(parts)-1 {
+			continue
+		}
+		out = append(out, p)
+	}
+	return strings.Join(out, ": ")
 }

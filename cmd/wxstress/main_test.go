@@ -72,7 +72,7 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"fit", "--temps", "x.csv", "--shocks", "cauchy"}, exitUsage, "normal, t, skew-t"},
 		{[]string{"fit", "--temps", "/nonexistent/x.csv"}, exitFailure, "no such file"},
 		{[]string{"fit", "--bogus"}, exitUsage, "unknown flag"},
-		{[]string{"simulate", "--model", "m.json", "--paths", "0"}, exitUsage, "--paths must be a positive"},
+		{[]string{"simulate", "--model", "m.json", "--paths", "0"}, exitUsage, "--paths must be a number from 1"},
 		{[]string{"simulate", "--model", "m.json", "--period", "winter"}, exitUsage, "MM-DD:MM-DD"},
 		{[]string{"simulate", "--model", "m.json", "--period", "02-30:03-01"}, exitUsage, "malformed window"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "frost:3"}, exitUsage, "unknown index"},

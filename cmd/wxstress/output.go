@@ -6,18 +6,20 @@ package main
 // the pipeline (package stress) and prints through these.
 
 import (
+	"context"
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
-	"wxstress/internal/atomicfile"
+	"wxstress/internal/outputs"
 	"wxstress/internal/render"
 	"wxstress/internal/report"
 	"wxstress/model"
@@ -25,39 +27,11 @@ import (
 	"wxstress/stress"
 )
 
-// emitFit prints the model summary or JSON and writes the model file.
-func emitFit(stdout, stderr io.Writer, m *model.File, format, out string) error {
+// emitFit prints the model summary or JSON, with the data's warnings on
+// stderr.
+func emitFit(stdout, stderr io.Writer, m *model.File, format string) error {
 	for _, w := range m.Data.Warnings {
 		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
-	}
-	if out != "" {
-		if err := m.Write(out); err != nil {
-			return err
-		}
-	}
-	if format == "json" {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		return enc.Encode(m)
-	}
-	if err := render.FitSummary(stdout, m); err != nil {
-		return err
-	}
-	if out != "" {
-		fmt.Fprintf(stdout, "\nModel written to %s\n", out)
-	}
-	return nil
-}
-
-// emitDemand prints the demand summary or JSON and writes the model file.
-func emitDemand(stdout, stderr io.Writer, m *model.Demand, format, out string) error {
-	for _, w := range m.Warnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
-	}
-	if out != "" {
-		if err := m.Write(out); err != nil {
-			return err
-		}
 	}
 	if format == "json" {
 		b, err := m.MarshalIndent()
@@ -67,13 +41,163 @@ func emitDemand(stdout, stderr io.Writer, m *model.Demand, format, out string) e
 		_, err = stdout.Write(b)
 		return err
 	}
-	if err := render.DemandSummary(stdout, m); err != nil {
+	return render.FitSummary(stdout, m)
+}
+
+// emitDemand prints the demand summary or JSON, with the fit's warnings on
+// stderr.
+func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string) error {
+	for _, w := range m.Warnings {
+		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+	}
+	if format == "json" {
+		b, err := m.MarshalIndent()
+		if err != nil {
+			return err
+		}
+		_, err = stdout.Write(b)
 		return err
 	}
-	if out != "" {
-		fmt.Fprintf(stdout, "\nDemand model written to %s\n", out)
+	return render.DemandSummary(stdout, m)
+}
+
+// outputPlan is a command's output files. Each path is checked before any
+// work (outputs.Check: not one of the inputs, not a link or a special file,
+// not an existing file without --force), and the files are written into a
+// staging directory and moved into place together at the end, or not at
+// all: a failure or an interrupt leaves what was there before.
+type outputPlan struct {
+	seen   map[string]bool // cleaned absolute paths checked so far
+	inputs []string
+	force  bool
+	set    *outputs.Set
+	made   []string // directories created for the outputs, removed on abort
+}
+
+func newOutputPlan(force bool, inputs ...string) *outputPlan {
+	var in []string
+	for _, p := range inputs {
+		if p != "" {
+			in = append(in, p)
+		}
+	}
+	return &outputPlan{inputs: in, force: force, set: outputs.NewSet(""), seen: map[string]bool{}}
+}
+
+// check refuses, before any work, the output paths that may not be written.
+func (p *outputPlan) check(paths ...string) error {
+	for _, path := range paths {
+		if path == "" {
+			continue
+		}
+		if err := outputs.Check(path, p.inputs, p.force); err != nil {
+			return err
+		}
+		abs, err := filepath.Abs(path)
+		if err != nil {
+			return err
+		}
+		if p.seen[abs] {
+			return &outputs.RefusedError{Path: path, Reason: "two outputs of this run would go there"}
+		}
+		p.seen[abs] = true
 	}
 	return nil
+}
+
+// checkDir checks a directory of outputs: the directory itself (an existing
+// one must be a real directory) and each file in it.
+func (p *outputPlan) checkDir(dir string, names ...string) error {
+	if fi, err := os.Lstat(dir); err == nil && !fi.IsDir() {
+		return &outputs.RefusedError{Path: dir, Reason: "it is not a directory"}
+	}
+	for _, n := range names {
+		if err := p.check(filepath.Join(dir, n)); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// add stages one output file, making its directory when it does not exist.
+func (p *outputPlan) add(path string, fill func(io.Writer) error) error {
+	dir := filepath.Dir(path)
+	if _, err := os.Stat(dir); errors.Is(err, fs.ErrNotExist) {
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return err
+		}
+		p.made = append(p.made, dir)
+	}
+	return p.set.Add(path, fill)
+}
+
+func (p *outputPlan) addBytes(path string, b []byte) error {
+	return p.add(path, func(w io.Writer) error { _, err := w.Write(b); return err })
+}
+
+// commit moves every staged file into place.
+func (p *outputPlan) commit(ctx context.Context) error {
+	if err := p.set.Commit(ctx); err != nil {
+		p.abort()
+		return err
+	}
+	p.made = nil
+	return nil
+}
+
+// abort drops the staged files and the directories made for them; it is
+// safe to defer after commit.
+func (p *outputPlan) abort() {
+	p.set.Abort()
+	for i := len(p.made) - 1; i >= 0; i-- {
+		os.Remove(p.made[i]) // only if empty
+	}
+	p.made = nil
+}
+
+func (p *outputPlan) runID() string { return p.set.RunID() }
+
+// runPipeline runs the job and returns as soon as ctx is cancelled (Ctrl-C,
+// SIGTERM), whether or not the computation has reached a point where it
+// checks: the command then exits with nothing written, and the process's
+// exit ends the abandoned work.
+func runPipeline(ctx context.Context, job *stress.Job) (*stress.Result, error) {
+	type outcome struct {
+		res *stress.Result
+		err error
+	}
+	done := make(chan outcome, 1)
+	go func() {
+		res, err := stress.Run(ctx, job)
+		done <- outcome{res, err}
+	}()
+	select {
+	case o := <-done:
+		return o.res, o.err
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	}
+}
+
+// interruptible runs f (a read of a large file, a fit) and returns early
+// with ctx's error when ctx is cancelled, as runPipeline does.
+func interruptible[T any](ctx context.Context, f func() (T, error)) (T, error) {
+	type outcome struct {
+		v   T
+		err error
+	}
+	done := make(chan outcome, 1)
+	go func() {
+		v, err := f()
+		done <- outcome{v, err}
+	}()
+	select {
+	case o := <-done:
+		return o.v, o.err
+	case <-ctx.Done():
+		var zero T
+		return zero, ctx.Err()
+	}
 }
 
 // readDemandModel reads a demand model file and returns its SHA-256.
@@ -111,22 +235,18 @@ func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Mani
 	}
 }
 
-// writeSimDir writes the tail tables and per-path aggregates into dir, each
-// file atomically.
-func writeSimDir(dir string, rep *render.SimReport, res *sim.Result) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return err
+// simFiles are the files a simulation writes into its --out directory.
+var simFiles = []string{"tails.json", "tails.csv", "paths.csv"}
+
+// addSimDir stages the tail tables and the per-path aggregates in dir.
+func addSimDir(p *outputPlan, dir string, rep *render.SimReport, res *sim.Result) error {
+	fills := []func(io.Writer) error{
+		func(w io.Writer) error { return render.SimJSON(w, rep) },
+		func(w io.Writer) error { return render.SimCSV(w, rep) },
+		func(w io.Writer) error { return render.PathsCSV(w, res) },
 	}
-	files := []struct {
-		name string
-		fill func(io.Writer) error
-	}{
-		{"tails.json", func(w io.Writer) error { return render.SimJSON(w, rep) }},
-		{"tails.csv", func(w io.Writer) error { return render.SimCSV(w, rep) }},
-		{"paths.csv", func(w io.Writer) error { return render.PathsCSV(w, res) }},
-	}
-	for _, f := range files {
-		if err := atomicfile.Write(filepath.Join(dir, f.name), f.fill); err != nil {
+	for i, name := range simFiles {
+		if err := p.add(filepath.Join(dir, name), fills[i]); err != nil {
 			return err
 		}
 	}
@@ -147,6 +267,12 @@ func attachProgress(cfg *sim.Config, stderr io.Writer, runs int) func() {
 	return func() { bar.Finish() }
 }
 
+// bytesSHA returns the hex SHA-256 of b.
+func bytesSHA(b []byte) string {
+	h := sha256.Sum256(b)
+	return hex.EncodeToString(h[:])
+}
+
 // fileSHA returns the hex SHA-256 of a file, or "" when it cannot be read.
 func fileSHA(path string) string {
 	b, err := os.ReadFile(path)
@@ -157,7 +283,7 @@ func fileSHA(path string) string {
 	return hex.EncodeToString(h[:])
 }
 
-// writeReport renders the HTML report of a run into path, atomically.
-func writeReport(path string, res *stress.Result, meta report.Meta) error {
-	return atomicfile.Write(path, func(w io.Writer) error { return report.Write(w, report.New(res, meta)) })
+// addReport stages the HTML report of a run.
+func addReport(p *outputPlan, path string, res *stress.Result, meta report.Meta) error {
+	return p.add(path, func(w io.Writer) error { return report.Write(w, report.New(res, meta)) })
 }

@@ -62,10 +62,13 @@ type simulateOptions struct {
 	format    string
 	out       string
 	report    string
+	force     bool
+	maxMemory string
 
-	fs         *pflag.FlagSet
-	thresholds []sim.Threshold
-	loaded     []*scenarios.Scenario
+	fs          *pflag.FlagSet
+	memoryLimit int64
+	thresholds  []sim.Threshold
+	loaded      []*scenarios.Scenario
 }
 
 func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
@@ -89,6 +92,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
+	fs.BoolVar(&o.force, "force", false, "replace existing output files")
+	fs.StringVar(&o.maxMemory, "max-memory", "", "refuse a run whose estimated memory is above this, e.g. 8G (default: half the machine's memory)")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
 	o.fs = fs
@@ -99,8 +104,16 @@ func (o *simulateOptions) validate() error {
 	if o.modelPath == "" {
 		return usagef("simulate: --model is required")
 	}
-	if o.paths <= 0 {
-		return usagef("simulate: --paths must be a positive number, got %d", o.paths)
+	o.memoryLimit = stress.DefaultMemoryLimit()
+	if o.maxMemory != "" {
+		v, err := stress.ParseBytes(o.maxMemory)
+		if err != nil {
+			return usagef("simulate: --max-memory %q: want a size such as 8G or 800M", o.maxMemory)
+		}
+		o.memoryLimit = v
+	}
+	if o.paths <= 0 || o.paths > stress.MaxPaths {
+		return usagef("simulate: --paths must be a number from 1 to %d, got %d", stress.MaxPaths, o.paths)
 	}
 	if o.workers < 0 {
 		return usagef("simulate: --workers must be positive, got %d", o.workers)
@@ -172,11 +185,21 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err := o.validate(); err != nil {
 		return err
 	}
+	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history}, o.scenarios...)...)
+	if o.out != "" {
+		if err := plan.checkDir(o.out, simFiles...); err != nil {
+			return err
+		}
+	}
+	if err := plan.check(o.report); err != nil {
+		return err
+	}
+	defer plan.abort()
 	m, sum, err := readModel(o.modelPath)
 	if err != nil {
 		return err
 	}
-	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds}
+	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds, MaxMemory: o.memoryLimit}
 	var demandSum string
 	if o.demand != "" {
 		if job.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
@@ -193,7 +216,10 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		job.Detail = stress.DetailPaths
 	}
 	if o.history != "" {
-		if job.Temps, err = calibrate.ReadFile(o.history, calibrate.ReadOptions{Units: model.Units(m.Data.Units)}); err != nil {
+		job.Temps, err = interruptible(ctx, func() (*calibrate.Series, error) {
+			return calibrate.ReadFile(o.history, calibrate.ReadOptions{Units: model.Units(m.Data.Units)})
+		})
+		if err != nil {
 			return err
 		}
 		if m.Data.SHA256 != "" && job.Temps.SHA256 != m.Data.SHA256 {
@@ -207,19 +233,22 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	start := time.Now()
 	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))
-	out, err := stress.Run(ctx, job)
+	out, err := runPipeline(ctx, job)
 	stop()
 	if err != nil {
 		return err
 	}
 	rep, res := render.NewSimReport(out), out.Set.Base
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
+	if o.out != "" || o.report != "" {
+		rep.Manifest.RunID = plan.runID() // names the set of files written together
+	}
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(o.demand), demandSum
 	}
 	if o.out != "" {
-		if err := writeSimDir(o.out, rep, res); err != nil {
+		if err := addSimDir(plan, o.out, rep, res); err != nil {
 			return err
 		}
 	}
@@ -237,9 +266,12 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				meta.Inputs = append(meta.Inputs, report.InputFile{Role: "scenario", Name: f, SHA256: sum})
 			}
 		}
-		if err := writeReport(o.report, out, meta); err != nil {
+		if err := addReport(plan, o.report, out, meta); err != nil {
 			return err
 		}
+	}
+	if err := plan.commit(ctx); err != nil {
+		return err
 	}
 	switch o.format {
 	case "json":

@@ -19,6 +19,9 @@ import (
 // Manifest records what produced an output. It leaves out the worker count
 // and the wall time on purpose: neither may change a result.
 type Manifest struct {
+	// RunID names the run that wrote a set of outputs (all files of one run
+	// carry the same id).
+	RunID       string   `json:"run_id,omitempty"`
 	Tool        string   `json:"tool"`
 	ToolVersion string   `json:"tool_version"`
 	ModelFile   string   `json:"model_file"`
@@ -325,6 +328,9 @@ func csvManifest(w io.Writer, m Manifest) error {
 	var kv map[string]any
 	json.Unmarshal(b, &kv)
 	e := &errWriter{w: w}
+	if m.RunID != "" {
+		e.printf("# run_id: %s\n", m.RunID)
+	}
 	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "seed", "paths", "year", "start",
 		"periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "quantile_convention", "caution"} {
 		e.printf("# %s: %v\n", k, kv[k])

@@ -1,0 +1,248 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"wxstress/demo"
+)
+
+// writeStation writes the demo station record to dir and returns its path.
+func writeStation(t *testing.T, dir string) string {
+	t.Helper()
+	p := filepath.Join(dir, "station.csv")
+	if err := os.WriteFile(p, demo.Station(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+func mustRead(t *testing.T, p string) string {
+	t.Helper()
+	b, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(b)
+}
+
+// TestOutputsNeverDestroyInputs covers the outputs a run must refuse: one of
+// its inputs, a symlink, a device, a directory, and an existing file without
+// --force. Each is refused with exit 1 before any work, naming the path, and
+// the input is unchanged.
+func TestOutputsNeverDestroyInputs(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	station := writeStation(t, dir)
+	before := mustRead(t, station)
+	m := demoModel(t)
+	modelBefore := mustRead(t, m)
+	link := filepath.Join(dir, "link.json")
+	if err := os.Symlink(filepath.Join(dir, "elsewhere.json"), link); err != nil {
+		t.Fatal(err)
+	}
+	existing := filepath.Join(dir, "existing.json")
+	if err := os.WriteFile(existing, []byte("keep me"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"fit", "--temps", station, "--out", station}, "input"},
+		{[]string{"fit", "--temps", station, "--report", station}, "input"},
+		{[]string{"simulate", "--model", m, "--paths", "100", "--report", m}, "input"},
+		{[]string{"fit", "--temps", station, "--out", link}, "link"},
+		{[]string{"fit", "--temps", station, "--out", os.DevNull}, os.DevNull},
+		{[]string{"fit", "--temps", station, "--out", dir}, dir},
+		{[]string{"fit", "--temps", station, "--out", existing}, "--force"},
+		{[]string{"fit", "--temps", station, "--out", filepath.Join(dir, "a.json"), "--report", filepath.Join(dir, "a.json")}, "two outputs"},
+		{[]string{"simulate", "--model", m, "--paths", "100", "--out", existing}, "not a directory"},
+	} {
+		start := time.Now()
+		code, _, stderr := call(t, context.Background(), c.args...)
+		if code != exitFailure || !strings.Contains(stderr, c.want) {
+			t.Errorf("%v: exit %d, %q; want exit 1 naming %q", c.args, code, stderr, c.want)
+		}
+		if time.Since(start) > 2*time.Second {
+			t.Errorf("%v: refused only after %v: the check must come before the work", c.args, time.Since(start))
+		}
+	}
+	if mustRead(t, station) != before || mustRead(t, m) != modelBefore || mustRead(t, existing) != "keep me" {
+		t.Error("an input or an existing file was changed")
+	}
+	if _, err := os.Lstat(filepath.Join(dir, "elsewhere.json")); err == nil {
+		t.Error("the symlink's target was written")
+	}
+	// With --force an existing regular file is replaced.
+	if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--format", "json",
+		"--report", existing, "--force"); code != exitOK {
+		t.Errorf("--force: exit %d: %s", code, stderr)
+	}
+	if strings.HasPrefix(mustRead(t, existing), "keep me") {
+		t.Error("--force did not replace the existing file")
+	}
+}
+
+// TestOutputSetIsAllOrNothing makes one output of a run fail (its
+// directory, /proc, cannot take files even for root) and checks that the
+// other outputs are not written either: the previous set in the output
+// directory is untouched and no staging is left.
+func TestOutputSetIsAllOrNothing(t *testing.T) {
+	t.Parallel()
+	if _, err := os.Stat("/proc/self"); err != nil {
+		t.Skip("no /proc")
+	}
+	dir := t.TempDir()
+	m := demoModel(t)
+	out := filepath.Join(dir, "res")
+	if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "200", "--out", out); code != exitOK {
+		t.Fatalf("first run: exit %d: %s", code, stderr)
+	}
+	first := mustRead(t, filepath.Join(out, "tails.json"))
+	code, _, _ := call(t, context.Background(), "simulate", "--model", m, "--paths", "300", "--seed", "9", "--out", out, "--force",
+		"--report", "/proc/wxstress-test-report.html")
+	if code != exitFailure {
+		t.Fatalf("exit %d, want 1", code)
+	}
+	if mustRead(t, filepath.Join(out, "tails.json")) != first {
+		t.Error("a failed run replaced tails.json of the previous run")
+	}
+	entries, _ := os.ReadDir(dir)
+	for _, e := range entries {
+		if strings.HasPrefix(e.Name(), ".wxstress") {
+			t.Errorf("staging left behind: %s", e.Name())
+		}
+	}
+}
+
+// TestRunIDSharedBySet checks that the files of one run carry the same run
+// id and that two runs differ.
+func TestRunIDSharedBySet(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	m := demoModel(t)
+	ids := map[string]bool{}
+	for i := range 2 {
+		out := filepath.Join(dir, fmt.Sprint(i))
+		if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--out", out); code != exitOK {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		j, c := mustRead(t, filepath.Join(out, "tails.json")), mustRead(t, filepath.Join(out, "tails.csv"))
+		id := between(j, `"run_id": "`, `"`)
+		if id == "" || !strings.Contains(c, id) {
+			t.Errorf("run %d: run id %q not in both files", i, id)
+		}
+		ids[id] = true
+	}
+	if len(ids) != 2 {
+		t.Errorf("two runs share a run id: %v", ids)
+	}
+}
+
+func between(s, a, b string) string {
+	_, rest, ok := strings.Cut(s, a)
+	if !ok {
+		return ""
+	}
+	v, _, _ := strings.Cut(rest, b)
+	return v
+}
+
+// TestMemoryLimitRefuses10MillionPaths asks for 10⁷ paths of the default
+// job under a 1 GiB limit: refused before any allocation, with the estimate
+// and the flag that lifts the limit. (The default job at 10⁷ paths needs
+// about 1.4 GiB: three periods × six indices × 8 bytes × 10⁷, and a sorted
+// copy of one column.)
+func TestMemoryLimitRefuses10MillionPaths(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	start := time.Now()
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "10000000", "--max-memory", "1G")
+	if code != exitFailure || !strings.Contains(stderr, "--max-memory") || !strings.Contains(stderr, "1.4 GiB") {
+		t.Errorf("exit %d: %s", code, stderr)
+	}
+	if time.Since(start) > 2*time.Second {
+		t.Errorf("refused only after %v", time.Since(start))
+	}
+	for _, p := range []string{"0", "-5", "9223372036854775807"} {
+		if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", p); code != exitUsage {
+			t.Errorf("--paths %s: exit %d, want 2: %s", p, code, stderr)
+		}
+	}
+}
+
+// TestWriteFailureIsExitOne: a command whose output cannot be written fails.
+func TestWriteFailureIsExitOne(t *testing.T) {
+	t.Parallel()
+	full, err := os.OpenFile("/dev/full", os.O_WRONLY, 0)
+	if err != nil {
+		t.Skip("no /dev/full")
+	}
+	defer full.Close()
+	for _, args := range [][]string{{"version"}, {"help"}, {"scenarios"}} {
+		if code := run(context.Background(), args, full, new(strings.Builder)); code != exitFailure {
+			t.Errorf("%v to a full device: exit %d, want 1", args, code)
+		}
+	}
+}
+
+// TestSIGINTDuringFit starts the built command on a long record, interrupts
+// it while it fits, and checks it exits 130 within a second, with nothing
+// written.
+func TestSIGINTDuringFit(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the command")
+	}
+	t.Parallel()
+	dir := t.TempDir()
+	bin := filepath.Join(dir, "wxstress")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("build: %v\n%s", err, out)
+	}
+	// 150 years of daily means: a fit of several seconds.
+	var b strings.Builder
+	b.WriteString("date,tavg\n")
+	r := rand.New(rand.NewPCG(1, 2))
+	d := time.Date(1870, 1, 1, 0, 0, 0, 0, time.UTC)
+	x := 0.0
+	for ; d.Year() < 2020; d = d.AddDate(0, 0, 1) {
+		x = 0.7*x + 2.5*r.NormFloat64()
+		fmt.Fprintf(&b, "%s,%.1f\n", d.Format("2006-01-02"), 10+10*math.Cos(2*math.Pi*float64(d.YearDay()-200)/365.25)+x)
+	}
+	station := filepath.Join(dir, "long.csv")
+	if err := os.WriteFile(station, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "m.json")
+	cmd := exec.Command(bin, "fit", "--temps", station, "--out", out)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(700 * time.Millisecond)
+	sent := time.Now()
+	if err := cmd.Process.Signal(syscall.SIGINT); err != nil {
+		t.Fatal(err)
+	}
+	err := cmd.Wait()
+	took := time.Since(sent)
+	ee, ok := err.(*exec.ExitError)
+	if !ok || ee.ExitCode() != exitInterrupted {
+		t.Fatalf("after SIGINT: %v, want exit 130", err)
+	}
+	if took > time.Second {
+		t.Errorf("exit %v after the signal, want within a second", took)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("an interrupted fit wrote its model")
+	}
+}
