@@ -4,12 +4,15 @@ import (
 	"context"
 	"io"
 	"math"
+	"path/filepath"
+	"time"
 
 	"github.com/spf13/pflag"
 
 	"wxstress/backtest"
 	"wxstress/calibrate"
 	"wxstress/internal/render"
+	"wxstress/internal/report"
 	"wxstress/model"
 	"wxstress/sim"
 )
@@ -29,11 +32,14 @@ Kolmogorov–Smirnov test and the sd of probit(PIT), and the CRPS of the model
 against the climatology of the earlier seasons.`,
 	examples: `  wxstress backtest --temps station.csv
   wxstress backtest --temps station.csv --units F --origins 40 --period year --period heating --period jan
-  wxstress backtest --temps station.csv --paths 5000 --format json > backtest.json`,
+  wxstress backtest --temps station.csv --paths 5000 --format json > backtest.json
+  wxstress backtest --temps station.csv --report backtest.html`,
 }
 
 type backtestOptions struct {
 	temps, units, format string
+	report               string
+	force                bool
 	origins, paths       int
 	seed                 uint64
 	periods              []string
@@ -53,6 +59,8 @@ func newBacktestFlags(o *backtestOptions) *pflag.FlagSet {
 	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F)")
 	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
 	fs.StringVar(&o.format, "format", "table", "output: table or json")
+	fs.StringVar(&o.report, "report", "", "also write an HTML report (PIT histograms, realised values over the forecast band) here")
+	fs.BoolVar(&o.force, "force", false, "replace an existing report file")
 	o.fs = fs
 	return fs
 }
@@ -98,7 +106,12 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
-	series, err := calibrate.ReadFile(o.temps, o.readOpts)
+	plan := newOutputPlan(o.force, o.temps)
+	if err := plan.check(o.report); err != nil {
+		return err
+	}
+	defer plan.abort()
+	series, err := interruptible(ctx, func() (*calibrate.Series, error) { return calibrate.ReadFile(o.temps, o.readOpts) })
 	if err != nil {
 		return err
 	}
@@ -109,9 +122,20 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if o.fs.Changed("cdd-base") {
 		b.CDD = o.cddBase
 	}
-	res, err := backtest.Run(ctx, series, backtest.Options{Origins: o.origins, Periods: o.periods, Paths: o.paths,
-		Seed: o.seed, Bases: b})
+	res, err := interruptible(ctx, func() (*backtest.Result, error) {
+		return backtest.Run(ctx, series, backtest.Options{Origins: o.origins, Periods: o.periods, Paths: o.paths, Seed: o.seed, Bases: b})
+	})
 	if err != nil {
+		return err
+	}
+	if o.report != "" {
+		meta := report.BacktestMeta{Title: "Backtest of " + filepath.Base(o.temps), Created: time.Now(), Units: string(series.Units),
+			Inputs: []report.InputFile{{Role: "temperatures", Name: o.temps, SHA256: series.SHA256}}}
+		if err := plan.add(o.report, func(w io.Writer) error { return report.WriteBacktest(w, res, meta) }); err != nil {
+			return err
+		}
+	}
+	if err := plan.commit(ctx); err != nil {
 		return err
 	}
 	if o.format == "json" {
