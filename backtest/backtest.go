@@ -53,6 +53,13 @@ type Options struct {
 	Bases   sim.Bases // zero: the units' defaults
 	Fit     *calibrate.Settings
 	Workers int // origins fitted at once; 0 = GOMAXPROCS
+	// Demand and Loads, when both set, add the season's demand energy and
+	// peak-day demand: each origin simulates demand with the demand model
+	// (fitted once, on its own record), holidays from the load record, and
+	// the realised values are the loads of the period (origins whose period
+	// the load record does not cover are left out of the demand rows).
+	Demand *model.Demand
+	Loads  *calibrate.DemandSeries
 	// Refit fits one origin's record; nil means: the structure chosen by
 	// calibrate.Fit with Fit on the record before the earliest origin, then
 	// a lean refit of that structure for every origin.
@@ -85,8 +92,11 @@ type Result struct {
 // ErrShort is returned when the record holds no origin.
 var ErrShort = errors.New("backtest: record too short")
 
-// indices backtested for each period.
-var indices = []sim.Index{sim.HDD, sim.CDD}
+// tempIndices and demandIndices are backtested for each period.
+var (
+	tempIndices   = []sim.Index{sim.HDD, sim.CDD}
+	demandIndices = []sim.Index{sim.Energy, sim.PeakDemand}
+)
 
 // Run backtests the record s.
 func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error) {
@@ -144,10 +154,27 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 		return f
 	}
 
+	indices := tempIndices
+	withDemand := opt.Demand != nil && opt.Loads != nil
+	var loads map[calendar.Date]float64
+	var holidays []calendar.Date
+	if withDemand {
+		indices = append(slices.Clone(tempIndices), demandIndices...)
+		loads = map[calendar.Date]float64{}
+		for i, d := range opt.Loads.Dates {
+			if !math.IsNaN(opt.Loads.Load[i]) {
+				loads[d] = opt.Loads.Load[i]
+			}
+			if opt.Loads.Holiday[i] {
+				holidays = append(holidays, d)
+			}
+		}
+	}
 	type outcome struct {
-		origin  [2]Origin    // by indices
-		sample  [2][]float64 // the simulated values, by indices
-		skipped bool
+		origin   []Origin    // by indices
+		sample   [][]float64 // the simulated values, by indices
+		skipped  bool
+		noDemand bool // the load record does not cover the period
 	}
 	out := make([]outcome, len(jobs))
 	g, gctx := errgroup.WithContext(ctx)
@@ -172,20 +199,45 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 				out[i].skipped = true
 				return nil
 			}
-			run, err := stress.Run(gctx, &stress.Job{Model: m, Config: sim.Config{Paths: opt.Paths, Seed: opt.Seed, Workers: 1,
-				Year: j.p.To.Year(), Start: sim.StartConditional, Periods: []string{j.period}, Bases: opt.Bases}})
+			cfg := sim.Config{Paths: opt.Paths, Seed: opt.Seed, Workers: 1, Year: j.p.To.Year(), Start: sim.StartConditional,
+				Periods: []string{j.period}, Bases: opt.Bases}
+			energy, peak, covered := 0.0, math.Inf(-1), withDemand
+			for d := j.p.From; covered && d <= j.p.To; d++ {
+				v, ok := loads[d]
+				energy, peak, covered = energy+v, max(peak, v), ok
+			}
+			out[i].noDemand = !covered
+			job := &stress.Job{Model: m, Config: cfg}
+			if covered {
+				job.Demand = opt.Demand
+				job.Holidays = &calibrate.Holidays{Dates: holidays}
+			}
+			run, err := stress.Run(gctx, job)
 			if err != nil {
 				return fmt.Errorf("backtest: %s %d: %w", j.period, j.p.To.Year(), err)
 			}
 			res := run.Set.Base
 			vals := sim.TempIndices(days, opt.Bases)
+			out[i].origin = make([]Origin, len(indices))
+			out[i].sample = make([][]float64, len(indices))
 			for k, x := range indices {
+				var v float64
+				switch {
+				case x == sim.Energy && covered:
+					v = energy
+				case x == sim.PeakDemand && covered:
+					v = peak
+				case x >= sim.Energy:
+					continue // not covered by the load record
+				default:
+					v = vals[x]
+				}
 				sample := aggregate(res, x)
 				sorted := slices.Clone(sample)
 				slices.Sort(sorted)
 				q := func(p float64) float64 { return stat.Quantile(p, stat.LinInterp, sorted, nil) }
-				out[i].origin[k] = Origin{Year: j.p.To.Year(), Realized: vals[x], Missing: missing,
-					PIT: evidence.PIT(sample, vals[x]), P05: q(0.05), P50: q(0.5), P95: q(0.95)}
+				out[i].origin[k] = Origin{Year: j.p.To.Year(), Realized: v, Missing: missing,
+					PIT: evidence.PIT(sample, v), P05: q(0.05), P50: q(0.5), P95: q(0.95)}
 				out[i].sample[k] = sample
 			}
 			return nil
@@ -204,12 +256,15 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 		if err != nil {
 			return nil, err
 		}
+		if withDemand {
+			clim.addDemand(opt.Loads, name)
+		}
 		for k, x := range indices {
 			row := Row{Index: x, Period: name}
 			var cases []evidence.Case
 			allZero := true
 			for i, j := range jobs {
-				if j.period != name || out[i].skipped {
+				if j.period != name || out[i].skipped || x >= sim.Energy && out[i].noDemand {
 					continue
 				}
 				o := out[i].origin[k]
@@ -268,12 +323,39 @@ func seasons(s *calibrate.Series, name string, b sim.Bases) (*climate, error) {
 	return c, nil
 }
 
+// addDemand adds the periods' demand energy and peak-day demand from the
+// load record, for the seasons it covers completely; seasons it does not
+// cover keep NaN there (and drop out of the climatology of those indices).
+func (c *climate) addDemand(l *calibrate.DemandSeries, name string) {
+	byDate := map[calendar.Date]float64{}
+	for i, d := range l.Dates {
+		if !math.IsNaN(l.Load[i]) {
+			byDate[d] = l.Load[i]
+		}
+	}
+	for i, y := range c.years {
+		p, _ := sim.ParsePeriod(name, y)
+		energy, peak, ok := 0.0, math.Inf(-1), true
+		for d := p.From; ok && d <= p.To; d++ {
+			var v float64
+			v, ok = byDate[d]
+			energy, peak = energy+v, max(peak, v)
+		}
+		for len(c.values[i]) <= int(sim.PeakDemand) {
+			c.values[i] = append(c.values[i], math.NaN())
+		}
+		if ok {
+			c.values[i][sim.Energy], c.values[i][sim.PeakDemand] = energy, peak
+		}
+	}
+}
+
 // before returns index x in the seasons that ended before year: the
 // climatological forecast for that origin; nil when fewer than two.
 func (c *climate) before(year int, x sim.Index) []float64 {
 	var v []float64
 	for i, y := range c.years {
-		if y < year {
+		if y < year && int(x) < len(c.values[i]) && !math.IsNaN(c.values[i][x]) {
 			v = append(v, c.values[i][x])
 		}
 	}

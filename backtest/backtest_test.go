@@ -1,14 +1,18 @@
 package backtest
 
 import (
+	"bytes"
 	"context"
+	"encoding/csv"
 	"math"
 	"math/rand/v2"
+	"strconv"
 	"testing"
 	"time"
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
+	"wxstress/demo"
 	"wxstress/model"
 	"wxstress/sim"
 )
@@ -115,5 +119,75 @@ func TestOriginsDoNotSeeTheirPeriod(t *testing.T) {
 				t.Errorf("origin %d has fewer than %d years of record before it", o.Year, MinTrainYears)
 			}
 		}
+	}
+}
+
+// TestDemandOrigins backtests the demo's demand with its fitted demand
+// model: every origin the load record covers gets the season's energy and
+// peak day, recomputed here from the load CSV's text.
+func TestDemandOrigins(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo record")
+	}
+	t.Parallel()
+	s, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		t.Fatal(err)
+	}
+	loads, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	days, err := calibrate.JoinDemand(loads, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dfit, err := calibrate.FitDemand(days, &calibrate.DemandSettings{Unit: demo.DemandUnit})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The loads by date, read straight from the CSV text.
+	rows, err := csv.NewReader(bytes.NewReader(demo.Demand())).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	load := map[string]float64{}
+	for _, r := range rows[1:] {
+		v, err := strconv.ParseFloat(r[1], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		load[r[0]] = v
+	}
+	res, err := Run(context.Background(), s, Options{Origins: 8, Periods: []string{"year"}, Paths: 1000, Seed: 1,
+		Demand: dfit.Model, Loads: loads})
+	if err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for _, row := range res.Rows {
+		if row.Index != sim.Energy {
+			continue
+		}
+		found = true
+		// The load record covers 2021–2025: five calendar years.
+		if len(row.Origins) != 5 {
+			t.Errorf("%d energy origins, want 5 (2021–2025)", len(row.Origins))
+		}
+		for _, o := range row.Origins {
+			sum := 0.0
+			for d := time.Date(o.Year, 1, 1, 0, 0, 0, 0, time.UTC); d.Year() == o.Year; d = d.AddDate(0, 0, 1) {
+				sum += load[d.Format("2006-01-02")]
+			}
+			if math.Abs(sum-o.Realized) > 1e-6*sum {
+				t.Errorf("%d: realised energy %.0f, the CSV sums to %.0f", o.Year, o.Realized, sum)
+			}
+			if !(o.P05 < o.P95) || o.PIT < 0 || o.PIT > 1 {
+				t.Errorf("%d: band %.0f–%.0f, PIT %v", o.Year, o.P05, o.P95, o.PIT)
+			}
+		}
+	}
+	if !found {
+		t.Fatal("no demand-energy row")
 	}
 }

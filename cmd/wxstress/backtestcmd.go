@@ -24,7 +24,9 @@ of the record (default 30 of each kind, fewer when the record is short; the
 first needs 5 years of record before it), fit the model to the data that end
 the day before the period starts, simulate the period from that day
 (conditional start), and place the realised HDD and CDD in the simulated
-distribution. The model's structure (harmonics, AR order, slow part, shock
+distribution; with --demand and --load also the season's demand energy and
+peak-day demand (the demand model fitted once; its realised values from the
+load file). The model's structure (harmonics, AR order, slow part, shock
 family) is chosen once, by the automatic fit on the record before the
 earliest origin; each origin is then refitted with that structure. Reports the
 coverage of the central 50 % and 90 % bands with binomial p-values, the
@@ -40,6 +42,7 @@ type backtestOptions struct {
 	temps, units, format string
 	report               string
 	force                bool
+	demand, load         string
 	origins, paths       int
 	seed                 uint64
 	periods              []string
@@ -59,6 +62,8 @@ func newBacktestFlags(o *backtestOptions) *pflag.FlagSet {
 	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F)")
 	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
 	fs.StringVar(&o.format, "format", "table", "output: table or json")
+	fs.StringVar(&o.demand, "demand", "", "with --load: a demand model from 'wxstress fit-demand'; adds season energy and peak-day demand")
+	fs.StringVar(&o.load, "load", "", "with --demand: the daily demand CSV (as fit-demand reads it) whose seasons are the realised values")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (PIT histograms, realised values over the forecast band) here")
 	fs.BoolVar(&o.force, "force", false, "replace an existing report file")
 	o.fs = fs
@@ -71,6 +76,9 @@ func (o *backtestOptions) validate() error {
 	}
 	if o.format != "table" && o.format != "json" {
 		return usagef("backtest: --format %q: want table or json", o.format)
+	}
+	if (o.demand == "") != (o.load == "") {
+		return usagef("backtest: --demand and --load go together")
 	}
 	if o.origins < 3 || o.origins > 500 {
 		return usagef("backtest: --origins %d: want 3..500", o.origins)
@@ -106,7 +114,7 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, o.temps)
+	plan := newOutputPlan(o.force, o.temps, o.demand, o.load)
 	if err := plan.check(o.report); err != nil {
 		return err
 	}
@@ -122,9 +130,19 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if o.fs.Changed("cdd-base") {
 		b.CDD = o.cddBase
 	}
-	res, err := interruptible(ctx, func() (*backtest.Result, error) {
-		return backtest.Run(ctx, series, backtest.Options{Origins: o.origins, Periods: o.periods, Paths: o.paths, Seed: o.seed, Bases: b})
-	})
+	opt := backtest.Options{Origins: o.origins, Periods: o.periods, Paths: o.paths, Seed: o.seed, Bases: b}
+	if o.demand != "" {
+		if opt.Demand, _, err = readDemandModel(o.demand); err != nil {
+			return err
+		}
+		if err := opt.Demand.CheckUnits(string(series.Units)); err != nil {
+			return err
+		}
+		if opt.Loads, err = calibrate.ReadDemandFile(o.load, calibrate.DemandReadOptions{}); err != nil {
+			return err
+		}
+	}
+	res, err := interruptible(ctx, func() (*backtest.Result, error) { return backtest.Run(ctx, series, opt) })
 	if err != nil {
 		return err
 	}
