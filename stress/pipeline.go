@@ -4,9 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"slices"
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
+	"wxstress/hedge"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -52,6 +54,12 @@ type Job struct {
 	// History asks for the record's own complete seasons beside the model
 	// (needs Temps and a simulation).
 	History bool
+	// Hedge evaluates the retailer's exposure and contracts on the
+	// baseline's paths (its periods are added to the simulation's); the
+	// burn price uses the record's seasons when History is set.
+	// HedgeOptions nil means hedge.DefaultOptions.
+	Hedge        *hedge.File
+	HedgeOptions *hedge.Options
 	// Uncertainty asks for parameter uncertainty by a parametric bootstrap
 	// (needs Temps, the record the model describes, and a simulation).
 	Uncertainty *Uncertainty
@@ -90,8 +98,10 @@ type Result struct {
 	History *HistoricalSeasons // with Job.History
 	// Refits are the bootstrap's refitted models and Bands the 90 %
 	// confidence bands of the baseline's tail numbers (band mode).
-	Refits []*model.File
-	Bands  []RowBands
+	Refits    []*model.File
+	Bands     []RowBands
+	Hedge     *hedge.Result // with Job.Hedge
+	HedgeFile *hedge.File   // Job.Hedge
 }
 
 // ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
@@ -163,6 +173,14 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	cfg := job.Config
 	cfg.Year = res.Model.TargetYear(cfg.Year)
+	if job.Hedge != nil {
+		cfg.Periods = withHedgePeriods(cfg.Periods, job.Hedge)
+		for _, k := range job.Hedge.Needs() {
+			if k.NeedsDemand() && res.Demand == nil {
+				return nil, fmt.Errorf("%w: the hedge file's %s needs a demand model", ErrJob, k)
+			}
+		}
+	}
 	if res.Demand != nil {
 		cfg.Demand = res.Demand
 		if err := job.holidays(res, &cfg); err != nil {
@@ -211,7 +229,56 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			return nil, err
 		}
 	}
+	if job.Hedge != nil {
+		if res.Hedge, err = evaluateHedge(job, set, res.History); err != nil {
+			return nil, err
+		}
+		res.HedgeFile = job.Hedge
+	}
 	return res, nil
+}
+
+// withHedgePeriods returns periods (the defaults when empty) with the
+// hedge file's periods added, each once.
+func withHedgePeriods(periods []string, h *hedge.File) []string {
+	if len(periods) == 0 {
+		periods = sim.DefaultPeriods()
+	}
+	out := slices.Clone(periods)
+	for _, k := range h.Needs() {
+		if !slices.Contains(out, k.Period) {
+			out = append(out, k.Period)
+		}
+	}
+	return out
+}
+
+// evaluateHedge prices the hedge file on the baseline's paths, with the
+// record's seasons (moved to the target year) for the burn price.
+func evaluateHedge(job *Job, set *Set, hist *HistoricalSeasons) (*hedge.Result, error) {
+	values := map[hedge.Key][]float64{}
+	var history map[hedge.Key][]float64
+	for _, k := range job.Hedge.Needs() {
+		for _, a := range set.Base.Aggregates {
+			if a.Index.Info().Key == k.Index && a.Period.Name == k.Period {
+				values[k] = a.Values
+				if hist != nil && !k.NeedsDemand() {
+					if history == nil {
+						history = map[hedge.Key][]float64{}
+					}
+					for _, se := range hist.Seasons[k.Period] {
+						history[k] = append(history[k], se.Values[a.Index])
+					}
+				}
+			}
+		}
+	}
+	opt := hedge.DefaultOptions()
+	if job.HedgeOptions != nil {
+		opt = *job.HedgeOptions
+	}
+	opt.History = history
+	return hedge.Evaluate(job.Hedge, values, &opt)
 }
 
 // holidays sets the simulated holidays: the job's list (dates repeated by

@@ -243,7 +243,7 @@ func addSimDir(p *outputPlan, dir string, rep *render.SimReport, res *sim.Result
 	fills := []func(io.Writer) error{
 		func(w io.Writer) error { return render.SimJSON(w, rep) },
 		func(w io.Writer) error { return render.SimCSV(w, rep) },
-		func(w io.Writer) error { return render.PathsCSV(w, res) },
+		func(w io.Writer) error { return render.PathsCSV(w, res, rep.Hedge) },
 	}
 	for i, name := range simFiles {
 		if err := p.add(filepath.Join(dir, name), fills[i]); err != nil {

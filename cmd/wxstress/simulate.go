@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"strings"
 	"time"
@@ -11,6 +12,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
+	"wxstress/hedge"
 	"wxstress/internal/render"
 	"wxstress/internal/report"
 	"wxstress/model"
@@ -37,7 +39,8 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --paths 1000000 --out results/
   wxstress simulate --model model.json --scenario warm-2c --report stress.html
   wxstress simulate --model model.json --history station.csv --period heating
-  wxstress simulate --model model.json --history station.csv --uncertainty 50 --uncertainty-mode band`,
+  wxstress simulate --model model.json --history station.csv --uncertainty 50 --uncertainty-mode band
+  wxstress simulate --model model.json --demand demand.json --history station.csv --hedge hedge.toml --out book/`,
 }
 
 type simulateOptions struct {
@@ -64,6 +67,8 @@ type simulateOptions struct {
 	report    string
 	force     bool
 	maxMemory string
+	hedgeFile string
+	loading   float64
 
 	fs          *pflag.FlagSet
 	memoryLimit int64
@@ -90,6 +95,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
 	fs.IntVar(&o.refits, "uncertainty", 0, "with --history: parameter uncertainty from N refits to synthetic records of the model (parametric bootstrap; 20–100)")
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
+	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
+	fs.Float64Var(&o.loading, "loading", 0.2, "with --hedge: λ of the loaded price, mean + λ·sd of the payout")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.BoolVar(&o.force, "force", false, "replace existing output files")
@@ -129,6 +136,9 @@ func (o *simulateOptions) validate() error {
 	}
 	if o.mode != stress.UncertaintyBand && o.mode != stress.UncertaintyMix {
 		return usagef("simulate: --uncertainty-mode %q: want band or mix", o.mode)
+	}
+	if math.IsNaN(o.loading) || math.IsInf(o.loading, 0) || o.loading < 0 {
+		return usagef("simulate: --loading %v: want a finite number ≥ 0", o.loading)
 	}
 	if o.holidays != "" && o.demand == "" {
 		return usagef("simulate: --holidays needs --demand")
@@ -185,7 +195,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history}, o.scenarios...)...)
+	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile}, o.scenarios...)...)
 	if o.out != "" {
 		if err := plan.checkDir(o.out, simFiles...); err != nil {
 			return err
@@ -230,6 +240,14 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	if o.refits > 0 {
 		job.Uncertainty = &stress.Uncertainty{Refits: o.refits, Mode: o.mode}
+	}
+	if o.hedgeFile != "" {
+		if job.Hedge, err = hedge.Load(o.hedgeFile); err != nil {
+			return err
+		}
+		opt := hedge.DefaultOptions()
+		opt.Loading = o.loading
+		job.HedgeOptions = &opt
 	}
 	start := time.Now()
 	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))

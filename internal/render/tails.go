@@ -12,6 +12,7 @@ import (
 	"wxstress/evidence"
 	"wxstress/internal/numfmt"
 
+	"wxstress/hedge"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -67,6 +68,9 @@ type SimReport struct {
 	Bands  []stress.RowBands
 	Refits int
 	Mixed  bool
+	// Hedge is the hedge evaluation of HedgeFile; nil without one.
+	Hedge     *hedge.Result
+	HedgeFile *hedge.File
 }
 
 // ScenarioReport is one scenario's tail tables and their changes against
@@ -224,7 +228,8 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		Scenarios []jsonScenario `json:"scenarios"`
 		Planning  *jsonPlanning  `json:"planning,omitempty"`
 		History   *jsonHistory   `json:"historical_seasons,omitempty"`
-	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History)})
+		Hedge     *jsonHedge     `json:"hedge,omitempty"`
+	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r)})
 }
 
 // Statistic is one named number of a tail table: its key in the CSV and the
@@ -360,6 +365,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 	}
 	writePlanning(e, r)
+	writeHedge(e, r)
 	writeBands(e, r)
 	writeHistory(e, r.History, r.Manifest.Units)
 	if len(r.Scenarios) > 0 {
@@ -461,11 +467,24 @@ func byPeriod(rows []sim.Row) [][]sim.Row {
 
 // PathsCSV writes the per-path aggregates: one row a path, one column an
 // index of a period ("heating.hdd").
-func PathsCSV(w io.Writer, res *sim.Result) error {
+func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 	cw := csv.NewWriter(w)
 	header := []string{"path"}
 	for _, a := range res.Aggregates {
 		header = append(header, a.Period.Name+"."+a.Index.Info().Key)
+	}
+	var cols [][]float64
+	if h != nil {
+		// The hedge's per-path values: the exposure cost, each contract's
+		// payout (one contract bought) and the net cost.
+		header = append(header, "hedge.exposure_cost")
+		cols = append(cols, h.Cost)
+		for _, c := range h.Contracts {
+			header = append(header, "hedge.payout."+strings.ReplaceAll(c.Contract.Name, ",", " "))
+			cols = append(cols, c.Payoffs)
+		}
+		header = append(header, "hedge.net_cost")
+		cols = append(cols, h.Net)
 	}
 	cw.Write(header)
 	line := make([]string, len(header))
@@ -473,6 +492,9 @@ func PathsCSV(w io.Writer, res *sim.Result) error {
 		line[0] = strconv.Itoa(i)
 		for j, a := range res.Aggregates {
 			line[j+1] = strconv.FormatFloat(a.Values[i], 'g', -1, 64)
+		}
+		for j, c := range cols {
+			line[len(res.Aggregates)+1+j] = strconv.FormatFloat(c[i], 'g', -1, 64)
 		}
 		if err := cw.Write(line); err != nil {
 			return err
@@ -529,7 +551,8 @@ func NewSimReport(res *stress.Result) *SimReport {
 	if s == nil {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
-	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits)}
+	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
+		HedgeFile: res.HedgeFile}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
 	for _, run := range s.Scenarios {
 		sc := run.Scenario

@@ -297,11 +297,23 @@ type simulationView struct {
 	// Bands is the parameter-uncertainty table; nil without bands.
 	Bands      *textTable
 	BandsTitle string
+	// HedgeContracts and HedgePosition are the hedge evaluation's tables;
+	// nil without a hedge file.
+	HedgeContracts, HedgePosition *textTable
 }
 
 func (b *builder) simulationSection() (any, error) {
 	in := b.in
 	v := &simulationView{}
+	if s := in.Sim; s != nil && s.Hedge != nil {
+		contracts, position, ch, ph := render.HedgeTables(s.Hedge, s.HedgeFile)
+		if len(contracts) > 0 {
+			t := newTextTable("hedge", "Contracts: payouts for one contract bought", ch, contracts, 2, 3, 4, 5, 6, 7, 8)
+			v.HedgeContracts = &t
+		}
+		t := newTextTable("hedge", "The position's net cost", ph, position, 1, 2, 3, 4, 5)
+		v.HedgePosition = &t
+	}
 	if s := in.Sim; s != nil && len(s.Bands) > 0 {
 		title, header, rows := render.BandTable(s.Rows, s.Bands, s.Refits)
 		t := newTextTable("bands", "", header, rows, 2, 3, 4, 5)
