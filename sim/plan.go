@@ -56,6 +56,11 @@ type plan struct {
 	p       int           // AR order
 	phi     [maxAR]float64
 	x0      [maxAR]float64 // AR state before the first day, most recent first
+	// obs are the observed days a season under way starts with (Config.
+	// Observed): every path has them as they were, and is simulated from the
+	// day after.
+	obs     []float64
+	obsLoad []float64 // the observed loads of the same days, with demand
 	// The slow part F (slow false without one): F(t) = phiS·F(t−1) +
 	// slowQ·η(t), η from the low bits of the fast shock's draw; F starts
 	// from N(f0Mean, f0SD²) (its stationary law, or the filtered state at
@@ -148,9 +153,28 @@ func simulatedSpan(m *model.File, cfg *Config, periods []Period) (first, from, t
 		return from - calendar.Date(burnInDays(m.AR.Phi)), from, to, nil
 	}
 	if from <= m.Data.LastDate {
+		if o := cfg.Observed; o != nil {
+			if to <= m.Data.LastDate {
+				return 0, 0, 0, fmt.Errorf("sim: every period has ended by the data end (%s): nothing is left to simulate; "+
+					"choose a later --year", m.Data.LastDate)
+			}
+			if o.From > from || o.From+calendar.Date(len(o.Temps))-1 < m.Data.LastDate {
+				return 0, 0, 0, fmt.Errorf("sim: the observed record (%s to %s) does not cover %s to the data end %s",
+					o.From, o.From+calendar.Date(len(o.Temps))-1, from, m.Data.LastDate)
+			}
+			for d := from; d <= m.Data.LastDate; d++ {
+				if v := o.Temps[int(d-o.From)]; math.IsNaN(v) || math.IsInf(v, 0) {
+					return 0, 0, 0, fmt.Errorf("sim: the observed record has no value on %s, inside %s: "+
+						"a season under way needs every day so far", d, periodStarting(periods, from))
+				}
+			}
+			// The run starts at the first period's start; the days to the
+			// data end are the observed ones.
+			return from, from, to, nil
+		}
 		return 0, 0, 0, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
-			"choose periods that start later (e.g. --period year), a later --year, or --start climate",
-			m.Data.LastDate, periodStarting(periods, from), from)
+			"give the season so far with --observed, choose periods that start later (e.g. --period year), a later --year, "+
+			"or --start climate", m.Data.LastDate, periodStarting(periods, from), from)
 	}
 	return m.Data.LastDate + 1, from, to, nil
 }
@@ -166,6 +190,23 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	pl.first = first
 	if cfg.Start == StartConditional {
 		copy(pl.x0[:], m.AR.Last)
+		if first <= m.Data.LastDate {
+			o := cfg.Observed
+			lo, hi := int(first-o.From), int(m.Data.LastDate-o.From)+1
+			pl.obs = o.Temps[lo:hi]
+			if cfg.Demand != nil {
+				if len(o.Loads) < hi {
+					return nil, fmt.Errorf("sim: a season under way with demand needs its observed loads from %s to the data end %s",
+						first, m.Data.LastDate)
+				}
+				pl.obsLoad = o.Loads[lo:hi]
+				for i, v := range pl.obsLoad {
+					if math.IsNaN(v) || math.IsInf(v, 0) {
+						return nil, fmt.Errorf("sim: no observed load on %s, inside a season under way", first+calendar.Date(i))
+					}
+				}
+			}
+		}
 	}
 	if sl := m.Slow; sl != nil {
 		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)

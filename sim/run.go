@@ -34,6 +34,12 @@ type Config struct {
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
 	Capacity float64
+	// Observed, with a conditional start, are the observed daily means of a
+	// season under way: periods that began by the model's data end count
+	// their observed days as they were and simulate the rest from the state
+	// at the data end. It must hold every day from the earliest period's
+	// start to the data end.
+	Observed *Observed
 	// Progress, when set, is called after each batch with the number of
 	// paths that batch finished; it is called from several goroutines.
 	Progress func(paths int)
@@ -41,6 +47,15 @@ type Config struct {
 
 // maxPaths bounds a run's path count (each path keeps its aggregates).
 const maxPaths = 1_000_000_000
+
+// Observed are observed daily means from From on (NaN for a gap), and, for
+// a run with demand, the observed daily loads of the same days (nil
+// without; NaN for a gap).
+type Observed struct {
+	From  calendar.Date
+	Temps []float64
+	Loads []float64
+}
 
 // BatchSize is the number of paths a worker takes at a time.
 const BatchSize = 2048
@@ -60,6 +75,17 @@ type Result struct {
 	// SimulatedDays is the number of days stepped per path, including the
 	// burn-in or the days between the data end and the first period.
 	SimulatedDays int
+	// InSeason describes, for a run with observed days (Config.Observed),
+	// each period's observed part: one entry per period, in order.
+	InSeason []PeriodObserved
+}
+
+// PeriodObserved is the observed part of a period under way: its days to
+// the data end and the temperature indices over them (by Index).
+type PeriodObserved struct {
+	Period string
+	Days   int
+	Values []float64
 }
 
 // Validate checks a configuration against a model and fills in defaults.
@@ -73,7 +99,7 @@ func (c *Config) Validate(m *model.File) error {
 	if c.Workers == 0 {
 		c.Workers = runtime.GOMAXPROCS(0)
 	}
-	c.Year = m.TargetYear(c.Year)
+	c.Year = TargetYear(m, c.Year, c.Periods)
 	if c.Year < 1800 || c.Year > 2300 {
 		return fmt.Errorf("sim: target year %d outside 1800..2300", c.Year)
 	}
@@ -110,7 +136,25 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{Config: cfg, Periods: periods, SimulatedDays: pl.n}
+	res := &Result{Config: cfg, Periods: periods, SimulatedDays: pl.n - len(pl.obs)}
+	if len(pl.obs) > 0 {
+		end := pl.first + calendar.Date(len(pl.obs)) - 1
+		for _, p := range periods {
+			o := PeriodObserved{Period: p.Name}
+			if p.From <= end {
+				lo, hi := int(p.From-pl.first), int(min(p.To, end)-pl.first)+1
+				o.Days, o.Values = hi-lo, TempIndices(pl.obs[lo:hi], cfg.Bases)
+				if pl.obsLoad != nil {
+					energy, peak := 0.0, math.Inf(-1)
+					for _, v := range pl.obsLoad[lo:hi] {
+						energy, peak = energy+v, max(peak, v)
+					}
+					o.Values = append(o.Values, energy, peak) // at Energy and PeakDemand
+				}
+			}
+			res.InSeason = append(res.InSeason, o)
+		}
+	}
 	for _, p := range periods {
 		for _, x := range pl.indices {
 			res.Aggregates = append(res.Aggregates, Aggregate{Index: x, Period: p, Values: make([]float64, cfg.Paths)})
@@ -229,7 +273,19 @@ type segStats struct {
 // days; the models without one draw nothing extra, so their streams are as
 // they were.
 func (pl *plan) temps(rng *rand.PCG, buf []float64) {
-	mean, sd := pl.mean[:len(buf)], pl.sd[:len(buf)]
+	if n := len(pl.obs); n > 0 {
+		// A season under way: its observed days, then the simulation from
+		// the data end.
+		copy(buf, pl.obs)
+		pl.simulate(rng, buf[n:], n)
+		return
+	}
+	pl.simulate(rng, buf, 0)
+}
+
+// simulate fills buf with the simulated days from day off of the plan on.
+func (pl *plan) simulate(rng *rand.PCG, buf []float64, off int) {
+	mean, sd := pl.mean[off:off+len(buf)], pl.sd[off:off+len(buf)]
 	x0 := pl.x0
 	f := 0.0
 	if pl.slow {
@@ -275,8 +331,8 @@ func (pl *plan) temps(rng *rand.PCG, buf []float64) {
 		} else {
 			// The bootstrap index takes the top bits (a 64×64 high product),
 			// so the low bits stay free for η.
-			hi, _ := bits.Mul64(u, pl.poolLen[d])
-			z = pl.pool[pl.poolOff[d]+int32(hi)]
+			hi, _ := bits.Mul64(u, pl.poolLen[off+d])
+			z = pl.pool[pl.poolOff[off+d]+int32(hi)]
 		}
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
@@ -312,9 +368,10 @@ func (pl *plan) demandPath(rng *rand.PCG, buf, dbuf []float64) {
 	phi, sigma, tab := d.Noise.Phi, d.Noise.Sigma, pl.normal
 	u := pl.u0
 	wd, hol := pl.weekday[:len(buf)], pl.holiday[:len(buf)]
-	for i, t := range buf {
+	n := copy(dbuf, pl.obsLoad) // a season under way: its observed loads first
+	for i := n; i < len(buf); i++ {
 		u = phi*u + sigma*tab.Draw(rng.Uint64())
-		dbuf[i] = d.Expected(t, wd[i], hol[i]) + u
+		dbuf[i] = d.Expected(buf[i], wd[i], hol[i]) + u
 	}
 }
 
@@ -352,7 +409,7 @@ func (pl *plan) inject(rng *rand.PCG, buf []float64) {
 		}
 		off, _ := bits.Mul64(pick, uint64(e.hi-e.lo+1))
 		start := e.lo + int(off)
-		for d := start; d < min(start+e.days, len(buf)); d++ {
+		for d := max(start, len(pl.obs)); d < min(start+e.days, len(buf)); d++ { // observed days stay as they were
 			buf[d] += e.delta
 		}
 	}

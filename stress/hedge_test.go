@@ -4,7 +4,9 @@ import (
 	"context"
 	"math"
 	"testing"
+	"time"
 
+	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/hedge"
 	"wxstress/model"
@@ -59,5 +61,45 @@ limit = 20000
 	// The burn price uses the record's Januaries (12 of them).
 	if c.Seasons != 12 {
 		t.Errorf("burn price over %d seasons, want 12", c.Seasons)
+	}
+}
+
+// TestInSeasonSameObservedPart fits a record truncated mid-January and runs
+// the heating season under way twice: once observing the truncated record,
+// once the full one. The observed part, and so every path, is the same: the
+// days after the model's data end are not used.
+func TestInSeasonSameObservedPart(t *testing.T) {
+	t.Parallel()
+	full := synthRecord(10, 12)
+	cut := calendar.FromYMD(2009, time.January, 15)
+	trunc := *full
+	trunc.Temps = full.Temps[:int(cut-full.Start)+1]
+	fit, err := calibrate.Fit(&trunc, &calibrate.Settings{Harmonics: 1, AROrder: 1, Slow: calibrate.SlowNone, Trend: "none",
+		Shocks: model.FamilyNormal, Method: "cls"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(s *calibrate.Series) *Result {
+		res, err := Run(context.Background(), &Job{Model: fit.Model, Temps: s, Observed: true,
+			Config: sim.Config{Paths: 500, Seed: 2, Periods: []string{"heating"}, Bases: sim.BasesFor(model.Celsius)}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+	a, b := run(&trunc), run(full)
+	if a.Set.Config.Year != 2009 {
+		t.Errorf("target year %d, want the heating season under way (2009)", a.Set.Config.Year)
+	}
+	oa, ob := a.Set.Base.InSeason[0], b.Set.Base.InSeason[0]
+	if oa.Days != 76 || oa.Days != ob.Days || oa.Values[sim.HDD] != ob.Values[sim.HDD] {
+		t.Errorf("observed parts differ: %+v against %+v", oa, ob)
+	}
+	for k := range a.Set.Base.Aggregates {
+		for i, v := range a.Set.Base.Aggregates[k].Values {
+			if v != b.Set.Base.Aggregates[k].Values[i] {
+				t.Fatalf("aggregate %d path %d: %v against %v", k, i, v, b.Set.Base.Aggregates[k].Values[i])
+			}
+		}
 	}
 }

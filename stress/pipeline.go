@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 
 	"wxstress/calendar"
@@ -51,6 +52,14 @@ type Job struct {
 	// Normals asks for each historical demand year under normal weather
 	// (needs a demand history), with NormalPaths paths per year.
 	Normals bool
+	// Observed runs the seasons under way at the model's data end from Temps
+	// (and, with demand, the demand history's loads): their observed days
+	// count as they were and the rest is simulated from the state at the data
+	// end (a conditional start).
+	Observed bool
+	// ObservedLoads are the loads a season under way counts with a demand
+	// model given as such (with a demand history, its own loads are used).
+	ObservedLoads *calibrate.DemandDays
 	// History asks for the record's own complete seasons beside the model
 	// (needs Temps and a simulation).
 	History bool
@@ -172,7 +181,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		return res, nil
 	}
 	cfg := job.Config
-	cfg.Year = res.Model.TargetYear(cfg.Year)
+	cfg.Year = sim.TargetYear(res.Model, cfg.Year, cfg.Periods)
 	if job.Hedge != nil {
 		cfg.Periods = withHedgePeriods(cfg.Periods, job.Hedge)
 		for _, k := range job.Hedge.Needs() {
@@ -185,6 +194,33 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		cfg.Demand = res.Demand
 		if err := job.holidays(res, &cfg); err != nil {
 			return nil, err
+		}
+	}
+	if job.Observed {
+		if job.Temps == nil {
+			return nil, fmt.Errorf("%w: a season under way needs the observed record", ErrJob)
+		}
+		if job.Temps.End() < res.Model.Data.LastDate {
+			return nil, fmt.Errorf("%w: the observed record ends on %s, before the model's data end %s", ErrJob,
+				job.Temps.End(), res.Model.Data.LastDate)
+		}
+		cfg.Start = sim.StartConditional
+		cfg.Observed = &sim.Observed{From: job.Temps.Start, Temps: job.Temps.Temps}
+		days := res.DemandDays
+		if days == nil {
+			days = job.ObservedLoads
+		}
+		if days != nil && res.Demand != nil {
+			loads := make([]float64, len(job.Temps.Temps))
+			for i := range loads {
+				loads[i] = math.NaN()
+			}
+			for i, d := range days.Dates {
+				if k := int(d - job.Temps.Start); k >= 0 && k < len(loads) {
+					loads[k] = days.Load[i]
+				}
+			}
+			cfg.Observed.Loads = loads
 		}
 	}
 	detail := job.Detail

@@ -53,7 +53,7 @@ func Simulate(ctx context.Context, m *model.File, cfg sim.Config, scens []*scena
 // still gives the scenario descriptions and the detail paths.
 func simulate(ctx context.Context, m *model.File, mix []*model.File, cfg sim.Config, scens []*scenarios.Scenario,
 	thresholds []sim.Threshold, detail int) (*Set, error) {
-	cfg.Year = m.TargetYear(cfg.Year)
+	cfg.Year = sim.TargetYear(m, cfg.Year, cfg.Periods)
 	run := func(ms []*model.File) (*sim.Result, error) {
 		if ms == nil {
 			return nil, nil

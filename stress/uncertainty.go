@@ -90,8 +90,15 @@ func Refits(ctx context.Context, s *calibrate.Series, m *model.File, n int, seed
 			if err != nil {
 				return fmt.Errorf("stress: refit %d of the parametric bootstrap: %w", r+1, err)
 			}
-			fit.Model.ToolVersion = m.ToolVersion
-			out[r] = fit.Model
+			// A refit describes the parameters, not the synthetic record's
+			// last days: a conditional start keeps the real record's state.
+			fm := fit.Model
+			fm.ToolVersion = m.ToolVersion
+			fm.AR.Last = slices.Clone(m.AR.Last)
+			if fm.Slow != nil && m.Slow != nil {
+				fm.Slow.State, fm.Slow.StateSD = m.Slow.State, min(m.Slow.StateSD, fm.Slow.SD)
+			}
+			out[r] = fm
 			return nil
 		})
 	}

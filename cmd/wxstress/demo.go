@@ -98,7 +98,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		Temps: series, Fit: &calibrate.Settings{},
 		DemandHistory: dem, DemandFit: &calibrate.DemandSettings{Form: "auto", Unit: demo.DemandUnit},
 		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
-		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, ToolVersion: version,
+		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, Observed: true, ToolVersion: version,
 		Uncertainty: &stress.Uncertainty{Refits: demoRefits}, MaxMemory: stress.DefaultMemoryLimit(),
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))

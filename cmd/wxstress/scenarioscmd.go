@@ -8,6 +8,7 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/scenarios"
+	"wxstress/sim"
 )
 
 var scenariosUsage = helpText{
@@ -72,7 +73,7 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		if err != nil {
 			return err
 		}
-		year := m.TargetYear(o.year)
+		year := sim.TargetYear(m, o.year, nil)
 		for _, s := range list {
 			if _, err := s.Apply(m, year); err != nil {
 				return err

@@ -69,6 +69,8 @@ type simulateOptions struct {
 	maxMemory string
 	hedgeFile string
 	loading   float64
+	observed  string
+	obsLoad   string
 
 	fs          *pflag.FlagSet
 	memoryLimit int64
@@ -95,6 +97,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
 	fs.IntVar(&o.refits, "uncertainty", 0, "with --history: parameter uncertainty from N refits to synthetic records of the model (parametric bootstrap; 20–100)")
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
+	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
+	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
 	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
 	fs.Float64Var(&o.loading, "loading", 0.2, "with --hedge: λ of the loaded price, mean + λ·sd of the payout")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
@@ -139,6 +143,12 @@ func (o *simulateOptions) validate() error {
 	}
 	if math.IsNaN(o.loading) || math.IsInf(o.loading, 0) || o.loading < 0 {
 		return usagef("simulate: --loading %v: want a finite number ≥ 0", o.loading)
+	}
+	if o.obsLoad != "" && (o.observed == "" || o.demand == "") {
+		return usagef("simulate: --observed-load goes with --observed and --demand")
+	}
+	if o.observed != "" && o.history != "" && o.observed != o.history {
+		return usagef("simulate: --observed and --history name one record: give the same file, or one of them")
 	}
 	if o.holidays != "" && o.demand == "" {
 		return usagef("simulate: --holidays needs --demand")
@@ -195,7 +205,8 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile}, o.scenarios...)...)
+	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile, o.observed, o.obsLoad},
+		o.scenarios...)...)
 	if o.out != "" {
 		if err := plan.checkDir(o.out, simFiles...); err != nil {
 			return err
@@ -237,6 +248,32 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				o.history, m.Data.File)
 		}
 		job.History = true
+	}
+	if o.observed != "" {
+		if job.Temps == nil {
+			job.Temps, err = interruptible(ctx, func() (*calibrate.Series, error) {
+				return calibrate.ReadFile(o.observed, calibrate.ReadOptions{Units: model.Units(m.Data.Units)})
+			})
+			if err != nil {
+				return err
+			}
+		}
+		if job.Temps.End() > m.Data.LastDate {
+			fmt.Fprintf(stderr, "wxstress: warning: %s goes on past the model's data end %s; the run starts there (refit the model to use the later days)\n",
+				o.observed, m.Data.LastDate)
+		}
+		job.Observed = true
+		if o.obsLoad != "" {
+			loads, err := calibrate.ReadDemandFile(o.obsLoad, calibrate.DemandReadOptions{})
+			if err != nil {
+				return err
+			}
+			days, err := calibrate.JoinDemand(loads, job.Temps)
+			if err != nil {
+				return err
+			}
+			job.ObservedLoads = days
+		}
 	}
 	if o.refits > 0 {
 		job.Uncertainty = &stress.Uncertainty{Refits: o.refits, Mode: o.mode}

@@ -68,6 +68,8 @@ type SimReport struct {
 	Bands  []stress.RowBands
 	Refits int
 	Mixed  bool
+	// InSeason is each period's observed part in a run of seasons under way.
+	InSeason []sim.PeriodObserved
 	// Hedge is the hedge evaluation of HedgeFile; nil without one.
 	Hedge     *hedge.Result
 	HedgeFile *hedge.File
@@ -229,7 +231,9 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		Planning  *jsonPlanning  `json:"planning,omitempty"`
 		History   *jsonHistory   `json:"historical_seasons,omitempty"`
 		Hedge     *jsonHedge     `json:"hedge,omitempty"`
-	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r)})
+		InSeason  []jsonInSeason `json:"in_season,omitempty"`
+	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r),
+		toJSONInSeason(r.InSeason)})
 }
 
 // Statistic is one named number of a tail table: its key in the CSV and the
@@ -350,6 +354,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 	m := r.Manifest
 	e.printf("%d synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
 		m.Paths, m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
+	writeInSeason(e, r)
 	for _, group := range byPeriod(r.Rows) {
 		e.printf("\nPeriod: %s\n", group[0].Period)
 		weather, demand := splitDemand(group)
@@ -504,6 +509,50 @@ func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 	return cw.Error()
 }
 
+// jsonInSeason is a period's observed part in the JSON output.
+type jsonInSeason struct {
+	Period string             `json:"period"`
+	Days   int                `json:"observed_days"`
+	Values map[string]float64 `json:"observed,omitempty"`
+}
+
+func toJSONInSeason(in []sim.PeriodObserved) []jsonInSeason {
+	var out []jsonInSeason
+	for _, o := range in {
+		j := jsonInSeason{Period: o.Period, Days: o.Days}
+		if o.Days > 0 {
+			j.Values = map[string]float64{}
+			for x, v := range o.Values {
+				j.Values[sim.Index(x).Info().Key] = v
+			}
+		}
+		out = append(out, j)
+	}
+	return out
+}
+
+// writeInSeason says, for a run of seasons under way, how much of each
+// period was observed and its indices so far.
+func writeInSeason(e *errWriter, r *SimReport) {
+	if len(r.InSeason) == 0 {
+		return
+	}
+	e.printf("\nSeasons under way: the observed days count as they were; the rest is simulated from the data end\n")
+	rows := [][]string{}
+	for _, o := range r.InSeason {
+		if o.Days == 0 {
+			rows = append(rows, []string{o.Period, "0", "—", "—", "—"})
+			continue
+		}
+		energy := "—"
+		if len(o.Values) > int(sim.Energy) {
+			energy = numfmt.Fixed(o.Values[sim.Energy], 0)
+		}
+		rows = append(rows, []string{o.Period, fmt.Sprint(o.Days), numfmt.Fixed(o.Values[sim.HDD], 1), numfmt.Fixed(o.Values[sim.CDD], 1), energy})
+	}
+	e.table([]string{"period", "days observed", "HDD so far", "CDD so far", "energy so far"}, rows)
+}
+
 // ChangeText writes a change of the mean with its paired Monte Carlo
 // standard error: "+12.3 ± 1.8", or "+1.0 (exact)" when the error is
 // rounding noise (a level shift moves the coldest day by exactly its size).
@@ -552,7 +601,7 @@ func NewSimReport(res *stress.Result) *SimReport {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
 	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
-		HedgeFile: res.HedgeFile}
+		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
