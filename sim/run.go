@@ -34,6 +34,9 @@ type Config struct {
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
 	Capacity float64
+	// ReturnPeriods are the T (years, > 1) of the 1-in-T return levels the
+	// tail tables list; nil means TailReturnPeriods.
+	ReturnPeriods []float64
 	// Observed, with a conditional start, are the observed daily means of a
 	// season under way: periods that began by the model's data end count
 	// their observed days as they were and simulate the rest from the state
@@ -92,6 +95,9 @@ type PeriodObserved struct {
 func (c *Config) Validate(m *model.File) error {
 	if c.Paths <= 0 || c.Paths > maxPaths {
 		return fmt.Errorf("sim: paths must be from 1 to %d, got %d", maxPaths, c.Paths)
+	}
+	if err := CheckReturnPeriods(c.ReturnPeriods); err != nil {
+		return err
 	}
 	if c.Workers < 0 {
 		return fmt.Errorf("sim: workers must be positive, got %d", c.Workers)

@@ -84,7 +84,7 @@ func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 		}
 		g.Go(func() error {
 			rows[i] = Row{Index: a.Index, Period: a.Period.Name, Name: in.Name, Unit: in.Unit(units, demandUnit), Info: in,
-				Tail: Summarize(a.Values, in.HighIsAdverse, ths)}
+				Tail: SummarizeWith(a.Values, in.HighIsAdverse, ths, r.Config.ReturnPeriods)}
 			return nil
 		})
 	}

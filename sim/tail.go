@@ -21,9 +21,34 @@ var (
 // quantiles, in increasing order (a copy).
 func TailQuantileProbs() []float64 { return slices.Clone(tailProbs[:]) }
 
-// TailReturnPeriods returns the T, in years, of the 1-in-T return levels a
-// Tail holds, in increasing order (a copy).
-func TailReturnPeriods() []int { return slices.Clone(tailReturnPeriods[:]) }
+// TailReturnPeriods returns the default T, in years, of the 1-in-T return
+// levels a Tail lists, in increasing order (a copy); a run may list others
+// (Config.ReturnPeriods).
+func TailReturnPeriods() []float64 {
+	out := make([]float64, len(tailReturnPeriods))
+	for i, T := range tailReturnPeriods {
+		out[i] = float64(T)
+	}
+	return out
+}
+
+// coreReturnPeriods are computed whatever a run lists: the planning tables
+// and the scenario comparisons read the 1-in-20, 1-in-50 and 1-in-100 levels.
+var coreReturnPeriods = [...]float64{20, 50, 100}
+
+// CheckReturnPeriods checks a list of return periods: each finite and above 1
+// year, no repeats.
+func CheckReturnPeriods(ts []float64) error {
+	for i, T := range ts {
+		if !(T > 1) || math.IsInf(T, 0) {
+			return fmt.Errorf("sim: return period %v: want a number of years above 1", T)
+		}
+		if slices.Contains(ts[:i], T) {
+			return fmt.Errorf("sim: return period %v listed twice", T)
+		}
+	}
+	return nil
+}
 
 // Tail summarises the distribution of one aggregate across paths.
 //
@@ -42,10 +67,17 @@ type Tail struct {
 	// worst ⌈0.05·N⌉ and ⌈0.01·N⌉ paths (expected shortfall).
 	VaR95, VaR99 float64
 	ES95, ES99   float64
-	// ReturnLevels[i] is the level reached or passed on the adverse side once
-	// in TailReturnPeriods()[i] years on average: the quantile 1 − 1/T (1/T
-	// when low is adverse) of the per-year value. Read them with ReturnLevel.
-	ReturnLevels []float64
+	// ReturnPeriods are the T a table lists (the run's, or
+	// TailReturnPeriods), ascending; ReturnLevels[i] is the level reached or
+	// passed on the adverse side once in ReturnPeriods[i] years on average:
+	// the quantile 1 − 1/T (1/T when low is adverse) of the per-year value.
+	// Read a level with ReturnLevel, which also knows the 1-in-20, 1-in-50
+	// and 1-in-100 levels a run does not list.
+	ReturnPeriods []float64
+	ReturnLevels  []float64
+	levelT        []float64 // every T computed: ReturnPeriods ∪ coreReturnPeriods
+	level         []float64
+	levelSE       []float64
 	Exceedances  []Exceedance
 
 	// Monte Carlo standard errors: of each quantile and return level from
@@ -53,7 +85,7 @@ type Tail struct {
 	// the expected shortfalls from their asymptotic variance
 	// (evidence.Shortfall). +Inf where the paths cannot bound a quantile.
 	QuantileSE    []float64 // at TailQuantileProbs
-	ReturnLevelSE []float64 // at TailReturnPeriods
+	ReturnLevelSE []float64 // at ReturnPeriods
 	VaR95SE       float64
 	VaR99SE       float64
 	ES95SE        float64
@@ -73,14 +105,27 @@ func (t Tail) Quantile(p float64) float64 {
 	return t.Quantiles[i]
 }
 
-// ReturnLevel returns the 1-in-T-year return level, T one of
-// TailReturnPeriods. Like Quantile, it panics for any other T.
-func (t Tail) ReturnLevel(T int) float64 {
-	i := slices.Index(tailReturnPeriods[:], T)
-	if i < 0 || i >= len(t.ReturnLevels) {
-		panic(fmt.Sprintf("sim: a tail table has no %d-year return level (it has %v)", T, tailReturnPeriods))
+// ReturnLevel returns the 1-in-T-year return level, T one of the table's
+// ReturnPeriods or 20, 50 or 100. Like Quantile, it panics for any other T.
+func (t Tail) ReturnLevel(T float64) float64 {
+	i := slices.Index(t.levelT, T)
+	if i < 0 {
+		panic(fmt.Sprintf("sim: a tail table has no %v-year return level (it has %v)", T, t.levelT))
 	}
-	return t.ReturnLevels[i]
+	return t.level[i]
+}
+
+// ReturnLevelError returns the Monte Carlo standard error of ReturnLevel(T)
+// (NaN for a table of one path).
+func (t Tail) ReturnLevelError(T float64) float64 {
+	i := slices.Index(t.levelT, T)
+	if i < 0 {
+		panic(fmt.Sprintf("sim: a tail table has no %v-year return level (it has %v)", T, t.levelT))
+	}
+	if i >= len(t.levelSE) {
+		return math.NaN()
+	}
+	return t.levelSE[i]
 }
 
 // Exceedance is the probability that a year is worse than a threshold: above
@@ -91,8 +136,18 @@ type Exceedance struct {
 	SE        float64 // binomial Monte Carlo standard error √(p(1 − p)/N)
 }
 
-// Summarize computes the tail table of values (which it does not modify).
+// Summarize computes the tail table of values (which it does not modify),
+// listing the default return periods.
 func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail {
+	return SummarizeWith(values, highIsAdverse, thresholds, nil)
+}
+
+// SummarizeWith is Summarize listing the return periods periods (T > 1,
+// checked by CheckReturnPeriods; nil for TailReturnPeriods).
+func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, periods []float64) Tail {
+	if periods == nil {
+		periods = TailReturnPeriods()
+	}
 	n := len(values)
 	if n == 0 {
 		panic("sim: Summarize of no values")
@@ -117,9 +172,17 @@ func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail 
 	}
 	t.VaR95, t.VaR99 = adverse(0.95), adverse(0.99)
 	t.ES95, t.ES99 = shortfall(x, 0.05, highIsAdverse), shortfall(x, 0.01, highIsAdverse)
-	for _, T := range tailReturnPeriods {
-		t.ReturnLevels = append(t.ReturnLevels, adverse(1-1/float64(T)))
+	t.ReturnPeriods = slices.Sorted(slices.Values(periods))
+	t.levelT = slices.Clone(t.ReturnPeriods)
+	for _, T := range coreReturnPeriods {
+		if !slices.Contains(t.levelT, T) {
+			t.levelT = append(t.levelT, T)
+		}
 	}
+	for _, T := range t.levelT {
+		t.level = append(t.level, adverse(1-1/T))
+	}
+	t.ReturnLevels = t.level[:len(t.ReturnPeriods):len(t.ReturnPeriods)]
 	if n >= 2 {
 		se := func(p float64) float64 { return evidence.QuantileSorted(x, p).SE }
 		adverseSE := func(p float64) float64 {
@@ -131,9 +194,10 @@ func Summarize(values []float64, highIsAdverse bool, thresholds []float64) Tail 
 		for _, p := range tailProbs {
 			t.QuantileSE = append(t.QuantileSE, se(p))
 		}
-		for _, T := range tailReturnPeriods {
-			t.ReturnLevelSE = append(t.ReturnLevelSE, adverseSE(1-1/float64(T)))
+		for _, T := range t.levelT {
+			t.levelSE = append(t.levelSE, adverseSE(1-1/T))
 		}
+		t.ReturnLevelSE = t.levelSE[:len(t.ReturnPeriods):len(t.ReturnPeriods)]
 		t.VaR95SE, t.VaR99SE = adverseSE(0.95), adverseSE(0.99)
 		t.ES95SE = evidence.ShortfallSorted(x, 0.05, highIsAdverse).SE
 		t.ES99SE = evidence.ShortfallSorted(x, 0.01, highIsAdverse).SE

@@ -55,8 +55,8 @@ func TestSummarizeMatchesR(t *testing.T) {
 		check(fmt.Sprintf("quantile %v", p), hi.Quantile(p), g.Quantiles[i])
 	}
 	for i, T := range periods {
-		check(fmt.Sprintf("%d-year return level (high adverse)", T), hi.ReturnLevel(T), g.ReturnHigh[i])
-		check(fmt.Sprintf("%d-year return level (low adverse)", T), lo.ReturnLevel(T), g.ReturnLow[i])
+		check(fmt.Sprintf("%v-year return level (high adverse)", T), hi.ReturnLevel(T), g.ReturnHigh[i])
+		check(fmt.Sprintf("%v-year return level (low adverse)", T), lo.ReturnLevel(T), g.ReturnLow[i])
 	}
 	check("ES95 high", hi.ES95, g.ES95High)
 	check("ES99 high", hi.ES99, g.ES99High)

@@ -2,12 +2,15 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -244,5 +247,51 @@ func TestSIGINTDuringFit(t *testing.T) {
 	}
 	if _, err := os.Stat(out); err == nil {
 		t.Error("an interrupted fit wrote its model")
+	}
+}
+
+// TestReturnPeriodsFollow: --return-periods sets the 1-in-T levels the JSON
+// lists, and each equals the quantile 1 − 1/T of the per-path values in
+// paths.csv (the definition, recomputed here with sorting and type-4
+// interpolation by hand).
+func TestReturnPeriodsFollow(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	dir := filepath.Join(t.TempDir(), "rp")
+	code, stdout, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "999", "--period", "year",
+		"--return-periods", "3,30,250", "--format", "json", "--out", dir)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Indices []struct {
+			Key          string             `json:"key"`
+			ReturnLevels map[string]float64 `json:"return_levels"`
+		} `json:"indices"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	rl := doc.Indices[0].ReturnLevels
+	if len(rl) != 3 || rl["3"] == 0 || rl["30"] == 0 || rl["250"] == 0 {
+		t.Fatalf("return levels %v, want keys 3, 30, 250", rl)
+	}
+	// The year's HDD column of paths.csv, by hand.
+	lines := strings.Split(strings.TrimSpace(mustRead(t, filepath.Join(dir, "paths.csv"))), "\n")
+	col := slices.Index(strings.Split(lines[0], ","), "year.hdd")
+	var v []float64
+	for _, l := range lines[1:] {
+		x, _ := strconv.ParseFloat(strings.Split(l, ",")[col], 64)
+		v = append(v, x)
+	}
+	slices.Sort(v)
+	n := float64(len(v))
+	for key, T := range map[string]float64{"3": 3, "30": 30, "250": 250} {
+		h := n*(1-1/T) - 1 // type 4: position n·p, 1-based
+		i := int(math.Floor(h))
+		want := v[i] + (h-float64(i))*(v[i+1]-v[i])
+		if math.Abs(rl[key]-want) > 1e-9*math.Abs(want) {
+			t.Errorf("1-in-%s %.6f, the definition gives %.6f", key, rl[key], want)
+		}
 	}
 }

@@ -71,6 +71,7 @@ type simulateOptions struct {
 	loading   float64
 	observed  string
 	obsLoad   string
+	periodsT  []float64
 
 	fs          *pflag.FlagSet
 	memoryLimit int64
@@ -99,6 +100,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
+	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100 (default 2,5,10,20,50,100)")
 	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
 	fs.Float64Var(&o.loading, "loading", 0.2, "with --hedge: λ of the loaded price, mean + λ·sd of the payout")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
@@ -143,6 +145,9 @@ func (o *simulateOptions) validate() error {
 	}
 	if math.IsNaN(o.loading) || math.IsInf(o.loading, 0) || o.loading < 0 {
 		return usagef("simulate: --loading %v: want a finite number ≥ 0", o.loading)
+	}
+	if err := sim.CheckReturnPeriods(o.periodsT); err != nil {
+		return usagef("simulate: --return-periods: %v", strings.TrimPrefix(err.Error(), "sim: "))
 	}
 	if o.obsLoad != "" && (o.observed == "" || o.demand == "") {
 		return usagef("simulate: --observed-load goes with --observed and --demand")
@@ -193,7 +198,7 @@ func (o *simulateOptions) config(m *model.File) sim.Config {
 	if o.fs.Changed("cold-below") {
 		b.ColdBelow = o.coldBelow
 	}
-	return sim.Config{Paths: o.paths, Seed: o.seed, Workers: o.workers, Year: o.year, Start: o.start,
+	return sim.Config{Paths: o.paths, Seed: o.seed, Workers: o.workers, Year: o.year, Start: o.start, ReturnPeriods: o.periodsT,
 		Periods: o.periods, Bases: b}
 }
 

@@ -138,8 +138,8 @@ func toJSONMCSE(t sim.Tail) *jsonMCSE {
 	for i, p := range sim.TailQuantileProbs() {
 		m.Quantiles[fmt.Sprintf("%.2f", p)] = finitePtr(t.QuantileSE[i])
 	}
-	for i, T := range sim.TailReturnPeriods() {
-		m.ReturnLevels[strconv.Itoa(T)] = finitePtr(t.ReturnLevelSE[i])
+	for i, T := range t.ReturnPeriods {
+		m.ReturnLevels[periodKey(T)] = finitePtr(t.ReturnLevelSE[i])
 	}
 	return m
 }
@@ -199,8 +199,8 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 		for _, p := range sim.TailQuantileProbs() {
 			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantile(p)
 		}
-		for _, T := range sim.TailReturnPeriods() {
-			j.ReturnLevels[strconv.Itoa(T)] = t.ReturnLevel(T)
+		for _, T := range t.ReturnPeriods {
+			j.ReturnLevels[periodKey(T)] = t.ReturnLevel(T)
 		}
 		for _, e := range t.Exceedances {
 			j.Exceedance = append(j.Exceedance, jsonExceed{e.Threshold, e.Prob, e.SE})
@@ -244,8 +244,24 @@ type Statistic struct {
 	Value      func(t sim.Tail) float64
 }
 
-// Statistics lists the statistics of a tail table in display order.
-func Statistics() []Statistic {
+// Statistics lists the statistics of a tail table with the default return
+// periods, in display order.
+func Statistics() []Statistic { return StatisticsFor(sim.TailReturnPeriods()) }
+
+// periodKey writes a return period for keys and labels: "20", "2.5".
+func periodKey(T float64) string { return strconv.FormatFloat(T, 'f', -1, 64) }
+
+// rowPeriods is the return periods the rows list (a run lists one set).
+func rowPeriods(rows []sim.Row) []float64 {
+	if len(rows) == 0 || rows[0].Tail.ReturnPeriods == nil {
+		return sim.TailReturnPeriods()
+	}
+	return rows[0].Tail.ReturnPeriods
+}
+
+// StatisticsFor lists the statistics of a tail table listing the return
+// periods periods, in display order.
+func StatisticsFor(periods []float64) []Statistic {
 	s := []Statistic{
 		{"mean", "mean", func(t sim.Tail) float64 { return t.Mean }},
 		{"sd", "sd", func(t sim.Tail) float64 { return t.SD }},
@@ -260,8 +276,8 @@ func Statistics() []Statistic {
 		Statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
 		Statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
 	)
-	for _, T := range sim.TailReturnPeriods() {
-		s = append(s, Statistic{fmt.Sprintf("rl%d", T), fmt.Sprintf("1-in-%d", T),
+	for _, T := range periods {
+		s = append(s, Statistic{"rl" + periodKey(T), "1-in-" + periodKey(T),
 			func(t sim.Tail) float64 { return t.ReturnLevel(T) }})
 	}
 	return s
@@ -277,7 +293,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	}
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"scenario", "index", "period", "unit", "adverse", "statistic", "value"})
-	stats := Statistics()
+	stats := StatisticsFor(rowPeriods(r.Rows))
 	write := func(scenario string, rows []sim.Row, changes []sim.Change) {
 		for k, row := range rows {
 			put := func(stat string, v float64) {
@@ -389,7 +405,7 @@ func writeTailTable(e *errWriter, group []sim.Row) {
 		header = append(header, fmt.Sprintf("%s (%s)", row.Name, row.Unit))
 	}
 	var rows [][]string
-	for _, s := range Statistics() {
+	for _, s := range StatisticsFor(rowPeriods(group)) {
 		line := []string{s.Label}
 		for _, row := range group {
 			line = append(line, Num(s.Value(row.Tail), 1))
@@ -426,7 +442,8 @@ func monteCarloWarnings(group []sim.Row) []string {
 		for _, c := range []struct {
 			name  string
 			v, se float64
-		}{{"ES 99%", t.ES99, t.ES99SE}, {"1-in-50", t.ReturnLevel(50), t.ReturnLevelSE[4]}, {"1-in-100", t.ReturnLevel(100), t.ReturnLevelSE[5]}} {
+		}{{"ES 99%", t.ES99, t.ES99SE}, {"1-in-50", t.ReturnLevel(50), t.ReturnLevelError(50)},
+			{"1-in-100", t.ReturnLevel(100), t.ReturnLevelError(100)}} {
 			if c.se > worst {
 				worst, name, value = c.se, c.name, c.v
 			}

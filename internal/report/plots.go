@@ -852,12 +852,12 @@ func exceedanceFigure(id string, r sim.Row, values []float64) (figure, error) {
 	p.Add(l)
 	var rl plotter.XYs
 	var names []string
-	for _, T := range sim.TailReturnPeriods() {
-		if T > len(values) {
+	for _, T := range r.Tail.ReturnPeriods {
+		if T > float64(len(values)) {
 			continue
 		}
-		rl = append(rl, plotter.XY{X: r.Tail.ReturnLevel(T), Y: -math.Log10(float64(T))})
-		names = append(names, fmt.Sprintf("1-in-%d", T))
+		rl = append(rl, plotter.XY{X: r.Tail.ReturnLevel(T), Y: -math.Log10(T)})
+		names = append(names, "1-in-"+strconv.FormatFloat(T, 'f', -1, 64))
 	}
 	d, err := dots(rl, okVermillion, 2.6)
 	if err != nil {

@@ -149,8 +149,15 @@ func (b *builder) tailTable(scen string, rows []sim.Row, caption string) tailTab
 		t.MeanSE = append(t.MeanSE, newNumCell(scen, row, "mean_se", fixed(row.Tail.MeanSE, seDecimals)))
 		t.Adverse = append(t.Adverse, render.AdverseSide(row))
 	}
-	for _, s := range render.Statistics() {
-		st := tailStat{Label: statLabel(s), Sep: s.Key == "p01" || s.Key == "var95" || s.Key == "rl2"}
+	stats := render.StatisticsFor(rows[0].Tail.ReturnPeriods)
+	firstRL := ""
+	for _, s := range stats {
+		if strings.HasPrefix(s.Key, "rl") && firstRL == "" {
+			firstRL = s.Key
+		}
+	}
+	for _, s := range stats {
+		st := tailStat{Label: statLabel(s), Sep: s.Key == "p01" || s.Key == "var95" || s.Key == firstRL}
 		for _, row := range rows {
 			st.Cells = append(st.Cells, newNumCell(scen, row, s.Key, fixed(s.Value(row.Tail), valueDecimals)))
 		}
