@@ -78,7 +78,7 @@ type Tail struct {
 	levelT        []float64 // every T computed: ReturnPeriods ∪ coreReturnPeriods
 	level         []float64
 	levelSE       []float64
-	Exceedances  []Exceedance
+	Exceedances   []Exceedance
 
 	// Monte Carlo standard errors: of each quantile and return level from
 	// the distribution-free order-statistic interval (evidence.Quantile), of
