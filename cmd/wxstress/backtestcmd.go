@@ -114,7 +114,7 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, o.temps, o.demand, o.load)
+	plan := newOutputPlan(ctx, o.force, o.temps, o.demand, o.load)
 	if err := plan.check(o.report); err != nil {
 		return err
 	}

@@ -72,7 +72,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := claimDir(o.dir, o.force); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force)
+	plan := newOutputPlan(ctx, o.force)
 	if err := plan.checkDir(o.dir, demoFiles...); err != nil {
 		return err
 	}

@@ -114,7 +114,7 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, o.temps)
+	plan := newOutputPlan(ctx, o.force, o.temps)
 	if err := plan.check(o.out, o.report); err != nil {
 		return err
 	}

@@ -111,7 +111,7 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, o.temps, o.demand, o.holidays, o.modelPath)
+	plan := newOutputPlan(ctx, o.force, o.temps, o.demand, o.holidays, o.modelPath)
 	if err := plan.check(o.out); err != nil {
 		return err
 	}

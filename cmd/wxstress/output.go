@@ -67,6 +67,7 @@ func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string) error 
 // staging directory and moved into place together at the end, or not at
 // all: a failure or an interrupt leaves what was there before.
 type outputPlan struct {
+	ctx    context.Context // ends writing early when done; set by the command
 	seen   map[string]bool // cleaned absolute paths checked so far
 	inputs []string
 	force  bool
@@ -74,14 +75,14 @@ type outputPlan struct {
 	made   []string // directories created for the outputs, removed on abort
 }
 
-func newOutputPlan(force bool, inputs ...string) *outputPlan {
+func newOutputPlan(ctx context.Context, force bool, inputs ...string) *outputPlan {
 	var in []string
 	for _, p := range inputs {
 		if p != "" {
 			in = append(in, p)
 		}
 	}
-	return &outputPlan{inputs: in, force: force, set: outputs.NewSet(""), seen: map[string]bool{}}
+	return &outputPlan{ctx: ctx, inputs: in, force: force, set: outputs.NewSet(""), seen: map[string]bool{}}
 }
 
 // check refuses, before any work, the output paths that may not be written.
@@ -128,7 +129,23 @@ func (p *outputPlan) add(path string, fill func(io.Writer) error) error {
 		}
 		p.made = append(p.made, dir)
 	}
-	return p.set.Add(path, fill)
+	return p.set.Add(path, func(w io.Writer) error { return fill(&ctxWriter{w: w, ctx: p.ctx}) })
+}
+
+// ctxWriter fails its writes once ctx is done, so that writing a large
+// output stops within a buffer of an interrupt.
+type ctxWriter struct {
+	w   io.Writer
+	ctx context.Context
+}
+
+func (c *ctxWriter) Write(b []byte) (int, error) {
+	if c.ctx != nil {
+		if err := c.ctx.Err(); err != nil {
+			return 0, err
+		}
+	}
+	return c.w.Write(b)
 }
 
 func (p *outputPlan) addBytes(path string, b []byte) error {

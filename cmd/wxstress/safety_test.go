@@ -3,7 +3,9 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -293,5 +295,45 @@ func TestReturnPeriodsFollow(t *testing.T) {
 		if math.Abs(rl[key]-want) > 1e-9*math.Abs(want) {
 			t.Errorf("1-in-%s %.6f, the definition gives %.6f", key, rl[key], want)
 		}
+	}
+}
+
+// TestWritingStopsOnInterrupt: once the run's context is cancelled (Ctrl-C
+// while the outputs are written), a large output stops within a buffer,
+// the set is not committed, and nothing is left.
+func TestWritingStopsOnInterrupt(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	plan := newOutputPlan(ctx, false)
+	target := filepath.Join(dir, "big.csv")
+	if err := plan.check(target); err != nil {
+		t.Fatal(err)
+	}
+	written := 0
+	err := plan.add(target, func(w io.Writer) error {
+		line := []byte(strings.Repeat("1.2345,", 15) + "\n")
+		for i := range 1_000_000 {
+			if i == 1000 {
+				cancel() // the interrupt arrives mid-write
+			}
+			n, err := w.Write(line)
+			written += n
+			if err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("writing went on after the interrupt: %v, %d bytes", err, written)
+	}
+	if written > 2_000_000 {
+		t.Errorf("%d bytes written after the interrupt", written)
+	}
+	plan.abort()
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 0 {
+		t.Errorf("left behind: %v", entries)
 	}
 }

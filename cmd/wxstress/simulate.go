@@ -85,7 +85,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.IntVar(&o.paths, "paths", 10000, "number of synthetic years")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
 	fs.IntVar(&o.workers, "workers", 0, "worker goroutines (default: all cores); never changes results")
-	fs.IntVar(&o.year, "year", 0, "target year (default: the year after the data end)")
+	fs.IntVar(&o.year, "year", 0, "target year (default: the season under way at the data end)")
 	fs.StringVar(&o.start, "start", sim.StartClimate, "start state: climate (stationary, after a burn-in) or conditional (the last observed anomalies)")
 	fs.StringArrayVar(&o.periods, "period", nil, "index period, repeatable (default: year, heating, cooling)")
 	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F, by the model's units)")
@@ -116,6 +116,14 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 func (o *simulateOptions) validate() error {
 	if o.modelPath == "" {
 		return usagef("simulate: --model is required")
+	}
+	if o.year != 0 && (o.year < 1800 || o.year > 2300) {
+		return usagef("simulate: --year %d: want a year from 1800 to 2300", o.year)
+	}
+	for _, v := range []float64{o.hddBase, o.cddBase, o.coldBelow} {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return usagef("simulate: --hdd-base, --cdd-base and --cold-below must be finite numbers")
+		}
 	}
 	o.memoryLimit = stress.DefaultMemoryLimit()
 	if o.maxMemory != "" {
@@ -210,7 +218,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if err := o.validate(); err != nil {
 		return err
 	}
-	plan := newOutputPlan(o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile, o.observed, o.obsLoad},
+	plan := newOutputPlan(ctx, o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile, o.observed, o.obsLoad},
 		o.scenarios...)...)
 	if o.out != "" {
 		if err := plan.checkDir(o.out, simFiles...); err != nil {
@@ -255,6 +263,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		job.History = true
 	}
 	if o.observed != "" {
+		job.History = true // the record's seasons: beside the model, and the hedges' burn price
 		if job.Temps == nil {
 			job.Temps, err = interruptible(ctx, func() (*calibrate.Series, error) {
 				return calibrate.ReadFile(o.observed, calibrate.ReadOptions{Units: model.Units(m.Data.Units)})
