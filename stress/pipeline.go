@@ -105,6 +105,9 @@ type Result struct {
 	Set     *Set               // nil when the job only fits
 	Normals []sim.YearNormal   // with Job.Normals
 	History *HistoricalSeasons // with Job.History
+	// Extremes set the GEV of the record's coldest and hottest days beside
+	// the simulated levels (with Job.History).
+	Extremes []ExtremeCheck
 	// Refits are the bootstrap's refitted models and Bands the 90 %
 	// confidence bands of the baseline's tail numbers (band mode).
 	Refits    []*model.File
@@ -264,6 +267,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		if res.History, err = Historical(job.Temps, res.Model, set); err != nil {
 			return nil, err
 		}
+		res.Extremes = extremeChecks(res.History, set)
 	}
 	if job.Hedge != nil {
 		if res.Hedge, err = evaluateHedge(job, set, res.History); err != nil {

@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"wxstress/internal/numfmt"
@@ -137,4 +138,82 @@ func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
 		}
 	}
 	return j
+}
+
+// ExtremesTable lays out the GEV check of the simulated extremes: for the
+// coldest and hottest day, the GEV's 1-in-T level from the record's own
+// seasons with its profile-likelihood 95 % interval beside the model's.
+func ExtremesTable(checks []stress.ExtremeCheck, units string) (header []string, rows [][]string, notes []string) {
+	header = []string{"index", "period", "seasons", "T", "GEV level [95% interval]", "model level", "model"}
+	for _, c := range checks {
+		if c.Err != "" {
+			notes = append(notes, fmt.Sprintf("%s, %s: no GEV fitted (%s)", c.Index.Info().Name, c.Period, c.Err))
+			continue
+		}
+		for _, l := range c.Levels {
+			ci := "—"
+			if !math.IsNaN(l.Lo) {
+				ci = fmt.Sprintf("[%s, %s]", numfmt.Fixed(l.Lo, 1), numfmt.Fixed(l.Hi, 1))
+			}
+			verdict := "inside"
+			switch {
+			case math.IsNaN(l.Lo):
+				verdict = "no interval"
+			case l.Outside:
+				verdict = l.OutsideSide + " the interval"
+			}
+			rows = append(rows, []string{c.Index.Info().Name, c.Period, fmt.Sprint(c.Seasons), "1-in-" + periodKey(l.T),
+				fmt.Sprintf("%s %s", numfmt.Fixed(l.GEV, 1), ci), numfmt.ValueSE(l.Model, l.ModelSE), verdict})
+		}
+	}
+	notes = append(notes, fmt.Sprintf("The GEV is fitted by maximum likelihood to each season's coldest (or hottest) daily mean in "+
+		"the record, moved to the target year's trend level (°%s);", units),
+		"a model level outside the 95 % profile-likelihood interval is evidence that the model's extreme days are off.")
+	return header, rows, notes
+}
+
+func writeExtremes(e *errWriter, r *SimReport) {
+	if len(r.Extremes) == 0 {
+		return
+	}
+	header, rows, notes := ExtremesTable(r.Extremes, r.Manifest.Units)
+	e.printf("\nExtreme days checked by extreme-value theory\n")
+	e.table(header, rows)
+	for _, n := range notes {
+		e.printf("  %s\n", n)
+	}
+}
+
+type jsonExtreme struct {
+	Index   string             `json:"index"`
+	Period  string             `json:"period"`
+	Seasons int                `json:"seasons"`
+	GEV     map[string]float64 `json:"gev,omitempty"` // mu, sigma, xi (of the negated minima for the coldest day)
+	Levels  []jsonExtremeLevel `json:"levels,omitempty"`
+	Error   string             `json:"error,omitempty"`
+}
+
+type jsonExtremeLevel struct {
+	T       float64  `json:"t"`
+	GEV     float64  `json:"gev"`
+	Lo      *float64 `json:"gev_lo_95"`
+	Hi      *float64 `json:"gev_hi_95"`
+	Model   float64  `json:"model"`
+	ModelSE *float64 `json:"model_se"`
+	Outside bool     `json:"model_outside"`
+}
+
+func toJSONExtremes(checks []stress.ExtremeCheck) []jsonExtreme {
+	var out []jsonExtreme
+	for _, c := range checks {
+		j := jsonExtreme{Index: c.Index.Info().Key, Period: c.Period, Seasons: c.Seasons, Error: c.Err}
+		if c.Err == "" {
+			j.GEV = map[string]float64{"mu": c.GEV.Mu, "sigma": c.GEV.Sigma, "xi": c.GEV.Xi}
+		}
+		for _, l := range c.Levels {
+			j.Levels = append(j.Levels, jsonExtremeLevel{l.T, l.GEV, finitePtr(l.Lo), finitePtr(l.Hi), l.Model, finitePtr(l.ModelSE), l.Outside})
+		}
+		out = append(out, j)
+	}
+	return out
 }

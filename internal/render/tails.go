@@ -68,6 +68,8 @@ type SimReport struct {
 	Bands  []stress.RowBands
 	Refits int
 	Mixed  bool
+	// Extremes is the GEV check of the simulated extremes (with a record).
+	Extremes []stress.ExtremeCheck
 	// InSeason is each period's observed part in a run of seasons under way.
 	InSeason []sim.PeriodObserved
 	// Hedge is the hedge evaluation of HedgeFile; nil without one.
@@ -232,8 +234,9 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		History   *jsonHistory   `json:"historical_seasons,omitempty"`
 		Hedge     *jsonHedge     `json:"hedge,omitempty"`
 		InSeason  []jsonInSeason `json:"in_season,omitempty"`
+		Extremes  []jsonExtreme  `json:"extremes_check,omitempty"`
 	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r),
-		toJSONInSeason(r.InSeason)})
+		toJSONInSeason(r.InSeason), toJSONExtremes(r.Extremes)})
 }
 
 // Statistic is one named number of a tail table: its key in the CSV and the
@@ -389,6 +392,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 	writeHedge(e, r)
 	writeBands(e, r)
 	writeHistory(e, r.History, r.Manifest.Units)
+	writeExtremes(e, r)
 	if len(r.Scenarios) > 0 {
 		writeComparison(e, r)
 	}
@@ -618,7 +622,7 @@ func NewSimReport(res *stress.Result) *SimReport {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
 	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
-		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason}
+		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason, Extremes: res.Extremes}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
 	for _, run := range s.Scenarios {
 		sc := run.Scenario

@@ -304,6 +304,9 @@ type simulationView struct {
 	// Bands is the parameter-uncertainty table; nil without bands.
 	Bands      *textTable
 	BandsTitle string
+	// Extremes is the GEV check; nil without a record.
+	Extremes      *textTable
+	ExtremesNotes []string
 	// HedgeContracts and HedgePosition are the hedge evaluation's tables;
 	// nil without a hedge file.
 	HedgeContracts, HedgePosition *textTable
@@ -312,6 +315,11 @@ type simulationView struct {
 func (b *builder) simulationSection() (any, error) {
 	in := b.in
 	v := &simulationView{}
+	if s := in.Sim; s != nil && len(s.Extremes) > 0 {
+		header, rows, notes := render.ExtremesTable(s.Extremes, s.Manifest.Units)
+		t := newTextTable("extremes", "", header, rows, 2, 4, 5)
+		v.Extremes, v.ExtremesNotes = &t, notes
+	}
 	if s := in.Sim; s != nil && s.Hedge != nil {
 		contracts, position, ch, ph := render.HedgeTables(s.Hedge, s.HedgeFile)
 		if len(contracts) > 0 {
