@@ -9,6 +9,8 @@ import (
 	"testing"
 	"time"
 
+	"wxstress/extremes"
+
 	"wxstress/calibrate"
 	"wxstress/demo"
 	"wxstress/model"
@@ -93,5 +95,34 @@ func TestHistoricalSeasonsRecomputed(t *testing.T) {
 	}
 	if !found {
 		t.Fatal("no heating HDD row")
+	}
+	// The extremes check fits the GEV to the heating seasons' coldest days,
+	// recomputed here from the seasons.
+	var coldest []float64
+	for _, se := range seasons {
+		coldest = append(coldest, se.Values[sim.Coldest])
+	}
+	ref, err := extremes.FitMinima(coldest)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := false
+	for _, c := range res.Extremes {
+		if c.Index == sim.Coldest && c.Period == "heating" {
+			checked = true
+			if got, want := c.Levels[0].GEV, ref.ReturnLevel(20); math.Abs(got-want) > 1e-9 {
+				t.Errorf("GEV 1-in-20 coldest day %v, refit %v", got, want)
+			}
+			t.Logf("coldest day 1-in-20: GEV %.2f [%.2f, %.2f], model %.2f", c.Levels[0].GEV, c.Levels[0].Lo, c.Levels[0].Hi, c.Levels[0].Model)
+			if c.Levels[0].Outside {
+				t.Errorf("the model's 1-in-20 coldest day lies %s the GEV interval", c.Levels[0].OutsideSide)
+			}
+		}
+		if c.Index == sim.Hottest && c.Period == "heating" {
+			t.Error("a hottest day of the heating season was checked: winter minima and summer maxima only")
+		}
+	}
+	if !checked {
+		t.Error("no GEV check of the heating season's coldest day")
 	}
 }
