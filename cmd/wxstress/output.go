@@ -30,35 +30,30 @@ import (
 // emitFit prints the model summary or JSON, with the data's warnings on
 // stderr.
 func emitFit(stdout, stderr io.Writer, m *model.File, format string) error {
-	for _, w := range m.Data.Warnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
-	}
-	if format == "json" {
-		b, err := m.MarshalIndent()
-		if err != nil {
-			return err
-		}
-		_, err = stdout.Write(b)
-		return err
-	}
-	return render.FitSummary(stdout, m)
+	return emit(stdout, stderr, m.Data.Warnings, format, m.MarshalIndent, func() error { return render.FitSummary(stdout, m) })
 }
 
 // emitDemand prints the demand summary or JSON, with the fit's warnings on
 // stderr.
 func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string) error {
-	for _, w := range m.Warnings {
+	return emit(stdout, stderr, m.Warnings, format, m.MarshalIndent, func() error { return render.DemandSummary(stdout, m) })
+}
+
+// emit prints a fitted model: its warnings on stderr, then its file's JSON
+// or its summary.
+func emit(stdout, stderr io.Writer, warnings []string, format string, marshal func() ([]byte, error), summary func() error) error {
+	for _, w := range warnings {
 		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
 	}
-	if format == "json" {
-		b, err := m.MarshalIndent()
-		if err != nil {
-			return err
-		}
-		_, err = stdout.Write(b)
+	if format != "json" {
+		return summary()
+	}
+	b, err := marshal()
+	if err != nil {
 		return err
 	}
-	return render.DemandSummary(stdout, m)
+	_, err = stdout.Write(b)
+	return err
 }
 
 // outputPlan is a command's output files. Each path is checked before any
