@@ -310,6 +310,33 @@ type simulationView struct {
 	// HedgeContracts and HedgePosition are the hedge evaluation's tables;
 	// nil without a hedge file.
 	HedgeContracts, HedgePosition *textTable
+	HedgeFigures                  []*figView
+}
+
+// hedgeFigures are the exceedance curves of the net cost, unhedged and
+// hedged, and of each contract's payout.
+func hedgeFigures(s *render.SimReport) ([]figure, error) {
+	h, cur := s.Hedge, s.HedgeFile.Currency
+	cost := sim.Row{Name: "net cost", Period: "the position", Unit: cur, Info: sim.Info{HighIsAdverse: true}}
+	net, err := overlayFigure("hedge-net", cost, []string{"unhedged", "hedged as in the file"}, [][]float64{h.Cost, h.Net})
+	if err != nil {
+		return nil, err
+	}
+	figs := []figure{net}
+	if len(h.Contracts) > 0 {
+		var names []string
+		var values [][]float64
+		for _, c := range h.Contracts {
+			names, values = append(names, c.Contract.Name), append(values, c.Payoffs)
+		}
+		payout := sim.Row{Name: "payout", Period: "one contract bought", Unit: cur, Info: sim.Info{HighIsAdverse: true}}
+		f, err := overlayFigure("hedge-payout", payout, names, values)
+		if err != nil {
+			return nil, err
+		}
+		figs = append(figs, f)
+	}
+	return figs, nil
 }
 
 func (b *builder) simulationSection() (any, error) {
@@ -328,6 +355,13 @@ func (b *builder) simulationSection() (any, error) {
 		}
 		t := newTextTable("hedge", "The position's net cost", ph, position, 1, 2, 3, 4, 5)
 		v.HedgePosition = &t
+		figs, err := hedgeFigures(s)
+		if err != nil {
+			return nil, err
+		}
+		for _, f := range figs {
+			v.HedgeFigures = append(v.HedgeFigures, b.figure(f))
+		}
 	}
 	if s := in.Sim; s != nil && len(s.Bands) > 0 {
 		title, header, rows := render.BandTable(s.Rows, s.Bands, s.Refits)
