@@ -28,6 +28,13 @@ const (
 	numIndices
 )
 
+// Cold-snap indices, present when a run asks for them (Config.SnapDays):
+// the planner's k-day design snap.
+const (
+	ColdSnap   Index = numIndices + iota // lowest mean of SnapDays consecutive days
+	SnapEnergy                           // highest demand over SnapDays consecutive days (with demand)
+)
+
 // Info describes an index for reports.
 type Info struct {
 	Key  string // short name for flags and files: "hdd", "coldest", ...
@@ -50,6 +57,9 @@ var indexInfo = [...]Info{
 	PeakDemand:   {"peak", "peak-day demand", true, "demand"},
 	PeakDay:      {"peak-day", "day of the peak", true, "day of period"},
 	OverCapacity: {"over-capacity", "days over capacity", true, "days"},
+
+	ColdSnap:   {"cold-snap", "coldest k-day mean", false, "deg"},
+	SnapEnergy: {"snap-energy", "k-day demand energy", true, "energy"},
 }
 
 // Info returns the description of the index.

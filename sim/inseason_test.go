@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 
@@ -110,6 +111,51 @@ func TestInSeasonErrors(t *testing.T) {
 		_, err := Run(context.Background(), m, Config{Paths: 10, Start: StartConditional, Periods: []string{"heating"}, Observed: c.o})
 		if err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("error %v, want one saying %q", err, c.want)
+		}
+	}
+}
+
+// TestSnapsAndTopMatchBruteForce recomputes, from one path's days, the
+// lowest 3-day mean, the highest 3-day demand and the 5 highest daily
+// demands of each period, as the run stores them.
+func TestSnapsAndTopMatchBruteForce(t *testing.T) {
+	t.Parallel()
+	m := seasonalModel([]float64{0.7})
+	cfg := Config{Paths: 3, Seed: 9, Year: 2021, Periods: []string{"heating", "jan", "year"}, Bases: BasesFor(model.Celsius),
+		Demand: testDemand(), SnapDays: 3, TopDays: 5}
+	pl, periods, err := prepare(m, &cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), m, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	buf, dbuf := make([]float64, pl.n), make([]float64, pl.n)
+	var rng rand.PCG
+	for i := range cfg.Paths {
+		pl.path(&rng, cfg.Seed, i, buf, dbuf)
+		for k, p := range periods {
+			lo, hi := int(p.From-pl.first), int(p.To-pl.first)+1
+			cold, energy := math.Inf(1), math.Inf(-1)
+			for d := lo; d+3 <= hi; d++ {
+				cold = math.Min(cold, (buf[d]+buf[d+1]+buf[d+2])/3)
+				energy = math.Max(energy, dbuf[d]+dbuf[d+1]+dbuf[d+2])
+			}
+			if got := column(t, res, ColdSnap, p.Name)[i]; math.Abs(got-cold) > 1e-9 {
+				t.Errorf("path %d %s: cold snap %v, brute force %v", i, p.Name, got, cold)
+			}
+			if got := column(t, res, SnapEnergy, p.Name)[i]; math.Abs(got-energy) > 1e-6*math.Abs(energy) {
+				t.Errorf("path %d %s: snap energy %v, brute force %v", i, p.Name, got, energy)
+			}
+			days := append([]float64(nil), dbuf[lo:hi]...)
+			slices.Sort(days)
+			for j := range 5 {
+				want := float32(days[len(days)-1-j])
+				if got := res.Top[k][i*5+j]; got != want {
+					t.Errorf("path %d %s: top %d is %v, brute force %v", i, p.Name, j, got, want)
+				}
+			}
 		}
 	}
 }

@@ -59,8 +59,14 @@ type plan struct {
 	// obs are the observed days a season under way starts with (Config.
 	// Observed): every path has them as they were, and is simulated from the
 	// day after.
-	obs     []float64
-	obsLoad []float64 // the observed loads of the same days, with demand
+	// Cold snaps (Config.SnapDays): the window length and the position of
+	// ColdSnap (SnapEnergy follows it) among a period's indices; the
+	// periods' day ranges [lo, hi) in the run's days.
+	snapDays, snapPos int
+	periodDays        [][2]int
+	topDays           int // Config.TopDays, with demand
+	obs               []float64
+	obsLoad           []float64 // the observed loads of the same days, with demand
 	// The slow part F (slow false without one): F(t) = phiS·F(t−1) +
 	// slowQ·η(t), η from the low bits of the fast shock's draw; F starts
 	// from N(f0Mean, f0SD²) (its stationary law, or the filtered state at
@@ -242,6 +248,17 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	if cfg.Demand != nil {
 		pl.setDemand(cfg)
 	}
+	if cfg.SnapDays > 0 {
+		pl.snapDays = cfg.SnapDays
+		pl.snapPos = len(pl.indices)
+		pl.indices = append(pl.indices, ColdSnap)
+		if cfg.Demand != nil {
+			pl.indices = append(pl.indices, SnapEnergy)
+		}
+	}
+	if cfg.TopDays > 0 && cfg.Demand != nil {
+		pl.topDays = cfg.TopDays
+	}
 	if err := pl.setShocks(m.Shocks, months); err != nil {
 		return nil, err
 	}
@@ -258,6 +275,7 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	}
 	for _, p := range periods {
 		lo, hi := int(p.From-pl.first), int(p.To-pl.first)+1
+		pl.periodDays = append(pl.periodDays, [2]int{lo, hi})
 		s0 := slices.IndexFunc(pl.segs, func(s segment) bool { return s.lo == lo })
 		s1 := slices.IndexFunc(pl.segs, func(s segment) bool { return s.hi == hi }) + 1
 		pl.pspan = append(pl.pspan, [2]int{s0, s1})

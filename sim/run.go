@@ -34,6 +34,13 @@ type Config struct {
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
 	Capacity float64
+	// SnapDays, when positive, adds the indices ColdSnap (the lowest mean of
+	// SnapDays consecutive days of each period) and, with demand,
+	// SnapEnergy (the highest demand over SnapDays consecutive days).
+	SnapDays int
+	// TopDays, when positive with demand, keeps each path's TopDays highest
+	// daily demands of each period (Result.Top), for capacity targets.
+	TopDays int
 	// ReturnPeriods are the T (years, > 1) of the 1-in-T return levels the
 	// tail tables list; nil means TailReturnPeriods.
 	ReturnPeriods []float64
@@ -78,6 +85,10 @@ type Result struct {
 	// SimulatedDays is the number of days stepped per path, including the
 	// burn-in or the days between the data end and the first period.
 	SimulatedDays int
+	// Top holds, with Config.TopDays, each path's highest daily demands of
+	// each period, highest first: Top[k][i·TopDays : (i+1)·TopDays] for
+	// period k, path i.
+	Top [][]float32
 	// InSeason describes, for a run with observed days (Config.Observed),
 	// each period's observed part: one entry per period, in order.
 	InSeason []PeriodObserved
@@ -170,6 +181,12 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 	for i := range res.Aggregates {
 		out[i] = res.Aggregates[i].Values
 	}
+	if pl.topDays > 0 {
+		res.Top = make([][]float32, len(periods))
+		for k := range res.Top {
+			res.Top[k] = make([]float32, cfg.Paths*pl.topDays)
+		}
+	}
 
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(cfg.Workers)
@@ -193,6 +210,12 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 					pl.accumulateDemand(dbuf, segs)
 				}
 				pl.collect(segs, out, i)
+				if pl.snapDays > 0 {
+					pl.snaps(buf, dbuf, out, i)
+				}
+				if pl.topDays > 0 {
+					pl.top(dbuf, res.Top, i)
+				}
 			}
 			if cfg.Progress != nil {
 				cfg.Progress(hi - lo)
@@ -508,6 +531,64 @@ func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
 			if nx > int(OverCapacity) {
 				o[OverCapacity][i] = float64(over)
 			}
+		}
+	}
+}
+
+// snaps writes path i's cold-snap indices: for each period the lowest mean
+// of snapDays consecutive days (windows inside the period) and, with
+// demand, the highest demand over snapDays consecutive days.
+func (pl *plan) snaps(buf, dbuf []float64, out [][]float64, i int) {
+	nx, k := len(pl.indices), pl.snapDays
+	for p, r := range pl.periodDays {
+		lo, hi := r[0], r[1]
+		cold, energy := math.Inf(1), math.Inf(-1)
+		if hi-lo >= k {
+			t, e := 0.0, 0.0
+			for d := lo; d < lo+k; d++ {
+				t += buf[d]
+				if dbuf != nil {
+					e += dbuf[d]
+				}
+			}
+			cold, energy = t, e
+			for d := lo + k; d < hi; d++ {
+				t += buf[d] - buf[d-k]
+				cold = min(cold, t)
+				if dbuf != nil {
+					e += dbuf[d] - dbuf[d-k]
+					energy = max(energy, e)
+				}
+			}
+			cold /= float64(k)
+		}
+		out[p*nx+pl.snapPos][i] = cold
+		if dbuf != nil {
+			out[p*nx+pl.snapPos+1][i] = energy
+		}
+	}
+}
+
+// top writes path i's topDays highest daily demands of each period into
+// top, highest first.
+func (pl *plan) top(dbuf []float64, top [][]float32, i int) {
+	k := pl.topDays
+	for p, r := range pl.periodDays {
+		dst := top[p][i*k : (i+1)*k]
+		for j := range dst {
+			dst[j] = float32(math.Inf(-1))
+		}
+		for _, v := range dbuf[r[0]:r[1]] {
+			x := float32(v)
+			if x <= dst[k-1] {
+				continue
+			}
+			j := k - 1
+			for j > 0 && dst[j-1] < x {
+				dst[j] = dst[j-1]
+				j--
+			}
+			dst[j] = x
 		}
 	}
 }

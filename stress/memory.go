@@ -32,6 +32,9 @@ func MemoryEstimate(job *Job, periods, indices int) int64 {
 	if job.Detail > 0 {
 		total += int64(min(job.Detail, job.Config.Paths)) * 400 * 8 * 2
 	}
+	if len(job.CapacityTargets) > 0 {
+		total += paths * int64(periods) * topDays * 4
+	}
 	if u := job.Uncertainty; u != nil && u.Mode != UncertaintyMix {
 		total += min(paths, bandPaths) * int64(periods*indices) * 8
 	}

@@ -69,6 +69,14 @@ type Job struct {
 	// HedgeOptions nil means hedge.DefaultOptions.
 	Hedge        *hedge.File
 	HedgeOptions *hedge.Options
+	// Design lists the planning standards (T of 1-in-T, years) of the design
+	// day, the SnapDays-day cold snap (DefaultSnapDays when 0), the design-day
+	// demand and the snap's demand energy.
+	Design   []float64
+	SnapDays int
+	// CapacityTargets are solved for the capacity that meets them (needs
+	// demand).
+	CapacityTargets []CapacityTarget
 	// Uncertainty asks for parameter uncertainty by a parametric bootstrap
 	// (needs Temps, the record the model describes, and a simulation).
 	Uncertainty *Uncertainty
@@ -110,10 +118,12 @@ type Result struct {
 	Extremes []ExtremeCheck
 	// Refits are the bootstrap's refitted models and Bands the 90 %
 	// confidence bands of the baseline's tail numbers (band mode).
-	Refits    []*model.File
-	Bands     []RowBands
-	Hedge     *hedge.Result // with Job.Hedge
-	HedgeFile *hedge.File   // Job.Hedge
+	Refits     []*model.File
+	Bands      []RowBands
+	Design     []DesignRow   // with Job.Design
+	Capacities []CapacityRow // with Job.CapacityTargets
+	Hedge      *hedge.Result // with Job.Hedge
+	HedgeFile  *hedge.File   // Job.Hedge
 }
 
 // ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
@@ -185,6 +195,26 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	cfg := job.Config
 	cfg.Year = sim.TargetYear(res.Model, cfg.Year, cfg.Periods)
+	if len(job.Design) > 0 {
+		cfg.SnapDays = job.SnapDays
+		if cfg.SnapDays == 0 {
+			cfg.SnapDays = DefaultSnapDays
+		}
+		if cfg.ReturnPeriods == nil {
+			cfg.ReturnPeriods = sim.TailReturnPeriods()
+		}
+		for _, T := range job.Design {
+			if !slices.Contains(cfg.ReturnPeriods, T) {
+				cfg.ReturnPeriods = append(cfg.ReturnPeriods, T)
+			}
+		}
+	}
+	if len(job.CapacityTargets) > 0 {
+		if res.Demand == nil {
+			return nil, fmt.Errorf("%w: capacity targets need a demand model", ErrJob)
+		}
+		cfg.TopDays = topDays
+	}
 	if job.Hedge != nil {
 		cfg.Periods = withHedgePeriods(cfg.Periods, job.Hedge)
 		for _, k := range job.Hedge.Needs() {
@@ -263,6 +293,10 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		}
 	}
 	res.Set = set
+	if len(job.Design) > 0 {
+		res.Design = designRows(set.Rows, job.Design)
+	}
+	res.Capacities = solveCapacities(set.Base, job.CapacityTargets)
 	if job.History && job.Temps != nil {
 		if res.History, err = Historical(job.Temps, res.Model, set); err != nil {
 			return nil, err

@@ -40,7 +40,8 @@ ones that end in the target year.`,
   wxstress simulate --model model.json --scenario warm-2c --report stress.html
   wxstress simulate --model model.json --history station.csv --period heating
   wxstress simulate --model model.json --history station.csv --uncertainty 50 --uncertainty-mode band
-  wxstress simulate --model model.json --demand demand.json --history station.csv --hedge hedge.toml --out book/`,
+  wxstress simulate --model model.json --demand demand.json --history station.csv --hedge hedge.toml --out book/
+  wxstress simulate --model model.json --demand demand.json --design 1-in-20,1-in-50 --capacity-target peak:1-in-20 --capacity-target days:1`,
 }
 
 type simulateOptions struct {
@@ -72,6 +73,11 @@ type simulateOptions struct {
 	observed  string
 	obsLoad   string
 	periodsT  []float64
+	design    []string
+	snapDays  int
+	targets   []string
+	standards []float64
+	capTarget []stress.CapacityTarget
 
 	fs          *pflag.FlagSet
 	memoryLimit int64
@@ -101,6 +107,9 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
 	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100 (default 2,5,10,20,50,100)")
+	fs.StringSliceVar(&o.design, "design", nil, "planning standards of the design day, e.g. 1-in-20,1-in-50: the 1-in-T coldest day, k-day cold snap, peak-day demand and snap energy")
+	fs.IntVar(&o.snapDays, "snap-days", stress.DefaultSnapDays, "with --design: the length k of the design cold snap, in days")
+	fs.StringArrayVar(&o.targets, "capacity-target", nil, "with --demand: solve the capacity for peak:1-in-T, days:x (days over a year) or any:p (probability of any day over); repeatable")
 	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
 	fs.Float64Var(&o.loading, "loading", 0.2, "with --hedge: λ of the loaded price, mean + λ·sd of the payout")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
@@ -153,6 +162,26 @@ func (o *simulateOptions) validate() error {
 	}
 	if math.IsNaN(o.loading) || math.IsInf(o.loading, 0) || o.loading < 0 {
 		return usagef("simulate: --loading %v: want a finite number ≥ 0", o.loading)
+	}
+	for _, d := range o.design {
+		T, err := stress.ParseStandard(d)
+		if err != nil {
+			return usagef("simulate: --design %q: want 1-in-T with T a number of years above 1, e.g. 1-in-20", d)
+		}
+		o.standards = append(o.standards, T)
+	}
+	if o.snapDays < 1 || o.snapDays > 31 {
+		return usagef("simulate: --snap-days %d: want 1..31", o.snapDays)
+	}
+	for _, tg := range o.targets {
+		c, err := stress.ParseCapacityTarget(tg)
+		if err != nil {
+			return usagef("simulate: --capacity-target %q: want peak:1-in-T, days:x or any:p", tg)
+		}
+		o.capTarget = append(o.capTarget, c)
+	}
+	if len(o.capTarget) > 0 && o.demand == "" {
+		return usagef("simulate: --capacity-target needs --demand")
 	}
 	if err := sim.CheckReturnPeriods(o.periodsT); err != nil {
 		return usagef("simulate: --return-periods: %v", strings.TrimPrefix(err.Error(), "sim: "))
@@ -292,6 +321,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if o.refits > 0 {
 		job.Uncertainty = &stress.Uncertainty{Refits: o.refits, Mode: o.mode}
 	}
+	job.Design, job.SnapDays, job.CapacityTargets = o.standards, o.snapDays, o.capTarget
 	if o.hedgeFile != "" {
 		if job.Hedge, err = hedge.Load(o.hedgeFile); err != nil {
 			return err
@@ -311,6 +341,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	rep.Manifest = manifest(m, o.modelPath, sum, res)
 	if o.out != "" || o.report != "" {
 		rep.Manifest.RunID = plan.runID() // names the set of files written together
+	}
+	if len(o.standards) > 0 {
+		rep.Manifest.SnapDays = out.Set.Config.SnapDays
 	}
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {

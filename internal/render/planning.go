@@ -123,6 +123,8 @@ type jsonPlanning struct {
 	LoadDurationPaths int               `json:"load_duration_paths,omitempty"`
 	LoadDuration      []jsonRank        `json:"load_duration,omitempty"`
 	Normals           []jsonNormalYear  `json:"weather_normalized,omitempty"`
+	Design            []jsonDesign      `json:"design,omitempty"`
+	Capacity          []jsonCapacity    `json:"capacity,omitempty"`
 	Notes             map[string]string `json:"notes"`
 }
 
@@ -152,11 +154,15 @@ type jsonNormalYear struct {
 func toJSONPlanning(r *SimReport) *jsonPlanning {
 	p := r.Planning
 	if p == nil {
-		return nil
+		if len(r.Design) == 0 {
+			return nil
+		}
+		return &jsonPlanning{Design: toJSONDesign(r.Design), Notes: map[string]string{}}
 	}
 	j := &jsonPlanning{Unit: p.Unit, LoadDurationPaths: p.LoadDurationPaths, Notes: map[string]string{
 		"p50": "50/50 peak: exceeded one year in two", "p90": "90/10 peak: exceeded one year in ten",
-		"return_level_20": "1-in-20 peak", "return_level_50": "1-in-50 peak"}}
+		"return_level_20": "1-in-20 peak", "return_level_50": "1-in-50 peak"},
+		Design: toJSONDesign(r.Design), Capacity: toJSONCapacity(r.Capacities)}
 	for _, l := range peakLevels(r.Rows) {
 		j.PeakDay = append(j.PeakDay, jsonPeak{l.Period, l.P50, l.P90, l.In20, l.In50, l.Max})
 	}

@@ -20,6 +20,8 @@ import (
 // Manifest records what produced an output. It leaves out the worker count
 // and the wall time on purpose: neither may change a result.
 type Manifest struct {
+	// SnapDays is the design cold snap's length (0 without design figures).
+	SnapDays int `json:"snap_days,omitempty"`
 	// RunID names the run that wrote a set of outputs (all files of one run
 	// carry the same id).
 	RunID       string   `json:"run_id,omitempty"`
@@ -68,6 +70,10 @@ type SimReport struct {
 	Bands  []stress.RowBands
 	Refits int
 	Mixed  bool
+	// Design and Capacities are the planner's design figures and solved
+	// capacities.
+	Design     []stress.DesignRow
+	Capacities []stress.CapacityRow
 	// Extremes is the GEV check of the simulated extremes (with a record).
 	Extremes []stress.ExtremeCheck
 	// InSeason is each period's observed part in a run of seasons under way.
@@ -389,6 +395,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 	}
 	writePlanning(e, r)
+	writeDesign(e, r)
 	writeHedge(e, r)
 	writeBands(e, r)
 	writeHistory(e, r.History, r.Manifest.Units)
@@ -622,7 +629,8 @@ func NewSimReport(res *stress.Result) *SimReport {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
 	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
-		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason, Extremes: res.Extremes}
+		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason, Extremes: res.Extremes,
+		Design: res.Design, Capacities: res.Capacities}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
 	for _, run := range s.Scenarios {
 		sc := run.Scenario

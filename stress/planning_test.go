@@ -1,0 +1,110 @@
+package stress
+
+import (
+	"bytes"
+	"context"
+	"math"
+	"testing"
+
+	"wxstress/calibrate"
+	"wxstress/demo"
+	"wxstress/model"
+	"wxstress/sim"
+)
+
+// demoDemandJob is a quick job on the demo data: the temperature model by
+// conditional least squares, the demand model fitted to the loads.
+func demoDemandJob(t *testing.T, paths int) *Job {
+	t.Helper()
+	s, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		t.Fatal(err)
+	}
+	loads, err := calibrate.ReadDemand(bytes.NewReader(demo.Demand()), demo.DemandFile, calibrate.DemandReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return &Job{Temps: s, Fit: &calibrate.Settings{Harmonics: 2, AROrder: 1, Slow: calibrate.SlowNone, Method: "cls",
+		Shocks: model.FamilyNormal}, DemandHistory: loads, DemandFit: &calibrate.DemandSettings{Unit: demo.DemandUnit},
+		Config: sim.Config{Paths: paths, Seed: 5, Year: 2026, Periods: []string{"year"}, Bases: sim.BasesFor(model.Celsius)}}
+}
+
+// TestCapacityTargets solves the three kinds of target and checks them the
+// way a planner would: the peak:1-in-20 capacity is the 1-in-20 peak-day
+// demand; re-simulating at the days:1 capacity gives at most one day over
+// capacity a year (within Monte Carlo error) and 2 % less capacity more;
+// at the any:0.1 capacity one year in ten has a day over.
+func TestCapacityTargets(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo data and simulates twice")
+	}
+	t.Parallel()
+	job := demoDemandJob(t, 20000)
+	for _, s := range []string{"peak:1-in-20", "days:1", "any:0.1"} {
+		c, err := ParseCapacityTarget(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		job.CapacityTargets = append(job.CapacityTargets, c)
+	}
+	job.Design = []float64{20, 50}
+	res, err := Run(context.Background(), job)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var peak20 float64
+	for _, r := range res.Set.Rows {
+		if r.Index == sim.PeakDemand {
+			peak20 = r.Tail.ReturnLevel(20)
+		}
+	}
+	caps := map[string]CapacityRow{}
+	for _, c := range res.Capacities {
+		caps[c.Target] = c
+		t.Logf("%s: capacity %.0f ± %.0f, achieved %.4f", c.Target, c.Capacity, c.SE, c.Achieved)
+	}
+	if c := caps["peak:1-in-20"]; math.Abs(c.Capacity-peak20) > 1e-5*peak20 {
+		t.Errorf("peak:1-in-20 capacity %.2f, the 1-in-20 peak-day demand is %.2f", c.Capacity, peak20)
+	}
+	if c := caps["any:0.1"]; math.Abs(c.Achieved-0.1) > 0.002 {
+		t.Errorf("any:0.1 achieves %.4f", c.Achieved)
+	}
+	// Re-simulate with the days:1 capacity, and with 2 % less.
+	days := caps["days:1"].Capacity
+	over := func(capacity float64) (float64, float64) {
+		cfg := res.Set.Config
+		cfg.Capacity, cfg.TopDays, cfg.SnapDays, cfg.Seed = capacity, 0, 0, 77
+		r, err := sim.Run(context.Background(), res.Model, cfg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, a := range r.Aggregates {
+			if a.Index == sim.OverCapacity {
+				m, sd := meanSD(a.Values)
+				return m, sd / math.Sqrt(float64(len(a.Values)))
+			}
+		}
+		t.Fatal("no days-over-capacity aggregate")
+		return 0, 0
+	}
+	if m, se := over(days); m > 1+3*se {
+		t.Errorf("at the days:1 capacity %.0f: %.3f ± %.3f days over a year", days, m, se)
+	}
+	if m, se := over(0.98 * days); m <= 1+se {
+		t.Errorf("at 2 %% less capacity: %.3f ± %.3f days over a year, want more than 1", m, se)
+	}
+	if len(res.Design) != 2 || math.IsNaN(res.Design[0].Snap) || math.IsNaN(res.Design[0].SnapEnergy) {
+		t.Errorf("design rows %+v", res.Design)
+	}
+}
+
+func meanSD(v []float64) (float64, float64) {
+	s, s2 := 0.0, 0.0
+	for _, x := range v {
+		s += x
+		s2 += x * x
+	}
+	n := float64(len(v))
+	m := s / n
+	return m, math.Sqrt((s2 - n*m*m) / (n - 1))
+}
