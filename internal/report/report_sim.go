@@ -304,6 +304,9 @@ type simulationView struct {
 	// Bands is the parameter-uncertainty table; nil without bands.
 	Bands      *textTable
 	BandsTitle string
+	// Design and Capacity are the planner's tables; nil without them.
+	Design, Capacity *textTable
+	CapacityNotes    []string
 	// Extremes is the GEV check; nil without a record.
 	Extremes      *textTable
 	ExtremesNotes []string
@@ -311,6 +314,14 @@ type simulationView struct {
 	// nil without a hedge file.
 	HedgeContracts, HedgePosition *textTable
 	HedgeFigures                  []*figView
+}
+
+// planningUnit is the demand unit of a run with demand, "" without.
+func planningUnit(s *render.SimReport) string {
+	if s.Planning != nil {
+		return s.Planning.Unit
+	}
+	return ""
 }
 
 // hedgeFigures are the exceedance curves of the net cost, unhedged and
@@ -342,6 +353,16 @@ func hedgeFigures(s *render.SimReport) ([]figure, error) {
 func (b *builder) simulationSection() (any, error) {
 	in := b.in
 	v := &simulationView{}
+	if s := in.Sim; s != nil && len(s.Design) > 0 {
+		header, rows := render.DesignTable(s.Design, s.Manifest.SnapDays, s.Manifest.Units, planningUnit(s))
+		t := newTextTable("design", "Design day at the planning standards (± Monte Carlo s.e.)", header, rows, 2, 3, 4, 5)
+		v.Design = &t
+	}
+	if s := in.Sim; s != nil && len(s.Capacities) > 0 {
+		header, rows, notes := render.CapacityTable(s.Capacities, planningUnit(s))
+		t := newTextTable("capacity", "Capacity to a target", header, rows, 2)
+		v.Capacity, v.CapacityNotes = &t, notes
+	}
 	if s := in.Sim; s != nil && len(s.Extremes) > 0 {
 		header, rows, notes := render.ExtremesTable(s.Extremes, s.Manifest.Units)
 		t := newTextTable("extremes", "", header, rows, 2, 4, 5)
