@@ -211,6 +211,7 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 	if err := fitNoise(m, days.Dates, res.Residual); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
+	chooseNoiseScale(m, days, res.Fitted, res.Residual)
 	m.Data = demandData(days, f.n)
 	m.Diagnostics.SearchRange = [2]float64{f.gridValue(0), f.gridValue(len(f.heat) - 1)}
 	m.Diagnostics.SearchStep = BalanceStep

@@ -127,6 +127,63 @@ type DemandNoise struct {
 	Last float64 `json:"last_residual"`
 	// Pairs is the number of consecutive-day residual pairs behind φ.
 	Pairs int `json:"pairs"`
+	// Scale is how the innovations' sd depends on the day: "constant" (σ
+	// every day; also an empty value, in older files), "load" (σ·E(t)/Ē:
+	// in proportion to the day's expected load E(t), Ē its mean over the
+	// record, so that cold days with high loads vary more) or "bands" (one
+	// σ per temperature band). The fit chooses by AIC.
+	Scale    string       `json:"scale,omitempty"`
+	MeanLoad float64      `json:"mean_expected_load,omitempty"` // Ē, for Scale "load"
+	// BandEdges and BandSigma give, for Scale "bands", the sd of each
+	// temperature band: BandSigma[i] below BandEdges[i] (and above the edge
+	// before), the last above the last edge (temperature units).
+	BandEdges []float64 `json:"band_edges,omitempty"`
+	BandSigma []float64 `json:"band_sigma,omitempty"`
+	Choice   []NoiseScore `json:"scale_choice,omitempty"`
+	// Cold compares, on the coldest 5 % of the record's days, the sd of the
+	// innovations with what the chosen scale gives there.
+	Cold *NoiseCheck `json:"cold_days_check,omitempty"`
+}
+
+// NoiseScore is one candidate scale of the demand noise with its Gaussian
+// log-likelihood on the innovations.
+type NoiseScore struct {
+	Scale  string  `json:"scale"`
+	Sigma  float64 `json:"sigma"`
+	LogLik float64 `json:"loglik"`
+	Params int     `json:"params"`
+	AIC    float64 `json:"aic"`
+	Chosen bool    `json:"chosen"`
+}
+
+// NoiseCheck is the spread of the innovations on the coldest days against
+// the spread the noise model gives them.
+type NoiseCheck struct {
+	Days     int     `json:"days"`
+	Below    float64 `json:"temperature_below"` // the days with a mean below this
+	Observed float64 `json:"observed_sd"`
+	Model    float64 `json:"model_sd"`
+}
+
+// NoiseSigma returns the innovations' sd on a day whose expected load is
+// e and whose mean temperature is t: σ, σ·e/Ē for the load scale, or the
+// sd of t's band.
+func (n DemandNoise) NoiseSigma(e, t float64) float64 {
+	switch n.Scale {
+	case "load":
+		if n.MeanLoad > 0 {
+			return n.Sigma * math.Max(e, 0) / n.MeanLoad
+		}
+	case "bands":
+		i := 0
+		for i < len(n.BandEdges) && t >= n.BandEdges[i] {
+			i++
+		}
+		if i < len(n.BandSigma) {
+			return n.BandSigma[i]
+		}
+	}
+	return n.Sigma
 }
 
 // DemandSE holds ordinary least-squares standard errors, conditional on
@@ -404,6 +461,29 @@ func (d *Demand) Validate(name string) error {
 	}
 	if !finite(d.Noise.Phi) || math.Abs(d.Noise.Phi) >= 1 {
 		return bad("noise.phi", "φ = %v, must be in (−1, 1) for a stationary AR(1)", d.Noise.Phi)
+	}
+	switch d.Noise.Scale {
+	case "", "constant":
+	case "load":
+		if !(d.Noise.MeanLoad > 0) || !finite(d.Noise.MeanLoad) {
+			return bad("noise.mean_expected_load", "%v, must be positive for the load scale", d.Noise.MeanLoad)
+		}
+	case "bands":
+		if len(d.Noise.BandSigma) != len(d.Noise.BandEdges)+1 || len(d.Noise.BandEdges) == 0 {
+			return bad("noise.band_sigma", "want one σ more than band_edges")
+		}
+		for i, v := range d.Noise.BandSigma {
+			if !(v > 0) || !finite(v) {
+				return bad(fmt.Sprintf("noise.band_sigma[%d]", i), "σ = %v, must be positive and finite", v)
+			}
+		}
+		for i, v := range d.Noise.BandEdges {
+			if !finite(v) || i > 0 && v <= d.Noise.BandEdges[i-1] {
+				return bad("noise.band_edges", "must be finite and increasing")
+			}
+		}
+	default:
+		return bad("noise.scale", "is %q, want \"constant\", \"load\" or \"bands\"", d.Noise.Scale)
 	}
 	if !(d.Noise.Sigma > 0) || !finite(d.Noise.Sigma) {
 		return bad("noise.sigma", "σ = %v, must be positive and finite", d.Noise.Sigma)

@@ -64,7 +64,8 @@ type plan struct {
 	// periods' day ranges [lo, hi) in the run's days.
 	snapDays, snapPos int
 	periodDays        [][2]int
-	topDays           int // Config.TopDays, with demand
+	topDays           int     // Config.TopDays, with demand
+	growth            float64 // Config.Growth, 1 when unset
 	obs               []float64
 	obsLoad           []float64 // the observed loads of the same days, with demand
 	// The slow part F (slow false without one): F(t) = phiS·F(t−1) +
@@ -350,6 +351,10 @@ func (pl *plan) setEvents(m *model.File, year int) error {
 // setDemand precomputes the demand model's per-day calendar.
 func (pl *plan) setDemand(cfg *Config) {
 	pl.demand = cfg.Demand
+	pl.growth = cfg.Growth
+	if pl.growth == 0 {
+		pl.growth = 1
+	}
 	pl.normal = shocks.NewTable(shocks.Normal{})
 	if cfg.Start == StartConditional {
 		pl.u0 = cfg.Demand.Noise.Last

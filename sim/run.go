@@ -34,6 +34,9 @@ type Config struct {
 	// Capacity, when positive, adds the index "days over capacity" (demand
 	// above Capacity, in the demand's unit).
 	Capacity float64
+	// Growth scales the simulated demand (not the observed loads of a
+	// season under way) by this factor; 0 means 1.
+	Growth float64
 	// SnapDays, when positive, adds the indices ColdSnap (the lowest mean of
 	// SnapDays consecutive days of each period) and, with demand,
 	// SnapEnergy (the highest demand over SnapDays consecutive days).
@@ -109,6 +112,12 @@ func (c *Config) Validate(m *model.File) error {
 	}
 	if err := CheckReturnPeriods(c.ReturnPeriods); err != nil {
 		return err
+	}
+	if math.IsNaN(c.Growth) || c.Growth < 0 || c.Growth > 100 || math.IsInf(c.Growth, 0) {
+		return fmt.Errorf("sim: demand growth factor %v: want a positive factor", c.Growth)
+	}
+	if c.SnapDays < 0 || c.SnapDays > 366 || c.TopDays < 0 || c.TopDays > 366 {
+		return fmt.Errorf("sim: snap days %d and top days %d: want 0..366", c.SnapDays, c.TopDays)
 	}
 	if c.Workers < 0 {
 		return fmt.Errorf("sim: workers must be positive, got %d", c.Workers)
@@ -398,9 +407,19 @@ func (pl *plan) demandPath(rng *rand.PCG, buf, dbuf []float64) {
 	u := pl.u0
 	wd, hol := pl.weekday[:len(buf)], pl.holiday[:len(buf)]
 	n := copy(dbuf, pl.obsLoad) // a season under way: its observed loads first
+	scale := pl.growth
+	if d.Noise.Scale == "" || d.Noise.Scale == "constant" {
+		for i := n; i < len(buf); i++ {
+			u = phi*u + sigma*tab.Draw(rng.Uint64())
+			dbuf[i] = scale * (d.Expected(buf[i], wd[i], hol[i]) + u)
+		}
+		return
+	}
+	// Noise whose scale follows the day (its expected load or temperature).
 	for i := n; i < len(buf); i++ {
-		u = phi*u + sigma*tab.Draw(rng.Uint64())
-		dbuf[i] = d.Expected(buf[i], wd[i], hol[i]) + u
+		e := d.Expected(buf[i], wd[i], hol[i])
+		u = phi*u + d.Noise.NoiseSigma(e, buf[i])*tab.Draw(rng.Uint64())
+		dbuf[i] = scale * (e + u)
 	}
 }
 

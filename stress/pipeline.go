@@ -74,6 +74,10 @@ type Job struct {
 	// demand and the snap's demand energy.
 	Design   []float64
 	SnapDays int
+	// Growth is the demand's growth in per cent a year, from the demand
+	// record's end to the target year: the simulated demand is scaled by
+	// (1 + Growth/100)^(target year − the record's last year).
+	Growth float64
 	// CapacityTargets are solved for the capacity that meets them (needs
 	// demand).
 	CapacityTargets []CapacityTarget
@@ -227,6 +231,12 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		cfg.Demand = res.Demand
 		if err := job.holidays(res, &cfg); err != nil {
 			return nil, err
+		}
+		if job.Growth != 0 {
+			if !(job.Growth > -50 && job.Growth < 100) {
+				return nil, fmt.Errorf("%w: demand growth %v %% a year: want −50 to 100", ErrJob, job.Growth)
+			}
+			cfg.Growth = math.Pow(1+job.Growth/100, float64(cfg.Year-res.Demand.Data.LastDate.Year()))
 		}
 	}
 	if job.Observed {

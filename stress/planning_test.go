@@ -108,3 +108,34 @@ func meanSD(v []float64) (float64, float64) {
 	m := s / n
 	return m, math.Sqrt((s2 - n*m*m) / (n - 1))
 }
+
+// TestGrowthScalesDemand: --growth g scales every simulated day's demand by
+// (1 + g/100)^years (the same paths, common random numbers), so the energy
+// and the peak scale by that factor exactly.
+func TestGrowthScalesDemand(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo data")
+	}
+	t.Parallel()
+	run := func(g float64) *Result {
+		job := demoDemandJob(t, 500)
+		job.Config.Year, job.Growth = 2028, g
+		res, err := Run(context.Background(), job)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+	a, b := run(0), run(2)
+	f := math.Pow(1.02, 3) // 2025 → 2028
+	for k, ag := range a.Set.Base.Aggregates {
+		if ag.Index != sim.Energy && ag.Index != sim.PeakDemand {
+			continue
+		}
+		for i, v := range ag.Values {
+			if w := b.Set.Base.Aggregates[k].Values[i]; math.Abs(w-f*v) > 1e-9*math.Abs(w) {
+				t.Fatalf("%s path %d: %v with growth, %v × %.6f without", ag.Index.Info().Key, i, w, v, f)
+			}
+		}
+	}
+}

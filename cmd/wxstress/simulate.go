@@ -75,6 +75,7 @@ type simulateOptions struct {
 	periodsT  []float64
 	design    []string
 	snapDays  int
+	growth    float64
 	targets   []string
 	standards []float64
 	capTarget []stress.CapacityTarget
@@ -108,6 +109,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
 	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100 (default 2,5,10,20,50,100)")
 	fs.StringSliceVar(&o.design, "design", nil, "planning standards of the design day, e.g. 1-in-20,1-in-50: the 1-in-T coldest day, k-day cold snap, peak-day demand and snap energy")
+	fs.Float64Var(&o.growth, "growth", 0, "with --demand: load growth in per cent a year from the demand record's end to the target year")
 	fs.IntVar(&o.snapDays, "snap-days", stress.DefaultSnapDays, "with --design: the length k of the design cold snap, in days")
 	fs.StringArrayVar(&o.targets, "capacity-target", nil, "with --demand: solve the capacity for peak:1-in-T, days:x (days over a year) or any:p (probability of any day over); repeatable")
 	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
@@ -179,6 +181,12 @@ func (o *simulateOptions) validate() error {
 			return usagef("simulate: --capacity-target %q: want peak:1-in-T, days:x or any:p", tg)
 		}
 		o.capTarget = append(o.capTarget, c)
+	}
+	if math.IsNaN(o.growth) || o.growth <= -50 || o.growth >= 100 {
+		return usagef("simulate: --growth %v: want a per-cent growth a year between −50 and 100", o.growth)
+	}
+	if o.growth != 0 && o.demand == "" {
+		return usagef("simulate: --growth needs --demand")
 	}
 	if len(o.capTarget) > 0 && o.demand == "" {
 		return usagef("simulate: --capacity-target needs --demand")
@@ -321,7 +329,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if o.refits > 0 {
 		job.Uncertainty = &stress.Uncertainty{Refits: o.refits, Mode: o.mode}
 	}
-	job.Design, job.SnapDays, job.CapacityTargets = o.standards, o.snapDays, o.capTarget
+	job.Design, job.SnapDays, job.CapacityTargets, job.Growth = o.standards, o.snapDays, o.capTarget, o.growth
 	if o.hedgeFile != "" {
 		if job.Hedge, err = hedge.Load(o.hedgeFile); err != nil {
 			return err

@@ -6,8 +6,27 @@ import (
 	"math"
 	"strings"
 
+	"wxstress/internal/numfmt"
 	"wxstress/model"
 )
+
+// bandText lists the noise's σ by temperature band.
+func bandText(n model.DemandNoise, u string, dec int, unit string) string {
+	var parts []string
+	for i, s := range n.BandSigma {
+		var where string
+		switch {
+		case i == 0:
+			where = "below " + Num(n.BandEdges[0], 1) + " " + u
+		case i == len(n.BandSigma)-1:
+			where = "from " + Num(n.BandEdges[i-1], 1) + " " + u
+		default:
+			where = Num(n.BandEdges[i-1], 1) + " to " + Num(n.BandEdges[i], 1)
+		}
+		parts = append(parts, where+": "+Num(s, dec))
+	}
+	return strings.Join(parts, "; ") + " " + unit
+}
 
 // DemandSummary writes the readable summary of a fitted demand model.
 func DemandSummary(w io.Writer, m *model.Demand) error {
@@ -71,8 +90,34 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	e.printf("  days before it, is the informative check (p = 0 where the model was not fitted to the values).\n")
 
 	n := m.Noise
-	e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d pairs of consecutive days\n",
-		n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, n.Pairs)
+	if n.Scale == "bands" {
+		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ(T)·z(t): φ = %.3f (s.e. %.3f), σ by temperature band (%s), from %d pairs of consecutive days\n",
+			n.Phi, n.PhiSE, bandText(n, u, dec, m.Unit), n.Pairs)
+	} else if n.Scale == "load" {
+		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·E(t)/Ē·z(t): φ = %.3f (s.e. %.3f), σ = %s %s at the mean expected load Ē = %s,\n"+
+			"  in proportion to the day's expected load E(t); from %d pairs of consecutive days\n",
+			n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, numfmt.Fixed(n.MeanLoad, 0), n.Pairs)
+	} else {
+		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d pairs of consecutive days\n",
+			n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, n.Pairs)
+	}
+	if len(n.Choice) > 1 {
+		rows = [][]string{}
+		for _, c := range n.Choice {
+			rows = append(rows, []string{map[string]string{"constant": "constant σ", "load": "σ in proportion to the expected load",
+				"bands": "σ by temperature quarter"}[c.Scale], Num(c.LogLik, 1), fmt.Sprint(c.Params), Num(c.AIC, 1), Mark(c.Chosen)})
+		}
+		e.table([]string{"noise scale", "log-likelihood", "parameters", "AIC", ""}, rows)
+	}
+	if c := n.Cold; c != nil {
+		e.printf("  On the coldest 5%% of days (%d, mean below %s %s) the innovations' sd is %s against %s from the noise model",
+			c.Days, Num(c.Below, 1), u, numfmt.Fixed(c.Observed, 0), numfmt.Fixed(c.Model, 0))
+		if r := c.Model / c.Observed; r < 0.9 {
+			e.printf(": the model's peak-day spread is too narrow (%.0f %%)\n", 100*r)
+		} else {
+			e.printf(" (%.0f %%)\n", 100*c.Model/c.Observed)
+		}
+	}
 	if dg := m.Diagnostics; dg != nil {
 		rows = [][]string{
 			{"lag-1 autocorrelation of the residuals", Num(dg.ACF1, 3), "", "", ""},
