@@ -132,14 +132,14 @@ type DemandNoise struct {
 	// in proportion to the day's expected load E(t), Ē its mean over the
 	// record, so that cold days with high loads vary more) or "bands" (one
 	// σ per temperature band). The fit chooses by AIC.
-	Scale    string       `json:"scale,omitempty"`
-	MeanLoad float64      `json:"mean_expected_load,omitempty"` // Ē, for Scale "load"
+	Scale    string  `json:"scale,omitempty"`
+	MeanLoad float64 `json:"mean_expected_load,omitempty"` // Ē, for Scale "load"
 	// BandEdges and BandSigma give, for Scale "bands", the sd of each
 	// temperature band: BandSigma[i] below BandEdges[i] (and above the edge
 	// before), the last above the last edge (temperature units).
-	BandEdges []float64 `json:"band_edges,omitempty"`
-	BandSigma []float64 `json:"band_sigma,omitempty"`
-	Choice   []NoiseScore `json:"scale_choice,omitempty"`
+	BandEdges []float64    `json:"band_edges,omitempty"`
+	BandSigma []float64    `json:"band_sigma,omitempty"`
+	Choice    []NoiseScore `json:"scale_choice,omitempty"`
 	// Cold compares, on the coldest 5 % of the record's days, the sd of the
 	// innovations with what the chosen scale gives there.
 	Cold *NoiseCheck `json:"cold_days_check,omitempty"`
