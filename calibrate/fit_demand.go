@@ -23,6 +23,10 @@ type DemandSettings struct {
 	// Unit is the demand unit as the user states it, e.g. "GJ/day"; it is
 	// stored in the model and shown in reports.
 	Unit string
+	// Noise fixes the noise's scale: "constant", "load" (the multiplicative
+	// form: innovations in proportion to the expected load) or "bands"; ""
+	// or "auto" chooses by AIC.
+	Noise string
 }
 
 // Acceptance levels of the demand fit.
@@ -211,7 +215,7 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 	if err := fitNoise(m, days.Dates, res.Residual); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
-	chooseNoiseScale(m, days, res.Fitted, res.Residual)
+	chooseNoiseScale(m, days, res.Fitted, res.Residual, set.Noise)
 	m.Data = demandData(days, f.n)
 	m.Diagnostics.SearchRange = [2]float64{f.gridValue(0), f.gridValue(len(f.heat) - 1)}
 	m.Diagnostics.SearchStep = BalanceStep

@@ -16,9 +16,10 @@ const coldShare = 0.05
 // chooseNoiseScale decides how the demand noise's innovations scale with
 // the day, by Gaussian log-likelihood of the innovations e(t) = u(t) −
 // φ·u(t−1): a constant σ, or σ·E(t)/Ē in proportion to the day's expected
-// load, or one σ for each quarter of the days by temperature — by AIC; and
+// load, or one σ for each quarter of the days by temperature — by AIC
+// unless setting names one; and
 // checks the chosen scale on the coldest 5 % of days.
-func chooseNoiseScale(m *model.Demand, days *DemandDays, fitted, resid []float64) {
+func chooseNoiseScale(m *model.Demand, days *DemandDays, fitted, resid []float64, setting string) {
 	phi := m.Noise.Phi
 	var e, load, temp []float64
 	for i := 1; i < len(resid); i++ {
@@ -100,6 +101,11 @@ func chooseNoiseScale(m *model.Demand, days *DemandDays, fitted, resid []float64
 		cands[i].AIC = -2*cands[i].LogLik + 2*float64(cands[i].Params)
 		if cands[i].AIC < cands[best].AIC {
 			best = i
+		}
+	}
+	for i, c := range cands {
+		if c.Scale == setting {
+			best = i // fixed by the user
 		}
 	}
 	cands[best].Chosen = true

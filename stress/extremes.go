@@ -17,6 +17,7 @@ var extremeLevels = [...]float64{20, 50}
 // Statistical Modeling of Extreme Values, §3.3 — from memory).
 type ExtremeCheck struct {
 	Period  string
+	Year    int       // the target year the seasons were moved to
 	Index   sim.Index // Coldest (block minima) or Hottest (block maxima)
 	Seasons int
 	GEV     extremes.GEV // fitted to the maxima, or to the negated minima
@@ -55,7 +56,7 @@ func extremeChecks(h *HistoricalSeasons, set *Set) []ExtremeCheck {
 		if row == nil {
 			continue
 		}
-		c := ExtremeCheck{Period: r.Period, Index: r.Index, Seasons: len(r.Values), Minima: r.Index == sim.Coldest}
+		c := ExtremeCheck{Period: r.Period, Year: h.TargetYear, Index: r.Index, Seasons: len(r.Values), Minima: r.Index == sim.Coldest}
 		type fitter interface {
 			ReturnLevel(T float64) float64
 			ReturnLevelInterval(T, level float64) (float64, float64, error)

@@ -10,9 +10,11 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/internal/report"
 	"wxstress/model"
+	"wxstress/sim"
 	"wxstress/stress"
 )
 
@@ -61,6 +63,10 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.report, "report", "", "also write an HTML report of the data and the fit here")
 	fs.BoolVar(&o.force, "force", false, "replace existing output files")
 }
+
+// fitCheckPaths is the size of fit's check simulation: enough for the
+// 1-in-50 coldest day to within a few hundredths of a degree.
+const fitCheckPaths = 10000
 
 func (o *fitOptions) validate() error {
 	if o.temps == "" {
@@ -124,7 +130,15 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err != nil {
 		return err
 	}
-	out, err := runPipeline(ctx, &stress.Job{Temps: series, Fit: &o.settings, ToolVersion: version})
+	// A short simulation of the fitted model for the GEV check of its
+	// extreme days against the record's own winter minima and summer maxima.
+	// (Fifteen seasons at least: shorter records skip the check.)
+	job := &stress.Job{Temps: series, Fit: &o.settings, ToolVersion: version}
+	if float64(len(series.Temps)) >= 16*calendar.DaysPerYear {
+		job.History = true
+		job.Config = sim.Config{Paths: fitCheckPaths, Seed: 1, Periods: []string{"heating", "cooling"}, Bases: sim.BasesFor(series.Units)}
+	}
+	out, err := runPipeline(ctx, job)
 	if err != nil {
 		return err
 	}
@@ -150,7 +164,7 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	if err := plan.commit(ctx); err != nil {
 		return err
 	}
-	if err := emitFit(stdout, stderr, m, o.format); err != nil {
+	if err := emitFit(stdout, stderr, m, o.format, out.Extremes...); err != nil {
 		return err
 	}
 	if o.format != "json" {

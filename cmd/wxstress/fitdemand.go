@@ -53,6 +53,7 @@ type fitDemandOptions struct {
 	unit, form, units       string
 	out, format             string
 	modelPath               string
+	noise                   string
 	force                   bool
 	settings                calibrate.DemandSettings
 	readOpts                calibrate.ReadOptions
@@ -69,6 +70,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.demand, "demand", "", "daily demand CSV: date, load and an optional holiday column (required)")
 	fs.StringVar(&o.unit, "unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
 	fs.StringVar(&o.holidays, "holidays", "", "holiday dates and rules (fixed 12-25, 4 Thu Nov, last Mon May, easter -2): one per line, or CSV with a date and/or rule column")
+	fs.StringVar(&o.noise, "noise", "auto", "scale of the residual noise: auto (by AIC), constant, load (in proportion to the expected load: the multiplicative form) or bands (σ by temperature quarter)")
 	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandFormNames(), ", "))
 	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
@@ -99,7 +101,12 @@ func (o *fitDemandOptions) validate() error {
 		}
 		o.readOpts.Units = u
 	}
-	o.settings = calibrate.DemandSettings{Form: o.form, Unit: strings.TrimSpace(o.unit)}
+	switch o.noise {
+	case "auto", "constant", "load", "bands":
+	default:
+		return usagef("fit-demand: --noise %q: want auto, constant, load or bands", o.noise)
+	}
+	o.settings = calibrate.DemandSettings{Form: o.form, Unit: strings.TrimSpace(o.unit), Noise: o.noise}
 	return nil
 }
 

@@ -29,8 +29,8 @@ import (
 
 // emitFit prints the model summary or JSON, with the data's warnings on
 // stderr.
-func emitFit(stdout, stderr io.Writer, m *model.File, format string) error {
-	return emit(stdout, stderr, m.Data.Warnings, format, m.MarshalIndent, func() error { return render.FitSummary(stdout, m) })
+func emitFit(stdout, stderr io.Writer, m *model.File, format string, checks ...stress.ExtremeCheck) error {
+	return emit(stdout, stderr, m.Data.Warnings, format, m.MarshalIndent, func() error { return render.FitSummaryWith(stdout, m, checks) })
 }
 
 // emitDemand prints the demand summary or JSON, with the fit's warnings on

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"wxstress/model"
+	"wxstress/stress"
 )
 
 // Caution is the statement every report carries.
@@ -14,7 +15,11 @@ const Caution = "These are statistical scenarios, not forecasts. Capacity, relia
 	"remain subject to local codes, regulators' planning standards and licensed professional judgement."
 
 // FitSummary writes the readable summary of a fitted model.
-func FitSummary(w io.Writer, f *model.File) error {
+func FitSummary(w io.Writer, f *model.File) error { return FitSummaryWith(w, f, nil) }
+
+// FitSummaryWith is FitSummary with the GEV check of the model's extreme
+// days (from a short simulation of the fitted model) after the diagnostics.
+func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) error {
 	e := &errWriter{w: w}
 	u := "°" + f.Data.Units
 	d := f.Data
@@ -120,6 +125,14 @@ func FitSummary(w io.Writer, f *model.File) error {
 		}
 		e.table([]string{"family", "log-lik", "shape params", "AIC", "shape", ""}, rows)
 		writeDiagnostics(e, f)
+		if len(checks) > 0 {
+			header, rows, notes := ExtremesTable(checks, f.Data.Units)
+			e.printf("\nExtreme days checked by extreme-value theory (the model simulated for %d)\n", checks[0].Year)
+			e.table(header, rows)
+			for _, n := range notes {
+				e.printf("  %s\n", n)
+			}
+		}
 	}
 	e.printf("\n%s\n", Caution)
 	return e.err
