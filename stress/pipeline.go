@@ -298,9 +298,10 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		bc := set.Config
 		bc.Paths = min(bc.Paths, bandPaths)
 		bc.Progress = nil
-		if res.Bands, err = bands(ctx, res.Refits, bc, set.Rows); err != nil {
+		if res.Bands, err = bands(ctx, res.Refits, bc, set.Rows, job.Design); err != nil {
 			return nil, err
 		}
+		defer func() { withDesignBands(res.Design, set.Rows, res.Bands, job.Design) }()
 	}
 	res.Set = set
 	if len(job.Design) > 0 {

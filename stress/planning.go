@@ -35,6 +35,9 @@ type DesignRow struct {
 	Snap, SnapSE           float64
 	Peak, PeakSE           float64
 	SnapEnergy, SnapEnerSE float64
+	// With parameter uncertainty (band mode), the 90 % bands of the design
+	// day and the design-day demand (NaN without).
+	ColdestBand, PeakBand Band
 }
 
 // ParseStandard reads a planning standard: "1-in-20" or "20" (years, > 1).
@@ -45,6 +48,28 @@ func ParseStandard(s string) (float64, error) {
 		return 0, fmt.Errorf("stress: standard %q: want 1-in-T with T a number of years above 1, e.g. 1-in-20", s)
 	}
 	return T, nil
+}
+
+// withDesignBands adds the parameter bands of the design day and the
+// design-day demand to the design rows.
+func withDesignBands(design []DesignRow, rows []sim.Row, bands []RowBands, standards []float64) {
+	for i := range design {
+		d := &design[i]
+		nan := Band{math.NaN(), math.NaN()}
+		d.ColdestBand, d.PeakBand = nan, nan
+		j := slices.Index(standards, d.T)
+		for k, r := range rows {
+			if r.Period != d.Period || k >= len(bands) || j < 0 || j >= len(bands[k].Design) {
+				continue
+			}
+			switch r.Index {
+			case sim.Coldest:
+				d.ColdestBand = bands[k].Design[j]
+			case sim.PeakDemand:
+				d.PeakBand = bands[k].Design[j]
+			}
+		}
+	}
 }
 
 // designRows lays out the design figures of every period at each standard.
@@ -72,7 +97,7 @@ func designRows(rows []sim.Row, standards []float64) []DesignRow {
 	var out []DesignRow
 	for _, p := range periods {
 		for _, T := range standards {
-			d := DesignRow{Period: p, T: T}
+			d := DesignRow{Period: p, T: T, ColdestBand: Band{math.NaN(), math.NaN()}, PeakBand: Band{math.NaN(), math.NaN()}}
 			d.Coldest, d.ColdestSE = level(find(sim.Coldest, p), T)
 			d.Snap, d.SnapSE = level(find(sim.ColdSnap, p), T)
 			d.Peak, d.PeakSE = level(find(sim.PeakDemand, p), T)

@@ -51,6 +51,9 @@ type RowBands struct {
 	Period                        string
 	Index                         sim.Index
 	Mean, VaR95, ES95, RL20, RL50 Band
+	// Design are the bands of the 1-in-T levels of the design standards
+	// (Job.Design), in order.
+	Design []Band
 }
 
 // Refits returns n models refitted to synthetic records drawn from m over
@@ -111,8 +114,15 @@ func Refits(ctx context.Context, s *calibrate.Series, m *model.File, n int, seed
 // bands simulates each refitted model with cfg (the same seed: common random
 // numbers, so the spread is the parameters', not Monte Carlo noise) and
 // returns, for every row of the baseline, the 90 % range of its tail numbers.
-func bands(ctx context.Context, models []*model.File, cfg sim.Config, base []sim.Row) ([]RowBands, error) {
-	vals := make([][][5]float64, len(base)) // [row][refit]{mean, VaR95, ES95, RL20, RL50}
+func bands(ctx context.Context, models []*model.File, cfg sim.Config, base []sim.Row, design []float64) ([]RowBands, error) {
+	stats := func(t sim.Tail) []float64 {
+		v := []float64{t.Mean, t.VaR95, t.ES95, t.ReturnLevel(20), t.ReturnLevel(50)}
+		for _, T := range design {
+			v = append(v, t.ReturnLevel(T))
+		}
+		return v
+	}
+	vals := make([][][]float64, len(base)) // [row][refit]{mean, VaR95, ES95, RL20, RL50, design…}
 	for _, m := range models {
 		res, err := sim.Run(ctx, m, cfg)
 		if err != nil {
@@ -124,7 +134,7 @@ func bands(ctx context.Context, models []*model.File, cfg sim.Config, base []sim
 		}
 		for k, r := range rows {
 			t := r.Tail
-			vals[k] = append(vals[k], [5]float64{t.Mean, t.VaR95, t.ES95, t.ReturnLevel(20), t.ReturnLevel(50)})
+			vals[k] = append(vals[k], stats(t))
 		}
 	}
 	// The basic (reverse-percentile) bootstrap interval, [2θ̂ − q₉₅, 2θ̂ − q₅]
@@ -136,9 +146,13 @@ func bands(ctx context.Context, models []*model.File, cfg sim.Config, base []sim
 	out := make([]RowBands, len(base))
 	for k, r := range base {
 		t := r.Tail
-		fitted := [5]float64{t.Mean, t.VaR95, t.ES95, t.ReturnLevel(20), t.ReturnLevel(50)}
-		b := RowBands{Period: r.Period, Index: r.Index}
-		for j, dst := range []*Band{&b.Mean, &b.VaR95, &b.ES95, &b.RL20, &b.RL50} {
+		fitted := stats(t)
+		b := RowBands{Period: r.Period, Index: r.Index, Design: make([]Band, len(design))}
+		dsts := []*Band{&b.Mean, &b.VaR95, &b.ES95, &b.RL20, &b.RL50}
+		for j := range design {
+			dsts = append(dsts, &b.Design[j])
+		}
+		for j, dst := range dsts {
 			col := make([]float64, len(vals[k]))
 			for i, v := range vals[k] {
 				col[i] = v[j]

@@ -23,10 +23,16 @@ func DesignTable(rows []stress.DesignRow, snapDays int, units, demandUnit string
 		}
 		return numfmt.ValueSE(v, se)
 	}
+	band := func(b stress.Band, d int) string {
+		if math.IsNaN(b.Lo) {
+			return ""
+		}
+		return " [" + numfmt.Fixed(b.Lo, d) + ", " + numfmt.Fixed(b.Hi, d) + "]"
+	}
 	for _, r := range rows {
-		line := []string{"1-in-" + periodKey(r.T), r.Period, cell(r.Coldest, r.ColdestSE), cell(r.Snap, r.SnapSE)}
+		line := []string{"1-in-" + periodKey(r.T), r.Period, cell(r.Coldest, r.ColdestSE) + band(r.ColdestBand, 1), cell(r.Snap, r.SnapSE)}
 		if withDemand {
-			line = append(line, cell(r.Peak, r.PeakSE), cell(r.SnapEnergy, r.SnapEnerSE))
+			line = append(line, cell(r.Peak, r.PeakSE)+band(r.PeakBand, 0), cell(r.SnapEnergy, r.SnapEnerSE))
 		}
 		cells = append(cells, line)
 	}
@@ -86,16 +92,17 @@ func demandUnitOf(r *SimReport) string {
 }
 
 type jsonDesign struct {
-	Standard   string   `json:"standard"`
-	Period     string   `json:"period"`
-	DesignDay  *float64 `json:"design_day"`
-	DesignSE   *float64 `json:"design_day_se"`
-	Snap       *float64 `json:"cold_snap"`
-	SnapSE     *float64 `json:"cold_snap_se"`
-	Peak       *float64 `json:"design_day_demand,omitempty"`
-	PeakSE     *float64 `json:"design_day_demand_se,omitempty"`
-	SnapEnergy *float64 `json:"snap_energy,omitempty"`
-	SnapEnerSE *float64 `json:"snap_energy_se,omitempty"`
+	Band       map[string]jsonBand `json:"band,omitempty"` // design_day, design_day_demand: 90 % parameter bands
+	Standard   string              `json:"standard"`
+	Period     string              `json:"period"`
+	DesignDay  *float64            `json:"design_day"`
+	DesignSE   *float64            `json:"design_day_se"`
+	Snap       *float64            `json:"cold_snap"`
+	SnapSE     *float64            `json:"cold_snap_se"`
+	Peak       *float64            `json:"design_day_demand,omitempty"`
+	PeakSE     *float64            `json:"design_day_demand_se,omitempty"`
+	SnapEnergy *float64            `json:"snap_energy,omitempty"`
+	SnapEnerSE *float64            `json:"snap_energy_se,omitempty"`
 }
 
 type jsonCapacity struct {
@@ -110,7 +117,14 @@ type jsonCapacity struct {
 func toJSONDesign(rows []stress.DesignRow) []jsonDesign {
 	var out []jsonDesign
 	for _, r := range rows {
-		out = append(out, jsonDesign{"1-in-" + periodKey(r.T), r.Period, finitePtr(r.Coldest), finitePtr(r.ColdestSE),
+		var b map[string]jsonBand
+		if !math.IsNaN(r.ColdestBand.Lo) {
+			b = map[string]jsonBand{"design_day": {r.ColdestBand.Lo, r.ColdestBand.Hi}}
+			if !math.IsNaN(r.PeakBand.Lo) {
+				b["design_day_demand"] = jsonBand{r.PeakBand.Lo, r.PeakBand.Hi}
+			}
+		}
+		out = append(out, jsonDesign{b, "1-in-" + periodKey(r.T), r.Period, finitePtr(r.Coldest), finitePtr(r.ColdestSE),
 			finitePtr(r.Snap), finitePtr(r.SnapSE), finitePtr(r.Peak), finitePtr(r.PeakSE), finitePtr(r.SnapEnergy),
 			finitePtr(r.SnapEnerSE)})
 	}
