@@ -143,14 +143,8 @@ func runFitCmd(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return err
 	}
 	m := out.Model
-	if o.out != "" {
-		b, err := m.MarshalIndent()
-		if err != nil {
-			return err
-		}
-		if err := plan.addBytes(o.out, b); err != nil {
-			return err
-		}
+	if err := plan.addModel(o.out, m.MarshalIndent); err != nil {
+		return err
 	}
 	if o.report != "" {
 		meta := report.Meta{

@@ -150,14 +150,8 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 		return err
 	}
 	m := out.Demand
-	if o.out != "" {
-		b, err := m.MarshalIndent()
-		if err != nil {
-			return err
-		}
-		if err := plan.addBytes(o.out, b); err != nil {
-			return err
-		}
+	if err := plan.addModel(o.out, m.MarshalIndent); err != nil {
+		return err
 	}
 	if err := plan.commit(ctx); err != nil {
 		return err

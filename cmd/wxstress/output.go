@@ -143,6 +143,18 @@ func (c *ctxWriter) Write(b []byte) (int, error) {
 	return c.w.Write(b)
 }
 
+// addModel stages a model file's JSON, when path is set.
+func (p *outputPlan) addModel(path string, marshal func() ([]byte, error)) error {
+	if path == "" {
+		return nil
+	}
+	b, err := marshal()
+	if err != nil {
+		return err
+	}
+	return p.addBytes(path, b)
+}
+
 func (p *outputPlan) addBytes(path string, b []byte) error {
 	return p.add(path, func(w io.Writer) error { _, err := w.Write(b); return err })
 }
