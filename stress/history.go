@@ -66,6 +66,10 @@ type HistoricalSeasons struct {
 	ShiftPerYear float64
 	Seasons      map[string][]Season // by period name
 	Rows         []HistoryRow
+	// ClimateRun is set when the model side comes from a separate
+	// climate-start run (same model, paths and seed) because the run itself
+	// started from the state at the data end.
+	ClimateRun bool
 }
 
 // Historical takes every complete period of set's configuration in the

@@ -126,3 +126,56 @@ func TestHistoricalSeasonsRecomputed(t *testing.T) {
 		t.Error("no GEV check of the heating season's coldest day")
 	}
 }
+
+// TestHistoryAgainstClimateRun checks that a conditional run (the heating
+// season under way, its November and December observed) compares the record's seasons with
+// a climate-start run of the same model, paths and seed, not with itself:
+// the record's seasons are draws from the climate, and a run conditioned on
+// the data end is narrower (the demo's once flagged its heating HDD spread
+// "model too narrow" for that reason alone).
+func TestHistoryAgainstClimateRun(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the 71-year demo record")
+	}
+	t.Parallel()
+	series, err := calibrate.ReadCSV(bytes.NewReader(demo.Station()), demo.StationFile, calibrate.ReadOptions{Units: calibrate.Celsius})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := calibrate.Fit(series, &calibrate.Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(start string) *Result {
+		res, err := Run(context.Background(), &Job{Model: m.Model, Temps: series, Observed: start == sim.StartConditional,
+			Config: sim.Config{Paths: 3000, Seed: 5, Year: 2026, Start: start, Periods: []string{"heating", "year"},
+				Bases: sim.BasesFor(model.Celsius)},
+			History: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+	climate, cond := run(sim.StartClimate), run(sim.StartConditional)
+	if climate.History.ClimateRun || !cond.History.ClimateRun {
+		t.Errorf("ClimateRun: climate start %v, conditional start %v", climate.History.ClimateRun, cond.History.ClimateRun)
+	}
+	for i, r := range cond.History.Rows {
+		c := climate.History.Rows[i]
+		if r.ModelSD != c.ModelSD || r.SDBand != c.SDBand {
+			t.Errorf("%s %s: the conditional run's comparison uses sd %v band %v, the climate run's %v %v",
+				r.Index.Info().Name, r.Period, r.ModelSD, r.SDBand, c.ModelSD, c.SDBand)
+		}
+	}
+	// The run itself is narrower for the season under way (two of its five
+	// months are known): that is why it must not be the comparison.
+	for _, row := range cond.Set.Rows {
+		if row.Index == sim.HDD && row.Period == "heating" {
+			for _, c := range climate.Set.Rows {
+				if c.Index == sim.HDD && c.Period == "heating" && !(row.Tail.SD < c.Tail.SD) {
+					t.Errorf("conditional heating HDD sd %.1f not below the climate run's %.1f", row.Tail.SD, c.Tail.SD)
+				}
+			}
+		}
+	}
+}

@@ -309,10 +309,15 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	res.Capacities = solveCapacities(set.Base, job.CapacityTargets)
 	if job.History && job.Temps != nil {
-		if res.History, err = Historical(job.Temps, res.Model, set); err != nil {
+		ref, err := climateReference(ctx, res.Model, mix, set)
+		if err != nil {
 			return nil, err
 		}
-		res.Extremes = extremeChecks(res.History, set)
+		if res.History, err = Historical(job.Temps, res.Model, ref); err != nil {
+			return nil, err
+		}
+		res.History.ClimateRun = ref != set
+		res.Extremes = extremeChecks(res.History, ref)
 	}
 	if job.Hedge != nil {
 		if res.Hedge, err = evaluateHedge(job, set, res.History); err != nil {
@@ -389,4 +394,19 @@ func (job *Job) holidays(res *Result, cfg *sim.Config) error {
 	}
 	cfg.Holidays = calendar.HolidaysIn(h.Dates, h.Rules, first, last)
 	return nil
+}
+
+// climateReference returns the run the record's own seasons are compared
+// with. They are draws from the climate, so a conditional run (a season
+// under way, or the coming season from the state at the data end) would
+// compare a narrower, shifted distribution with theirs: for those, it
+// simulates the same model, paths and seed from a climate start, without
+// observed days, demand or scenarios. Otherwise it returns set itself.
+func climateReference(ctx context.Context, m *model.File, mix []*model.File, set *Set) (*Set, error) {
+	c := set.Config
+	if c.Start != sim.StartConditional && c.Observed == nil {
+		return set, nil
+	}
+	return simulate(ctx, m, mix, sim.Config{Paths: c.Paths, Seed: c.Seed, Workers: c.Workers, Year: c.Year,
+		Start: sim.StartClimate, Periods: c.Periods, Bases: c.Bases, SnapDays: c.SnapDays, ReturnPeriods: c.ReturnPeriods}, nil, nil, 0)
 }

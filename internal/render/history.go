@@ -26,6 +26,9 @@ func historyShown(r stress.HistoryRow) bool {
 func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, header []string, rows [][]string, notes []string) {
 	title = fmt.Sprintf("The record's own seasons beside the model (each moved along the fitted trend to %d: %+.3f °%s per year)",
 		h.TargetYear, h.ShiftPerYear, units)
+	if h.ClimateRun {
+		title += "; the model side from a climate-start run, as the record's seasons are draws from the climate"
+	}
 	header = []string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
 		"model mean", "model sd", "sd band", "record sd"}
 	for _, r := range h.Rows {
@@ -82,6 +85,7 @@ func oneIn(p float64) string {
 type jsonHistory struct {
 	TargetYear   int                     `json:"target_year"`
 	ShiftPerYear float64                 `json:"trend_shift_per_year"`
+	ClimateRun   bool                    `json:"model_from_climate_start_run"`
 	Rows         []jsonHistoryRow        `json:"rows"`
 	Seasons      map[string][]jsonSeason `json:"seasons"`
 }
@@ -119,7 +123,7 @@ func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
 	if h == nil {
 		return nil
 	}
-	j := &jsonHistory{TargetYear: h.TargetYear, ShiftPerYear: h.ShiftPerYear, Seasons: map[string][]jsonSeason{}}
+	j := &jsonHistory{TargetYear: h.TargetYear, ShiftPerYear: h.ShiftPerYear, ClimateRun: h.ClimateRun, Seasons: map[string][]jsonSeason{}}
 	for _, r := range h.Rows {
 		row := jsonHistoryRow{Index: r.Index.Info().Key, Period: r.Period, Seasons: len(r.Values), Mean: r.Mean, SD: r.SD,
 			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, SDBand: r.SDBand, Verdict: r.SDVerdict}
