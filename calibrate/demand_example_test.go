@@ -34,7 +34,7 @@ func ExampleFitDemand() {
 	fmt.Printf("CV(RMSE) %.1f %%, %d days left out for lack of a temperature\n", m.Fit.CVRMSE, m.Data.MissingTemperature)
 	fmt.Printf("a Monday at -5 °C: %.0f %s\n", m.Expected(-5, time.Monday, false), m.Unit)
 	// Output:
-	// form 5p, heating below 15.6 °C, cooling above 23.0 °C
+	// form heating-and-cooling-band, heating below 15.6 °C, cooling above 23.0 °C
 	// CV(RMSE) 3.2 %, 2 days left out for lack of a temperature
 	// a Monday at -5 °C: 100285 GJ/day
 }

@@ -119,8 +119,8 @@ func TestDemandFixedBalancePointsMatchR(t *testing.T) {
 		form     string
 		tbH, tbC float64
 	}{
-		"5p_15.5_22":      {model.Form5P, 15.5, 22},
-		"3p-heating_15.5": {model.Form3PHeating, 15.5, 0},
+		"5p_15.5_22":        {model.FormHeatingCoolingBand, 15.5, 22},
+		"heating-only_15.5": {model.FormHeatingOnly, 15.5, 0},
 	} {
 		want := g.Fixed[key]
 		fit, err := f.olsAt(c.form, c.tbH, c.tbC)
@@ -189,10 +189,10 @@ func TestDemandGridSearchMatchesR(t *testing.T) {
 		var rss float64
 		ok := true
 		switch p.Form {
-		case model.Form3PHeating:
+		case model.FormHeatingOnly:
 			s := f.heat[index(p.TbH)]
 			rss = f.yy - s.xy*s.xy/s.xx
-		case model.Form3PCooling:
+		case model.FormCoolingOnly:
 			s := f.cool[index(p.TbC)]
 			rss = f.yy - s.xy*s.xy/s.xx
 		default:

@@ -114,8 +114,8 @@ func TestDemandRecoversBalancePoints(t *testing.T) {
 	}{
 		// Balance points off the 0.1° grid's round numbers, slopes of a
 		// few hundred per degree against noise of sd 120 (3 years of days).
-		{"heating only", model.Form3PHeating, 14.3, 0, 250, 0},
-		{"heating and cooling", model.Form5P, 12.7, 20.4, 250, 180},
+		{"heating only", model.FormHeatingOnly, 14.3, 0, 250, 0},
+		{"heating and cooling", model.FormHeatingCoolingBand, 12.7, 20.4, 250, 180},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -173,12 +173,12 @@ func TestDemandWithoutTemperatureDependence(t *testing.T) {
 		fixed  string // the form fixed by the user
 		warned string // in the fixed fit's warnings
 	}{
-		{"flat", func(float64) float64 { return 4000 }, "no dependence on temperature", model.Form3PHeating,
+		{"flat", func(float64) float64 { return 4000 }, "no dependence on temperature", model.FormHeatingOnly,
 			"does not beat the constant model"},
 		// Demand highest at mild temperatures: the opposite of a heating
 		// or cooling load; every form's slopes come out negative.
 		{"inverted", func(temp float64) float64 { return 6000 - 150*math.Abs(temp-12) }, "no change-point form fits",
-			model.Form4P, "not positive"},
+			model.FormHeatingCooling, "not positive"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -211,7 +211,7 @@ func TestDemandSettingsValidate(t *testing.T) {
 		}
 	}
 	err := (&DemandSettings{Form: "6p"}).Validate()
-	if err == nil || !strings.Contains(err.Error(), "auto, 3p-heating, 3p-cooling, 4p, 5p") || !strings.HasPrefix(err.Error(), "calibrate: ") {
+	if err == nil || !strings.Contains(err.Error(), "auto, heating-only, cooling-only, heating-and-cooling, heating-and-cooling-band") || !strings.HasPrefix(err.Error(), "calibrate: ") {
 		t.Errorf("form 6p: %v, want an error listing the valid choices", err)
 	}
 }
@@ -453,8 +453,8 @@ func TestDemandRecoversDemoTruth(t *testing.T) {
 		t.Fatal(err)
 	}
 	m := res.Model
-	if m.Form != model.Form5P {
-		t.Fatalf("form %s, the truth is 5p", m.Form)
+	if m.Form != model.FormHeatingCoolingBand {
+		t.Fatalf("form %s, the truth is heating-and-cooling-band", m.Form)
 	}
 	check := func(what string, got, want, tol float64) {
 		t.Helper()

@@ -42,8 +42,8 @@
 //	u(t) = φ·u(t−1) + σ·z(t)
 //
 // with T the day's mean temperature, w(Monday) = 0, holiday 0 or 1, and the
-// change-point forms of ASHRAE Guideline 14 (from memory): 3p-heating (no
-// cooling term), 3p-cooling (no heating term), 4p (TbH = TbC) and 5p
+// change-point forms of ASHRAE Guideline 14 (from memory): heating-only (no
+// cooling term), cooling-only (no heating term), heating-and-cooling (TbH = TbC) and heating-and-cooling-band
 // (TbH ≤ TbC). JoinDemand pairs each day's load with its temperature;
 // FitDemand searches the balance points on a grid of BalanceStep between the
 // 5th and 95th percentiles of T, fits the other coefficients by least squares

@@ -133,13 +133,13 @@ type DemandResult struct {
 // data's units (balance points TbH, TbC in the same units, slopes βH, βC in
 // demand unit per degree), w(Monday) = 0, and holiday 1 on a holiday. The
 // change-point forms are the inverse models of ASHRAE Guideline 14:
-// 3p-heating (no cooling term), 3p-cooling (no heating term), 4p (one
-// balance point, TbH = TbC, a slope on either side) and 5p (TbH ≤ TbC, flat
+// heating-only (no cooling term), cooling-only (no heating term), heating-and-cooling (one
+// balance point, TbH = TbC, a slope on either side) and heating-and-cooling-band (TbH ≤ TbC, flat
 // between). The model's tool_version is left for the caller to set.
 //
 // For every form the balance points are searched on a grid of BalanceStep
 // between the 5th and 95th percentiles of the temperatures (TbH ≤ TbC for
-// 5p), with the other coefficients by least squares at each point, keeping
+// heating-and-cooling-band), with the other coefficients by least squares at each point, keeping
 // the point of least residual sum of squares; forms are compared by BIC,
 // counting each balance point as a parameter. With Form "auto" the form
 // with the lowest BIC among those whose slopes are positive is chosen, and

@@ -24,8 +24,9 @@ const (
 	MonthlyNMBEMax   = 5.0
 	HourlyCVRMSEMax  = 30.0
 	HourlyNMBEMax    = 10.0
-	// GuidelineEdition names the source of the definitions and levels.
-	GuidelineEdition = "ASHRAE Guideline 14-2014 (from memory): CV(RMSE) = 100·√(Σ(y−ŷ)²/(n−p))/ȳ, " +
+	// GuidelineEdition names the source of the definitions and levels
+	// (the levels are quoted from memory; the README's sources say so).
+	GuidelineEdition = "ASHRAE Guideline 14-2014: CV(RMSE) = 100·√(Σ(y−ŷ)²/(n−p))/ȳ, " +
 		"NMBE = 100·Σ(y−ŷ)/((n−p)·ȳ); calibration levels CV(RMSE) ≤ 15 %, |NMBE| ≤ 5 % for monthly data and " +
 		"CV(RMSE) ≤ 30 %, |NMBE| ≤ 10 % for hourly data; daily values are held to the hourly levels, " +
 		"monthly sums of the daily fit to the monthly levels"

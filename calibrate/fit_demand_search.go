@@ -217,7 +217,7 @@ type gridBest struct {
 	tbH, tbC float64
 	bH, bC   float64 // slopes
 	rss      float64
-	profH    []float64 // minimum RSS at each heating grid value (5p: over the cooling one)
+	profH    []float64 // minimum RSS at each heating grid value (heating-and-cooling-band: over the cooling one)
 	profC    []float64
 }
 
@@ -258,9 +258,9 @@ func (f *demandFitter) search(form string) gridBest {
 		}
 	}
 	switch form {
-	case model.Form3PHeating, model.Form3PCooling:
+	case model.FormHeatingOnly, model.FormCoolingOnly:
 		sides := f.heat
-		if form == model.Form3PCooling {
+		if form == model.FormCoolingOnly {
 			sides = f.cool
 		}
 		prof := profile()
@@ -270,18 +270,18 @@ func (f *demandFitter) search(form string) gridBest {
 			}
 			beta := s.xy / s.xx
 			prof[k] = f.yy - beta*s.xy
-			if form == model.Form3PHeating {
+			if form == model.FormHeatingOnly {
 				take(prof[k], k, -1, beta, 0)
 			} else {
 				take(prof[k], -1, k, 0, beta)
 			}
 		}
-		if form == model.Form3PHeating {
+		if form == model.FormHeatingOnly {
 			b.profH = prof
 		} else {
 			b.profC = prof
 		}
-	case model.Form4P:
+	case model.FormHeatingCooling:
 		prof := profile()
 		for k := range g {
 			if rss, bH, bC, ok := f.pair(k, k); ok {
@@ -290,7 +290,7 @@ func (f *demandFitter) search(form string) gridBest {
 			}
 		}
 		b.profH = prof
-	case model.Form5P:
+	case model.FormHeatingCoolingBand:
 		ph, pc := profile(), profile()
 		for i := range g {
 			for j := i; j < g; j++ {
@@ -324,13 +324,13 @@ func (b gridBest) score(form string, f *demandFitter) model.FormScore {
 	s.BIC = demandBIC(f.n, b.rss, s.Parameters)
 	var bad []string
 	switch form {
-	case model.Form3PHeating:
+	case model.FormHeatingOnly:
 		s.BalancePoints, s.Slopes = []float64{b.tbH}, []float64{b.bH}
-	case model.Form3PCooling:
+	case model.FormCoolingOnly:
 		s.BalancePoints, s.Slopes = []float64{b.tbC}, []float64{b.bC}
-	case model.Form4P:
+	case model.FormHeatingCooling:
 		s.BalancePoints, s.Slopes = []float64{b.tbH}, []float64{b.bH, b.bC}
-	case model.Form5P:
+	case model.FormHeatingCoolingBand:
 		s.BalancePoints, s.Slopes = []float64{b.tbH, b.tbC}, []float64{b.bH, b.bC}
 	}
 	if model.DemandForm(form).HasHeating() && !(b.bH > 0) {
@@ -356,7 +356,7 @@ func (f *demandFitter) profiles(form string, b gridBest) []model.DemandProfile {
 			continue
 		}
 		side := p.side
-		if form == model.Form4P {
+		if form == model.FormHeatingCooling {
 			side = "both"
 		}
 		top := 0.0
@@ -390,7 +390,7 @@ func (f *demandFitter) design(form string, tbH, tbC float64) *mat.Dense {
 			c++
 		}
 		if model.DemandForm(form).HasCooling() {
-			if form == model.Form4P {
+			if form == model.FormHeatingCooling {
 				tbC = tbH
 			}
 			row[c] = max(t-tbC, 0)
@@ -424,7 +424,7 @@ func (f *demandFitter) fill(m *model.Demand, form string, fit olsFit, tbH, tbC f
 		c++
 	}
 	if model.DemandForm(form).HasCooling() {
-		if form == model.Form4P {
+		if form == model.FormHeatingCooling {
 			tbC = tbH
 		}
 		m.Cooling = model.ChangePoint{Present: true, BalancePoint: tbC, Slope: fit.Beta[c], SlopeSE: fit.SE[c]}

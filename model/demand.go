@@ -31,7 +31,7 @@ const (
 //
 // β0 is the load of a Monday that is not a holiday with T between the
 // balance points; w(Monday) = 0. Heating terms are absent from the
-// 3p-cooling form and cooling terms from the 3p-heating form; in the 4p
+// cooling-only form and cooling terms from the heating-only form; in the heating-and-cooling
 // form TbH = TbC.
 //
 // Values of Demand are plain data, safe to share between goroutines for
@@ -263,7 +263,7 @@ type DemandData struct {
 // balance-point grid. Form "constant" is the model without temperature.
 type FormScore struct {
 	Form          string    `json:"form"`
-	BalancePoints []float64 `json:"balance_points"` // TbH and/or TbC; one value for 4p
+	BalancePoints []float64 `json:"balance_points"` // TbH and/or TbC; one value for heating-and-cooling
 	Slopes        []float64 `json:"slopes"`         // βH and/or βC
 	RSS           float64   `json:"rss"`
 	Parameters    int       `json:"parameters"` // coefficients + balance points
@@ -276,9 +276,9 @@ type FormScore struct {
 }
 
 // DemandProfile is the grid search's minimum residual sum of squares at each
-// balance point from Start in steps of Step: for a 3p form over its balance
-// point (Side "heating" or "cooling"), for the 4p form over its one balance
-// point (Side "both"), for the 5p form over one balance point, minimised over
+// balance point from Start in steps of Step: for a one-sided form over its balance
+// point (Side "heating" or "cooling"), for the heating-and-cooling form over its one balance
+// point (Side "both"), for the heating-and-cooling-band form over one balance point, minimised over
 // the other (one profile with Side "heating", one with "cooling").
 type DemandProfile struct {
 	Form  string    `json:"form"`
@@ -401,7 +401,7 @@ func DecodeDemand(b []byte, name string) (*Demand, error) {
 
 // Validate checks that the parameters describe a model the simulator can
 // run: a known form with the sides it implies, finite coefficients,
-// TbH ≤ TbC (equal for 4p), |φ| < 1 and σ > 0. name is used in messages.
+// TbH ≤ TbC (equal for heating-and-cooling), |φ| < 1 and σ > 0. name is used in messages.
 func (d *Demand) Validate(name string) error {
 	bad := func(key, format string, a ...any) error {
 		return &KeyError{name, key, fmt.Sprintf(format, a...)}
@@ -448,14 +448,14 @@ func (d *Demand) Validate(name string) error {
 		}
 	}
 	switch d.Form {
-	case Form4P:
+	case FormHeatingCooling:
 		if d.Heating.BalancePoint != d.Cooling.BalancePoint {
-			return bad("cooling.balance_point", "%v differs from heating.balance_point %v: the 4p form has one balance point",
+			return bad("cooling.balance_point", "%v differs from heating.balance_point %v: the heating-and-cooling form has one balance point",
 				d.Cooling.BalancePoint, d.Heating.BalancePoint)
 		}
-	case Form5P:
+	case FormHeatingCoolingBand:
 		if d.Heating.BalancePoint > d.Cooling.BalancePoint {
-			return bad("cooling.balance_point", "%v is below heating.balance_point %v: the 5p form needs TbH ≤ TbC",
+			return bad("cooling.balance_point", "%v is below heating.balance_point %v: the heating-and-cooling-band form needs TbH ≤ TbC",
 				d.Cooling.BalancePoint, d.Heating.BalancePoint)
 		}
 	}

@@ -26,7 +26,7 @@ func validDemand(form string) *Demand {
 	}
 	if DemandForm(form).HasCooling() {
 		d.Cooling = ChangePoint{Present: true, BalancePoint: 22, Slope: 450, SlopeSE: 60}
-		if form == Form4P {
+		if form == FormHeatingCooling {
 			d.Cooling.BalancePoint = 15.5
 		}
 	}
@@ -70,7 +70,7 @@ func TestDemandFileKeys(t *testing.T) {
 		form             string
 		heating, cooling bool
 	}{
-		{Form3PHeating, true, false}, {Form3PCooling, false, true}, {Form4P, true, true}, {Form5P, true, true},
+		{FormHeatingOnly, true, false}, {FormCoolingOnly, false, true}, {FormHeatingCooling, true, true}, {FormHeatingCoolingBand, true, true},
 	} {
 		b, err := validDemand(c.form).MarshalIndent()
 		if err != nil {
@@ -105,8 +105,8 @@ func TestDemandFileKeys(t *testing.T) {
 			t.Errorf("%s: weekday = %v, want 7 values", c.form, raw["weekday"])
 		}
 	}
-	// 4p has one balance point, written on both sides.
-	d := validDemand(Form4P)
+	// heating-and-cooling has one balance point, written on both sides.
+	d := validDemand(FormHeatingCooling)
 	if d.Heating.BalancePoint != d.Cooling.BalancePoint {
 		t.Fatal("test model is wrong")
 	}
@@ -114,7 +114,7 @@ func TestDemandFileKeys(t *testing.T) {
 
 func TestDemandExpected(t *testing.T) {
 	t.Parallel()
-	d := validDemand(Form5P)
+	d := validDemand(FormHeatingCoolingBand)
 	// D = β0 + w(weekday) + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), by hand.
 	cases := []struct {
 		temp float64
@@ -134,9 +134,9 @@ func TestDemandExpected(t *testing.T) {
 			t.Errorf("Expected(%v, %v, %v) = %v, want %v", c.temp, c.wd, c.hol, got, c.want)
 		}
 	}
-	h := validDemand(Form3PHeating)
+	h := validDemand(FormHeatingOnly)
 	if got := h.Expected(35, time.Monday, false); got != 38000 {
-		t.Errorf("3p-heating on a hot day: %v, want the base 38000", got)
+		t.Errorf("heating-only on a hot day: %v, want the base 38000", got)
 	}
 	defer func() {
 		if r := recover(); r == nil || !strings.HasPrefix(r.(string), "model: ") {
@@ -148,7 +148,7 @@ func TestDemandExpected(t *testing.T) {
 
 // Not parallel: testing.AllocsPerRun refuses to run beside parallel tests.
 func TestDemandExpectedDoesNotAllocate(t *testing.T) {
-	d := validDemand(Form5P)
+	d := validDemand(FormHeatingCoolingBand)
 	if n := testing.AllocsPerRun(100, func() { d.Expected(3.5, time.Wednesday, false) }); n != 0 {
 		t.Errorf("Expected allocates %v times per call", n)
 	}
@@ -156,7 +156,7 @@ func TestDemandExpectedDoesNotAllocate(t *testing.T) {
 
 func TestDemandCheckUnits(t *testing.T) {
 	t.Parallel()
-	d := validDemand(Form5P)
+	d := validDemand(FormHeatingCoolingBand)
 	if err := d.CheckUnits("C"); err != nil {
 		t.Error(err)
 	}
@@ -167,7 +167,7 @@ func TestDemandCheckUnits(t *testing.T) {
 
 func TestDemandValidateNamesTheKey(t *testing.T) {
 	t.Parallel()
-	good, err := validDemand(Form5P).MarshalIndent()
+	good, err := validDemand(FormHeatingCoolingBand).MarshalIndent()
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -188,9 +188,9 @@ func TestDemandValidateNamesTheKey(t *testing.T) {
 		{func(m map[string]any) { delete(m["fit"].(map[string]any), "cv_rmse") }, "fit.cv_rmse"},
 		{func(m map[string]any) { delete(m["heating"].(map[string]any), "slope") }, "heating.slope"},
 		{func(m map[string]any) { m["heating"].(map[string]any)["slope"] = nil }, "heating.slope"},
-		{func(m map[string]any) { m["form"] = Form3PHeating }, "cooling.balance_point"},
+		{func(m map[string]any) { m["form"] = FormHeatingOnly }, "cooling.balance_point"},
 		{func(m map[string]any) { m["heating"].(map[string]any)["balance_point"] = 25.0 }, "cooling.balance_point"},
-		{func(m map[string]any) { m["form"] = Form4P }, "cooling.balance_point"},
+		{func(m map[string]any) { m["form"] = FormHeatingCooling }, "cooling.balance_point"},
 		{func(m map[string]any) { m["weekday"] = []any{0, 1, 2} }, "weekday"},
 	}
 	for _, c := range cases {
@@ -233,7 +233,7 @@ func TestDemandWriteIsAtomic(t *testing.T) {
 	if err := os.WriteFile(p, []byte("old"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	d := validDemand(Form5P)
+	d := validDemand(FormHeatingCoolingBand)
 	d.Intercept = math.NaN() // JSON cannot hold it: encoding fails
 	if err := d.Write(p); err == nil {
 		t.Fatal("NaN intercept written")

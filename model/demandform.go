@@ -2,17 +2,18 @@ package model
 
 // DemandForm is a change-point form of the demand model (the inverse models
 // of ASHRAE Guideline 14-2014, section 5.3.3.4 and annex D; from memory),
-// named by its parameter count. The value is the name model files store.
+// named for the sides on which demand responds to temperature. The value is
+// the name model files store.
 type DemandForm string
 
 // Change-point forms of the demand model. The constants are untyped so that
 // they compare with the string fields of the model file (Demand.Form,
 // FormScore.Form) as well as with a DemandForm.
 const (
-	Form3PHeating = "3p-heating" // β0 + βH·max(TbH − T, 0)
-	Form3PCooling = "3p-cooling" // β0 + βC·max(T − TbC, 0)
-	Form4P        = "4p"         // β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)
-	Form5P        = "5p"         // β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC
+	FormHeatingOnly        = "heating-only"             // β0 + βH·max(TbH − T, 0)
+	FormCoolingOnly        = "cooling-only"             // β0 + βC·max(T − TbC, 0)
+	FormHeatingCooling     = "heating-and-cooling"      // β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)
+	FormHeatingCoolingBand = "heating-and-cooling-band" // β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC
 )
 
 // demandFormInfo is what a form is.
@@ -25,13 +26,13 @@ type demandFormInfo struct {
 
 // demandForms holds every form, in the order reports show them.
 var demandForms = [...]demandFormInfo{
-	{Form3PHeating, true, false, 1, "β0 + βH·max(TbH − T, 0)",
+	{FormHeatingOnly, true, false, 1, "β0 + βH·max(TbH − T, 0)",
 		"demand rises below one balance point (heating only)"},
-	{Form3PCooling, false, true, 1, "β0 + βC·max(T − TbC, 0)",
+	{FormCoolingOnly, false, true, 1, "β0 + βC·max(T − TbC, 0)",
 		"demand rises above one balance point (cooling only)"},
-	{Form4P, true, true, 1, "β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)",
+	{FormHeatingCooling, true, true, 1, "β0 + βH·max(Tb − T, 0) + βC·max(T − Tb, 0)",
 		"demand rises on either side of one balance point"},
-	{Form5P, true, true, 2, "β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC",
+	{FormHeatingCoolingBand, true, true, 2, "β0 + βH·max(TbH − T, 0) + βC·max(T − TbC, 0), TbH ≤ TbC",
 		"demand rises below a heating and above a cooling balance point, flat between them"},
 }
 
@@ -95,13 +96,13 @@ func (f DemandForm) Slopes() int {
 	return n
 }
 
-// BalancePoints returns the number of balance points: 2 for the 5p form
-// (TbH and TbC), else 1 (the 4p form's heating and cooling sides share one).
+// BalancePoints returns the number of balance points: 2 for the
+// heating-and-cooling-band form (TbH and TbC), else 1 (the
+// heating-and-cooling form's two sides share one).
 func (f DemandForm) BalancePoints() int { return f.info().balancePoints }
 
 // Params returns the number of parameters the form adds to the constant
-// model β0 + w(weekday) + βhol·holiday: its slopes and balance points (the
-// "p" of 3p, 4p and 5p counts β0 too).
+// model β0 + w(weekday) + βhol·holiday: its slopes and balance points.
 func (f DemandForm) Params() int { return f.Slopes() + f.BalancePoints() }
 
 // Formula returns the temperature part of the form, e.g.

@@ -2,22 +2,19 @@ package model
 
 import (
 	"slices"
-	"strconv"
 	"testing"
 )
 
-// The change-point forms are named by their parameter count (ASHRAE
-// Guideline 14-2014, annex D; from memory): β0 plus slopes plus balance
-// points, so 3p = β0 + one slope + one balance point, 4p = β0 + two slopes
-// + one shared balance point, 5p = β0 + two slopes + two balance points.
+// The change-point forms of ASHRAE Guideline 14-2014, annex D (from memory)
+// count β0 plus slopes plus balance points: three parameters for a one-sided
+// form (one slope, one balance point), four for heating-and-cooling (two
+// slopes, one shared balance point), five for heating-and-cooling-band (two
+// slopes, two balance points).
 func TestDemandFormParameterCount(t *testing.T) {
 	t.Parallel()
+	want := map[DemandForm]int{FormHeatingOnly: 3, FormCoolingOnly: 3, FormHeatingCooling: 4, FormHeatingCoolingBand: 5}
 	for _, f := range AllDemandForms() {
-		n, err := strconv.Atoi(string(f)[:1])
-		if err != nil {
-			t.Fatalf("form %q is not named by its parameter count", f)
-		}
-		if got := 1 + f.Params(); got != n {
+		if got, n := 1+f.Params(), want[f]; got != n {
 			t.Errorf("%s: 1 + Params() = %d", f, got)
 		}
 		if f.Formula() == "" || f.Description() == "" || !f.Valid() {
@@ -29,13 +26,13 @@ func TestDemandFormParameterCount(t *testing.T) {
 		heating, cooling      bool
 		slopes, balancePoints int
 	}{
-		{Form3PHeating, true, false, 1, 1}, {Form3PCooling, false, true, 1, 1}, {Form4P, true, true, 2, 1}, {Form5P, true, true, 2, 2},
+		{FormHeatingOnly, true, false, 1, 1}, {FormCoolingOnly, false, true, 1, 1}, {FormHeatingCooling, true, true, 2, 1}, {FormHeatingCoolingBand, true, true, 2, 2},
 	} {
 		if c.f.HasHeating() != c.heating || c.f.HasCooling() != c.cooling || c.f.Slopes() != c.slopes || c.f.BalancePoints() != c.balancePoints {
 			t.Errorf("%s: heating %v, cooling %v, %d slopes, %d balance points", c.f, c.f.HasHeating(), c.f.HasCooling(), c.f.Slopes(), c.f.BalancePoints())
 		}
 	}
-	if !slices.Equal(DemandFormNames(), []string{"3p-heating", "3p-cooling", "4p", "5p"}) {
+	if !slices.Equal(DemandFormNames(), []string{"heating-only", "cooling-only", "heating-and-cooling", "heating-and-cooling-band"}) {
 		t.Errorf("DemandFormNames() = %q", DemandFormNames())
 	}
 	if DemandForm("6p").Valid() || DemandForm("").Valid() {

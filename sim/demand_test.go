@@ -18,7 +18,7 @@ import (
 func testDemand() *model.Demand {
 	d := &model.Demand{
 		Schema: model.DemandSchema, SchemaVersion: model.DemandSchemaVersion, Unit: "GJ/day", TemperatureUnits: "C",
-		Form: model.Form5P, Intercept: 38000, Holiday: -4000,
+		Form: model.FormHeatingCoolingBand, Intercept: 38000, Holiday: -4000,
 		Heating: model.ChangePoint{Present: true, BalancePoint: 15.5, Slope: 3100},
 		Cooling: model.ChangePoint{Present: true, BalancePoint: 22, Slope: 450},
 		Noise:   model.DemandNoise{Phi: 0.5, Sigma: 1400, Last: 2000},
@@ -85,7 +85,7 @@ func TestDemandAggregatesMatchBruteForce(t *testing.T) {
 func TestDemandEnergyIsLinearInHDD(t *testing.T) {
 	t.Parallel()
 	d := testDemand()
-	d.Form, d.Cooling, d.Holiday, d.Weekday = model.Form3PHeating, model.ChangePoint{}, 0, [7]float64{}
+	d.Form, d.Cooling, d.Holiday, d.Weekday = model.FormHeatingOnly, model.ChangePoint{}, 0, [7]float64{}
 	d.Noise.Last = 0
 	m := flatModel(2, 0.7, 2, model.FamilyNormal, 0)
 	const paths = 4000

@@ -21,8 +21,8 @@ var fitDemandUsage = helpText{
   D = β0 + weekday terms + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0) + u
 
 with Monday the reference day and u an AR(1). The forms are the inverse
-change-point models of ASHRAE Guideline 14: 3p-heating, 3p-cooling, 4p (one
-balance point, a slope on either side) and 5p (TbH ≤ TbC, flat between).
+change-point models of ASHRAE Guideline 14: heating-only, cooling-only, heating-and-cooling (one
+balance point, a slope on either side) and heating-and-cooling-band (TbH ≤ TbC, flat between).
 Balance points are searched in 0.1° steps between the 5th and 95th
 percentiles of temperature; the form is chosen by BIC unless --form fixes it.
 The summary shows the BIC of every form, the coefficients with standard
@@ -43,7 +43,7 @@ Rules give their day in every year of the demand record.
 The temperature CSV is read as by 'wxstress fit'; every demand day must lie
 within it, and days without a temperature are left out.`,
 	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --out demand.json
-  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --holidays holidays.txt --form 5p
+  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --holidays holidays.txt --form heating-and-cooling-band
   wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --units F --format json
   wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --model model.json`,
 }

@@ -37,7 +37,7 @@ func TestFitDemandSummary(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	for _, want := range []string{
-		"Change-point form: 5p",
+		"Change-point form: heating-and-cooling-band",
 		"auto: lowest BIC among the forms with positive slopes",
 		"heating slope βH, per °C below 15.6 °C",
 		"ASHRAE Guideline 14-2014",
@@ -60,7 +60,7 @@ func TestFitDemandSummary(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m.Form != model.Form5P || m.Unit != "GJ/day" || m.TemperatureUnits != "C" || m.ToolVersion != version {
+	if m.Form != model.FormHeatingCoolingBand || m.Unit != "GJ/day" || m.TemperatureUnits != "C" || m.ToolVersion != version {
 		t.Errorf("model file: form %s, unit %s, temperature units %s, tool %s", m.Form, m.Unit, m.TemperatureUnits, m.ToolVersion)
 	}
 }
@@ -71,7 +71,7 @@ func TestFitDemandJSON(t *testing.T) {
 	hol := filepath.Join(dir, "holidays.txt")
 	os.WriteFile(hol, []byte("2021-01-01\n2023-06-05\n"), 0o644)
 	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day",
-		"--form", "3p-heating", "--format", "json", "--holidays", hol)
+		"--form", "heating-only", "--format", "json", "--holidays", hol)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -82,7 +82,7 @@ func TestFitDemandJSON(t *testing.T) {
 	heating := raw["heating"].(map[string]any)
 	cooling := raw["cooling"].(map[string]any)
 	fit := raw["fit"].(map[string]any)
-	if raw["form"] != "3p-heating" || heating["balance_point"] != 15.5 || cooling["balance_point"] != nil ||
+	if raw["form"] != "heating-only" || heating["balance_point"] != 15.5 || cooling["balance_point"] != nil ||
 		cooling["slope"] != nil || fit["cv_rmse"] == nil || fit["nmbe"] == nil {
 		t.Errorf("JSON keys: form %v, heating %v, cooling %v, fit.cv_rmse %v", raw["form"], heating, cooling, fit["cv_rmse"])
 	}
@@ -106,7 +106,7 @@ func TestFitDemandHolidayRules(t *testing.T) {
 		",fixed 05-01,Labour Day\n"), 0o644)
 	out := filepath.Join(dir, "demand.json")
 	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day",
-		"--form", "5p", "--holidays", hol, "--out", out)
+		"--form", "heating-and-cooling-band", "--holidays", hol, "--out", out)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -161,7 +161,7 @@ func TestFitDemandErrors(t *testing.T) {
 		{[]string{"--temps", "t.csv", "--unit", "GJ/day"}, exitUsage, "--demand is required"},
 		{[]string{"--temps", "t.csv", "--demand", "d.csv"}, exitUsage, "--unit is required"},
 		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--form", "6p"}, exitUsage,
-			`--form "6p": want auto, 3p-heating, 3p-cooling, 4p, 5p`},
+			`--form "6p": want auto, heating-only, cooling-only, heating-and-cooling, heating-and-cooling-band`},
 		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--format", "xml"}, exitUsage, "want table or json"},
 		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--units", "K"}, exitUsage, "want C or F"},
 		{[]string{"--bogus"}, exitUsage, "unknown flag"},

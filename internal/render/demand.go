@@ -71,7 +71,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	f := m.Fit
 	e.printf("\nFit  R² = %.4f; RMSE = %s %s (n = %d, p = %d); mean load %s %s\n",
 		f.R2, Num(f.RMSE, dec), m.Unit, f.N, f.Parameters, Num(f.MeanLoad, dec), m.Unit)
-	e.printf("CV(RMSE) and NMBE beside the calibration levels of ASHRAE Guideline 14-2014 (from memory)\n")
+	e.printf("CV(RMSE) and NMBE beside the calibration levels of ASHRAE Guideline 14-2014\n")
 	rows = rows[:0]
 	for _, c := range f.Checks {
 		result := "meets the level"
@@ -196,7 +196,7 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 
 func demandBalanceText(m *model.Demand, u string) string {
 	switch {
-	case m.Form == model.Form4P:
+	case m.Form == model.FormHeatingCooling:
 		return fmt.Sprintf("one, Tb = %.1f %s (heating below, cooling above)", m.Heating.BalancePoint, u)
 	case m.Heating.Present && m.Cooling.Present:
 		return fmt.Sprintf("heating TbH = %.1f %s, cooling TbC = %.1f %s (flat between)", m.Heating.BalancePoint, u,

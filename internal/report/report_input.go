@@ -98,7 +98,7 @@ type SeriesView struct {
 type DemandView struct {
 	Retailer string // whose demand, e.g. "Lanternfield Energy"
 	Unit     string // e.g. "GJ/day"
-	Form     string // change-point form, e.g. "5p"
+	Form     string // change-point form, e.g. "heating-and-cooling-band"
 	// Temps and Loads are the observed daily pairs; CurveT and CurveLoad the
 	// fitted load of an ordinary weekday (no holiday) over a temperature grid.
 	Temps, Loads      []float64

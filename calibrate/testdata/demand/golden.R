@@ -5,18 +5,18 @@
 # It reads demo/kestrel_bay_daily.csv (daily mean temperature, °C) and demo/lanternfield_demand.csv
 # (daily load, GJ/day, and a holiday flag) and writes calibrate/testdata/demand/golden.json, every
 # number with 15 significant digits. Made with R 4.2.2 (Debian r-base-core); the version used is
-# recorded in the JSON's "source" field. It takes about ten seconds (the 5p grid has ~36 000 fits).
+# recorded in the JSON's "source" field. It takes about ten seconds (the heating-and-cooling-band grid has ~36 000 fits).
 #
 # Conventions (the same as the Go implementation's):
 #   days     the demand days that have a temperature (inner join on date, rows with an empty tavg dropped)
 #   X        [1, tue, wed, thu, fri, sat, sun, holiday, hdd, cdd]: Monday is the reference day;
-#            hdd = pmax(TbH - T, 0), cdd = pmax(T - TbC, 0); the 3p forms keep one of the two, the 4p
+#            hdd = pmax(TbH - T, 0), cdd = pmax(T - TbC, 0); the one-sided forms keep one of the two, the heating-and-cooling
 #            form has TbH = TbC
 #   fit      lm(y ~ 0 + X) (QR); R^2 = 1 - RSS / sum((y - mean(y))^2)
 #   BIC      BIC(fit) + (balance points) * log(n): R's BIC of the Gaussian lm, counting sigma, plus one
 #            parameter per balance point
 #   grid     balance points (lo:hi) / 10 with lo = ceiling(round(10 * q05, 6)), hi = floor(round(10 * q95, 6)),
-#            q = quantile(T, c(0.05, 0.95), type = 7); TbH <= TbC for 5p; the least RSS wins, the first on ties
+#            q = quantile(T, c(0.05, 0.95), type = 7); TbH <= TbC for heating-and-cooling-band; the least RSS wins, the first on ties
 #            (heating index outer, cooling index inner)
 #   CV(RMSE) 100 * sqrt(RSS / (n - p)) / mean(y), NMBE = 100 * sum(y - yhat) / ((n - p) * mean(y)),
 #            p = coefficients + balance points (ASHRAE Guideline 14-2014, from memory)
@@ -79,12 +79,12 @@ tss <- sum((y - mean(y))^2)
 
 design <- function(form, tbh, tbc) {
   X <- Z
-  if (form %in% c("3p-heating", "4p", "5p")) X <- cbind(X, hdd = pmax(tbh - T, 0))
-  if (form == "4p") tbc <- tbh
-  if (form %in% c("3p-cooling", "4p", "5p")) X <- cbind(X, cdd = pmax(T - tbc, 0))
+  if (form %in% c("heating-only", "heating-and-cooling", "heating-and-cooling-band")) X <- cbind(X, hdd = pmax(tbh - T, 0))
+  if (form == "heating-and-cooling") tbc <- tbh
+  if (form %in% c("cooling-only", "heating-and-cooling", "heating-and-cooling-band")) X <- cbind(X, cdd = pmax(T - tbc, 0))
   X
 }
-n_bp <- function(form) if (form == "5p") 2 else if (form == "constant") 0 else 1
+n_bp <- function(form) if (form == "heating-and-cooling-band") 2 else if (form == "constant") 0 else 1
 
 fixed_block <- function(form, tbh, tbc) {
   X <- design(form, tbh, tbc)
@@ -144,13 +144,13 @@ search <- function(form) {
                     bic = n * log(2 * pi * rss / n) + n + (k + n_bp(form) + 1) * log(n))
     }
   }
-  if (form == "5p") {
+  if (form == "heating-and-cooling-band") {
     for (i in seq_along(g)) for (j in i:length(g)) consider(g[i], g[j])
   } else {
     for (b in g) consider(b, b)
   }
-  bp <- switch(form, "3p-heating" = best$tbh, "3p-cooling" = best$tbc, "4p" = best$tbh,
-               "5p" = c(best$tbh, best$tbc))
+  bp <- switch(form, "heating-only" = best$tbh, "cooling-only" = best$tbc, "heating-and-cooling" = best$tbh,
+               "heating-and-cooling-band" = c(best$tbh, best$tbc))
   list(balance_points = arr(bp), slopes = arr(best$slopes), rss = best$rss, bic = best$bic)
 }
 
@@ -161,12 +161,12 @@ profile <- list()
 add_profile <- function(form, tbh, tbc) {
   profile[[length(profile) + 1]] <<- list(form = form, tbh = tbh, tbc = tbc, rss = rss_at(form, tbh, tbc))
 }
-for (b in c(14.0, 14.5, 15.0, 15.4, 15.6, 16.0, 17.0)) add_profile("3p-heating", b, b)
+for (b in c(14.0, 14.5, 15.0, 15.4, 15.6, 16.0, 17.0)) add_profile("heating-only", b, b)
 for (p in list(c(15.0, 22.0), c(15.4, 22.0), c(15.6, 22.0), c(16.0, 22.0), c(15.5, 21.0), c(15.5, 21.5),
                c(15.5, 22.5), c(15.5, 23.0), c(15.6, 23.0), c(14.0, 20.0), c(15.5, 15.5)))
-  add_profile("5p", p[1], p[2])
-for (b in c(15.5, 15.7, 18.0)) add_profile("4p", b, b)
-for (b in c(18.0, 22.0)) add_profile("3p-cooling", b, b)
+  add_profile("heating-and-cooling-band", p[1], p[2])
+for (b in c(15.5, 15.7, 18.0)) add_profile("heating-and-cooling", b, b)
+for (b in c(18.0, 22.0)) add_profile("cooling-only", b, b)
 
 out <- list(
   source = list(
@@ -177,16 +177,16 @@ out <- list(
   days = list(n = n, first = as.character(min(date)), last = as.character(max(date)),
               holidays = sum(m$holiday == 1), q05 = q[1], q95 = q[2], grid_lo = lo / 10, grid_hi = hi / 10),
   fixed = list(
-    "5p_15.5_22" = fixed_block("5p", 15.5, 22.0),
-    "3p-heating_15.5" = fixed_block("3p-heating", 15.5, 15.5)
+    "5p_15.5_22" = fixed_block("heating-and-cooling-band", 15.5, 22.0),
+    "heating-only_15.5" = fixed_block("heating-only", 15.5, 15.5)
   ),
   constant = list(call = "lm(y ~ 0 + Z), Z = [intercept, tue..sun, holiday]; BIC(fit)", rss = rss0, bic = BIC(fit0)),
   profile = profile,
   search = list(
-    "3p-heating" = search("3p-heating"),
-    "3p-cooling" = search("3p-cooling"),
-    "4p" = search("4p"),
-    "5p" = search("5p")
+    "heating-only" = search("heating-only"),
+    "cooling-only" = search("cooling-only"),
+    "heating-and-cooling" = search("heating-and-cooling"),
+    "heating-and-cooling-band" = search("heating-and-cooling-band")
   )
 )
 writeLines(to_json(out), out_file)
