@@ -36,14 +36,16 @@ tails.json, tails.csv, paths.csv) go to a new directory (wxstress-demo, or
 wxstress-demo-2, ... if that exists) or to --dir, which it never overwrites
 without --force. The data are invented for demonstration.`,
 	examples: `  wxstress demo
-  wxstress demo --dir /tmp/kestrel --force --paths 100000 --seed 7`,
+  wxstress demo --dir /tmp/kestrel --force --paths 100000 --seed 7
+  wxstress demo --detail`,
 }
 
 type demoOptions struct {
-	dir   string
-	force bool
-	paths int
-	seed  uint64
+	dir    string
+	force  bool
+	detail bool
+	paths  int
+	seed   uint64
 }
 
 // demoCapacity is the invented retailer's contracted daily capacity, GJ/day.
@@ -52,6 +54,7 @@ const demoCapacity = 120000
 func newDemoFlags(o *demoOptions) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("demo", pflag.ContinueOnError)
 	fs.StringVar(&o.dir, "dir", "", "directory for the outputs (default: the first free of wxstress-demo, wxstress-demo-2, ...)")
+	fs.BoolVar(&o.detail, "detail", false, "print the fit summaries and the full tables instead of the one-page summary")
 	fs.BoolVar(&o.force, "force", false, "replace the outputs in an existing directory")
 	fs.IntVar(&o.paths, "paths", 10000, "number of synthetic years")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
@@ -153,20 +156,28 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		return err
 	}
 
-	fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
-		demo.StationName, demo.Retailer)
-	if err := emitFit(stdout, stderr, m, "table"); err != nil {
-		return err
-	}
-	fmt.Fprintf(stdout, "\nModel written to %s\n", modelPath)
-	fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
-	if err := emitDemand(stdout, io.Discard, d, "table"); err != nil {
-		return err
-	}
-	fmt.Fprintf(stdout, "\nDemand model written to %s\n", demandPath)
-	fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
-	if err := render.SimTables(stdout, rep); err != nil {
-		return err
+	if !o.detail {
+		fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data), heating season 2026\n", demo.StationName, demo.Retailer)
+		fmt.Fprintf(stdout, "%s\n", render.Wrap("Demand: "+render.DemandLine(d), "  "))
+		if err := render.SimSummary(stdout, rep, m); err != nil {
+			return err
+		}
+	} else {
+		fmt.Fprintf(stdout, "wxstress demo: %s and %s (invented data)\n\n== 1. Temperature model ==\n\n",
+			demo.StationName, demo.Retailer)
+		if err := emitFit(stdout, stderr, m, "table", res.Extremes...); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\nModel written to %s\n", modelPath)
+		fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
+		if err := emitDemand(stdout, io.Discard, d, "table"); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\nDemand model written to %s\n", demandPath)
+		fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
+		if err := render.SimTables(stdout, rep); err != nil {
+			return err
+		}
 	}
 	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)
 	fmt.Fprintf(stdout, "Report: %s\n", reportPath)

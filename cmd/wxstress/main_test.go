@@ -178,7 +178,7 @@ func TestSimulateOutDirAndInterrupt(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stdout, "P(HDD > 2,500)") {
+	if !strings.Contains(stdout, "P(HDD, heating > 2,500)") {
 		t.Errorf("exceedance not shown:\n%s", stdout)
 	}
 	paths, _ := os.ReadFile(filepath.Join(dir, "paths.csv"))
@@ -429,5 +429,36 @@ func TestFitWritesAReport(t *testing.T) {
 	b, err := os.ReadFile(p)
 	if err != nil || !strings.Contains(string(b), "<svg") || strings.Contains(string(b), "Scenarios</h2>") {
 		t.Errorf("fit report: %v, %d bytes", err, len(b))
+	}
+}
+
+// TestSimulateSummaryAndDetail checks that simulate prints the one-page
+// summary by default (key figures, one Monte Carlo line, the caution) and
+// the full per-period tables with --detail.
+func TestSimulateSummaryAndDetail(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	args := []string{"simulate", "--model", m, "--paths", "400"}
+	code, short, stderr := call(t, context.Background(), append(args, "--out", filepath.Join(t.TempDir(), "a"))...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	code, long, stderr := call(t, context.Background(), append(args, "--detail", "--out", filepath.Join(t.TempDir(), "b"))...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"Key figures", "HDD, heating", "1-in-20", "not forecasts", "--detail"} {
+		if !strings.Contains(short, want) {
+			t.Errorf("summary lacks %q:\n%s", want, short)
+		}
+	}
+	if n := strings.Count(short, "Monte Carlo error"); n > 1 {
+		t.Errorf("summary lists %d Monte Carlo warnings, want them condensed into one line", n)
+	}
+	if strings.Contains(short, "VaR 99%") || !strings.Contains(long, "VaR 99%") {
+		t.Errorf("full tables should appear only with --detail")
+	}
+	if lines := strings.Count(short, "\n"); lines > 50 || lines >= strings.Count(long, "\n") {
+		t.Errorf("summary has %d lines, detail %d: the summary should fit a screen", lines, strings.Count(long, "\n"))
 	}
 }

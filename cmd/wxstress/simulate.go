@@ -67,6 +67,7 @@ type simulateOptions struct {
 	out       string
 	report    string
 	force     bool
+	detail    bool
 	maxMemory string
 	hedgeFile string
 	loading   float64
@@ -117,6 +118,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.BoolVar(&o.force, "force", false, "replace existing output files")
+	fs.BoolVar(&o.detail, "detail", false, "print the full tail tables instead of the one-page summary")
 	fs.StringVar(&o.maxMemory, "max-memory", "", "refuse a run whose estimated memory is above this, e.g. 8G (default: half the machine's memory)")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
@@ -389,7 +391,11 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	case "csv":
 		return render.SimCSV(stdout, rep)
 	}
-	if err := render.SimTables(stdout, rep); err != nil {
+	print := render.SimTables
+	if !o.detail {
+		print = func(w io.Writer, r *render.SimReport) error { return render.SimSummary(w, r, m) }
+	}
+	if err := print(stdout, rep); err != nil {
 		return err
 	}
 	if o.out != "" {

@@ -240,3 +240,17 @@ func trimZeros(s string) string {
 	}
 	return strings.TrimRight(strings.TrimRight(s, "0"), ".")
 }
+
+// RoundUp rounds a count up to two significant digits and formats it with
+// thousands separators, for counts that are estimates (paths needed):
+// RoundUp(63419) = "64,000", RoundUp(87) = "87". It panics if n < 0.
+func RoundUp(n int) string {
+	if n < 0 {
+		panic("numfmt: negative count")
+	}
+	step := 1
+	for n/step >= 100 {
+		step *= 10
+	}
+	return Fixed(float64((n+step-1)/step*step), 0)
+}

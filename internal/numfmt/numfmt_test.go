@@ -261,3 +261,17 @@ func TestConcurrentUse(t *testing.T) {
 	}
 	wg.Wait()
 }
+
+// TestRoundUp checks that path counts round up, never down, to two
+// significant digits (rounding down would promise a precision the run
+// would not reach).
+func TestRoundUp(t *testing.T) {
+	for _, c := range []struct {
+		n    int
+		want string
+	}{{0, "0"}, {7, "7"}, {99, "99"}, {100, "100"}, {101, "110"}, {63419, "64,000"}, {478844, "480,000"}, {10000, "10,000"}, {10001, "11,000"}} {
+		if got := RoundUp(c.n); got != c.want {
+			t.Errorf("RoundUp(%d) = %q, want %q", c.n, got, c.want)
+		}
+	}
+}

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
+	"unicode/utf8"
 
 	"github.com/olekukonko/tablewriter"
 	"github.com/olekukonko/tablewriter/tw"
@@ -73,4 +75,30 @@ func (e *errWriter) table(header []string, rows [][]string) {
 	if e.err == nil {
 		e.err = table(e.w, header, rows)
 	}
+}
+
+// wrapWidth is the column at which prose lines of the terminal output break.
+const wrapWidth = 100
+
+// wrap breaks text at spaces into lines of at most width columns (a word
+// longer than width stands alone), starting every line after the first with
+// indent.
+func wrap(text string, width int, indent string) string {
+	var b strings.Builder
+	col := 0
+	for i, word := range strings.Fields(text) {
+		n := utf8.RuneCountInString(word)
+		switch {
+		case i == 0:
+		case col+1+n > width:
+			b.WriteString("\n" + indent)
+			col = utf8.RuneCountInString(indent)
+		default:
+			b.WriteByte(' ')
+			col++
+		}
+		b.WriteString(word)
+		col += n
+	}
+	return b.String()
 }

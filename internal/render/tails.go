@@ -438,36 +438,58 @@ func writeTailTable(e *errWriter, group []sim.Row) {
 // support the digits a table shows.
 const mcTolerance = 0.05
 
-// monteCarloWarnings names the tail numbers whose Monte Carlo standard error
-// exceeds mcTolerance of the index's sd, with the paths that would bring it
-// there (s.e. ∝ 1/√paths).
-func monteCarloWarnings(group []sim.Row) []string {
-	var out []string
+// mcFlag is a tail number whose Monte Carlo standard error exceeds
+// mcTolerance of its index's sd.
+type mcFlag struct {
+	row    sim.Row
+	stat   string  // "ES 99%", "1-in-50" or "1-in-100"
+	value  float64 // the statistic
+	se     float64 // its Monte Carlo s.e.
+	target float64 // the s.e. mcTolerance allows
+	paths  int     // paths that would bring se to target; 0 if no run could
+}
+
+// monteCarloFlags finds, for each row, the far-tail number (ES 99%, 1-in-50,
+// 1-in-100) with the largest Monte Carlo error, when that error exceeds
+// mcTolerance of the index's sd (s.e. ∝ 1/√paths gives the paths needed).
+func monteCarloFlags(group []sim.Row) []mcFlag {
+	var out []mcFlag
 	for _, r := range group {
 		t := r.Tail
 		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || t.Quantile(0.95) == 0 && t.Mean < 1 {
 			continue // no spread, a date, or an index that hardly occurs in the period
 		}
-		target := mcTolerance * t.SD
-		worst, name, value := 0.0, "", 0.0
+		f := mcFlag{row: r, target: mcTolerance * t.SD}
 		for _, c := range []struct {
 			name  string
 			v, se float64
 		}{{"ES 99%", t.ES99, t.ES99SE}, {"1-in-50", t.ReturnLevel(50), t.ReturnLevelError(50)},
 			{"1-in-100", t.ReturnLevel(100), t.ReturnLevelError(100)}} {
-			if c.se > worst {
-				worst, name, value = c.se, c.name, c.v
+			if c.se > f.se {
+				f.se, f.stat, f.value = c.se, c.name, c.v
 			}
 		}
-		if worst <= target {
+		if f.se <= f.target {
 			continue
 		}
+		if !math.IsInf(f.se, 1) {
+			f.paths = evidence.PathsNeeded(f.se, t.N, f.target)
+		}
+		out = append(out, f)
+	}
+	return out
+}
+
+// monteCarloWarnings words monteCarloFlags for the detailed tables.
+func monteCarloWarnings(group []sim.Row) []string {
+	var out []string
+	for _, f := range monteCarloFlags(group) {
 		need := "more paths than any run"
-		if !math.IsInf(worst, 1) {
-			need = "about " + numfmt.Number(float64(evidence.PathsNeeded(worst, t.N, target))) + " paths"
+		if f.paths > 0 {
+			need = "about " + numfmt.RoundUp(f.paths) + " paths"
 		}
 		out = append(out, fmt.Sprintf("Monte Carlo error: the %s of %s is %s %s from %s paths, more than a twentieth of its sd; %s would bring it to %s",
-			name, r.Name, numfmt.Value(value, worst), numfmt.SE(worst), numfmt.Number(float64(t.N)), need, numfmt.SE(target)))
+			f.stat, f.row.Name, numfmt.Value(f.value, f.se), numfmt.SE(f.se), numfmt.Number(float64(f.row.Tail.N)), need, numfmt.SE(f.target)))
 	}
 	return out
 }
@@ -588,7 +610,9 @@ func ChangeText(mean, se float64) string {
 	if se <= 1e-9*max(1, math.Abs(mean)) {
 		return fmt.Sprintf("%+.1f %s", mean, numfmt.Exact)
 	}
-	v := numfmt.Value(mean, se)
+	// Common random numbers can make the s.e. of a shift's change tiny; the
+	// change itself needs no more than four significant figures.
+	v := numfmt.Value(mean, max(se, 1e-3*math.Abs(mean)))
 	if mean > 0 && v != "0" {
 		v = "+" + v
 	}

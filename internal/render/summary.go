@@ -1,0 +1,248 @@
+package render
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"slices"
+	"strings"
+
+	"wxstress/internal/numfmt"
+	"wxstress/model"
+	"wxstress/sim"
+)
+
+// summaryIndices are the indices the one-page summary shows, in order, and
+// the periods each is shown for: degree days where they occur, the coldest
+// day of winter, and the demand figures.
+var summaryIndices = []sim.Index{sim.HDD, sim.CDD, sim.Coldest, sim.Energy, sim.PeakDemand}
+
+// occurs reports whether an index means something in its period: not zero
+// in nineteen years of twenty with a mean below one (CDD in winter), and the
+// coldest day only where it is a winter figure (not the cooling season).
+func occurs(r sim.Row) bool {
+	t := r.Tail
+	if t.Quantile(0.95) == 0 && t.Mean < 1 {
+		return false
+	}
+	return !(r.Index == sim.Coldest && r.Period == "cooling")
+}
+
+// ModelLine describes a temperature model in one line for people.
+func ModelLine(m *model.File) string {
+	u := "°" + m.Data.Units
+	parts := []string{}
+	if m.Trend.Kind == "linear" {
+		parts = append(parts, fmt.Sprintf("trend %+.2f %s/decade", 10*m.Trend.SlopePerYear, u))
+	} else {
+		parts = append(parts, "no trend")
+	}
+	parts = append(parts, fmt.Sprintf("fast AR(%d) φ₁ %.2f", len(m.AR.Phi), m.AR.Phi[0]))
+	if sl := m.Slow; sl != nil {
+		parts = append(parts, fmt.Sprintf("slow part φ %.3f (%.0f days, sd %.2f %s)", sl.Phi, sl.EFoldingDays, sl.SD, u))
+	} else {
+		parts = append(parts, "no slow part")
+	}
+	parts = append(parts, model.FamilyLabel(m.Shocks.Family)+" shocks")
+	return strings.Join(parts, ", ")
+}
+
+// SimSummary writes the one-page summary of a run: the figures each user
+// came for — season degree days and energy at the median, 1-in-20 and
+// 1-in-50 with the expected shortfall, the design day and capacity, the
+// hedged position, baseline against scenarios — then the warnings. The
+// full tables are SimTables.
+func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
+	e := &errWriter{w: w}
+	mf := r.Manifest
+	e.printf("%s synthetic years of %d (%s start, seed %d), %d periods: %s\n", numfmt.Number(float64(mf.Paths)), mf.Year,
+		mf.Start, mf.Seed, len(mf.Periods), strings.Join(mf.Periods, ", "))
+	if m != nil {
+		e.printf("%s\n", Wrap("Model: "+ModelLine(m), "  "))
+	}
+	for _, o := range r.InSeason {
+		if o.Days > 0 {
+			e.printf("Season under way: %s, %d days observed, HDD so far %s\n", o.Period, o.Days, numfmt.Fixed(o.Values[sim.HDD], 0))
+		}
+	}
+
+	// Key figures.
+	var rows [][]string
+	bandCol := len(r.Bands) > 0
+	for _, x := range summaryIndices {
+		for k, row := range r.Rows {
+			if row.Index != x || !occurs(row) {
+				continue
+			}
+			t := row.Tail
+			v := func(val, se float64) string { return numfmt.Value(val, se) }
+			line := []string{row.Name + ", " + row.Period, row.Unit,
+				v(t.Quantile(0.5), t.QuantileSE[4]), v(t.ReturnLevel(20), t.ReturnLevelError(20)),
+				v(t.ReturnLevel(50), t.ReturnLevelError(50)), v(t.ES95, t.ES95SE)}
+			if bandCol {
+				b := r.Bands[k].RL20
+				line = append(line, fmt.Sprintf("%s to %s", numfmt.Value(b.Lo, t.ReturnLevelError(20)), numfmt.Value(b.Hi, t.ReturnLevelError(20))))
+			}
+			rows = append(rows, line)
+		}
+	}
+	head := []string{"index, period", "unit", "P50", "1-in-20", "1-in-50", "ES 95%"}
+	if bandCol {
+		head = append(head, "1-in-20, 90% band")
+	}
+	e.printf("\nKey figures (adverse side: high for degree days and demand, low for the coldest day)\n")
+	e.table(head, rows)
+	for _, row := range r.Rows {
+		for _, x := range row.Tail.Exceedances {
+			e.printf("  P(%s, %s %s %s) = %s %s\n", row.Name, row.Period, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
+				numfmt.Number(x.Threshold), numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE))
+		}
+	}
+
+	// The planner's and the retailer's lines.
+	peakUnit := ""
+	for _, row := range r.Rows {
+		if row.Index == sim.PeakDemand {
+			peakUnit = " " + row.Unit
+		}
+	}
+	for _, d := range r.Design {
+		if d.Period == "cooling" {
+			continue // the coldest day of summer designs nothing
+		}
+		line := fmt.Sprintf("Design day 1-in-%s, %s: %s °%s, %d-day snap %s °%s", periodKey(d.T), d.Period,
+			numfmt.Value(d.Coldest, d.ColdestSE), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, d.SnapSE), mf.Units)
+		if !math.IsNaN(d.Peak) {
+			line += ", demand " + numfmt.Value(d.Peak, d.PeakSE) + peakUnit
+		}
+		e.printf("%s\n", line)
+	}
+	for _, c := range r.Capacities {
+		e.printf("Capacity for %s, %s: %s%s\n", c.Target, c.Period, numfmt.ValueSE(c.Capacity, c.SE), peakUnit)
+	}
+	if h := r.Hedge; h != nil {
+		e.printf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges remove %s of its variance\n",
+			r.HedgeFile.Currency, numfmt.Fixed(h.Unhedged.ES95, 0), numfmt.Fixed(h.Hedged.ES95, 0), numfmt.Percent(h.VarianceReduction))
+	}
+
+	// Scenarios: the change of the mean of the first few key figures.
+	if len(r.Scenarios) > 0 {
+		var keys []int
+		for _, x := range []sim.Index{sim.HDD, sim.Energy, sim.PeakDemand, sim.Coldest} {
+			for k, row := range r.Rows {
+				if row.Index == x && occurs(row) && len(keys) < 3 && !slices.ContainsFunc(keys, func(j int) bool { return r.Rows[j].Index == x }) {
+					if row.Period == "heating" || !slices.ContainsFunc(r.Rows, func(q sim.Row) bool { return q.Index == x && q.Period == "heating" }) {
+						keys = append(keys, k)
+					}
+				}
+			}
+		}
+		head := []string{"scenario: change of the mean"}
+		for _, k := range keys {
+			head = append(head, r.Rows[k].Name+", "+r.Rows[k].Period)
+		}
+		var rows [][]string
+		for _, sc := range r.Scenarios {
+			line := []string{sc.Name}
+			for _, k := range keys {
+				c := sc.Changes[k]
+				line = append(line, ChangeText(c.Mean, c.MeanSE))
+			}
+			rows = append(rows, line)
+		}
+		e.printf("\n")
+		e.table(head, rows)
+	}
+
+	// Warnings.
+	var warns []string
+	if w := mcSummary(r.Rows); w != "" {
+		warns = append(warns, w)
+	}
+	if h := r.History; h != nil {
+		for _, row := range h.Rows {
+			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD) {
+				warns = append(warns, fmt.Sprintf("%s, %s: the record's sd %s lies outside the model's band %s–%s (%s)",
+					row.Index.Info().Name, row.Period, numfmt.Fixed(row.SD, 1), numfmt.Fixed(row.SDBand[0], 1),
+					numfmt.Fixed(row.SDBand[1], 1), row.SDVerdict))
+			}
+		}
+	}
+	for _, c := range r.Extremes {
+		for _, l := range c.Levels {
+			if l.Outside {
+				warns = append(warns, fmt.Sprintf("%s, %s: the model's 1-in-%s lies %s the GEV's 95 %% interval", c.Index.Info().Name,
+					c.Period, periodKey(l.T), l.OutsideSide))
+			}
+		}
+	}
+	if m != nil && m.Diagnostics != nil {
+		for _, s := range m.Diagnostics.Spread {
+			if s.Verdict == "too narrow" || s.Verdict == "too wide" {
+				warns = append(warns, fmt.Sprintf("the record's %d-day spread lies outside the model's band (%s)", s.Days, s.Verdict))
+			}
+		}
+	}
+	if len(warns) > 0 {
+		e.printf("\nWarnings\n")
+		for _, w := range warns {
+			e.printf("  - %s\n", wrap(w, wrapWidth, "    "))
+		}
+	}
+	e.printf("\nFull tables: --detail (or --format csv|json).\n%s\n", wrap(Caution, wrapWidth, ""))
+	return e.err
+}
+
+// mcSummary condenses the Monte Carlo flags of the rows the summary shows
+// into one line: how many far-tail figures need more paths, the worst of
+// them, and the paths that would settle them all. Empty when none does.
+func mcSummary(rows []sim.Row) string {
+	var shown []sim.Row
+	for _, row := range rows {
+		if slices.Contains(summaryIndices, row.Index) && occurs(row) {
+			shown = append(shown, row)
+		}
+	}
+	flags := monteCarloFlags(shown)
+	if len(flags) == 0 {
+		return ""
+	}
+	worst, paths := flags[0], 0
+	for _, f := range flags {
+		if f.se/f.target > worst.se/worst.target {
+			worst = f
+		}
+		if f.paths == 0 || paths < 0 {
+			paths = -1
+		} else {
+			paths = max(paths, f.paths)
+		}
+	}
+	need := "more paths than any run would settle them"
+	if paths > 0 {
+		need = "about " + numfmt.RoundUp(paths) + " paths would settle them all (--paths)"
+	}
+	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s %s); %s",
+		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se), numfmt.SE(worst.se), need)
+}
+
+// DemandLine describes a demand model in one line for people: its form and
+// each side's balance point and slope.
+func DemandLine(d *model.Demand) string {
+	u := "°" + d.TemperatureUnits
+	parts := []string{d.Form + " change-point model"}
+	for _, s := range []struct {
+		name, side string
+		cp         model.ChangePoint
+	}{{"heating", "below", d.Heating}, {"cooling", "above", d.Cooling}} {
+		if s.cp.Present {
+			parts = append(parts, fmt.Sprintf("%s %s %s %s, %s %s per %s", s.name, s.side, numfmt.Fixed(s.cp.BalancePoint, 1), u,
+				numfmt.Value(s.cp.Slope, s.cp.SlopeSE), d.Unit, u))
+		}
+	}
+	return strings.Join(parts, "; ")
+}
+
+// Wrap breaks a line of prose for the terminal at wrapWidth columns,
+// starting continuation lines with indent.
+func Wrap(text, indent string) string { return wrap(text, wrapWidth, indent) }

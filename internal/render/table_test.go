@@ -1,0 +1,32 @@
+package render
+
+import (
+	"strings"
+	"testing"
+	"unicode/utf8"
+)
+
+// TestWrap checks that wrapping keeps every word in order, breaks only at
+// spaces, indents continuation lines and respects the width.
+func TestWrap(t *testing.T) {
+	text := "Monte Carlo error: 12 of the 13 rows above have a far-tail figure less precise than a twentieth of the sd"
+	got := wrap(text, 30, "  ")
+	if strings.Join(strings.Fields(got), " ") != text {
+		t.Fatalf("wrap changed the words:\n%s", got)
+	}
+	lines := strings.Split(got, "\n")
+	if len(lines) < 4 {
+		t.Fatalf("wrap at 30 gave %d lines:\n%s", len(lines), got)
+	}
+	for i, l := range lines {
+		if n := utf8.RuneCountInString(l); n > 30 {
+			t.Errorf("line %d has %d columns: %q", i, n, l)
+		}
+		if i > 0 && !strings.HasPrefix(l, "  ") {
+			t.Errorf("line %d not indented: %q", i, l)
+		}
+	}
+	if got := wrap("a-very-long-word-indeed", 5, ""); got != "a-very-long-word-indeed" {
+		t.Errorf("a long word must stand alone, got %q", got)
+	}
+}
