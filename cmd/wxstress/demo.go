@@ -179,7 +179,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			return err
 		}
 	}
-	fmt.Fprintf(stdout, "\nOutputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html\n", o.dir)
+	fmt.Fprintf(stdout, "\n%s\n", render.Wrap(fmt.Sprintf("Outputs in %s: model.json, demand.json, tails.json, tails.csv, paths.csv, report.html", o.dir), "  "))
 	fmt.Fprintf(stdout, "Report: %s\n", reportPath)
 	return nil
 }

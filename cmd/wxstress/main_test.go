@@ -7,10 +7,14 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
+	"slices"
 	"strings"
 	"sync"
 	"testing"
+	"unicode/utf8"
 
+	"wxstress/internal/numfmt"
 	"wxstress/model"
 )
 
@@ -26,6 +30,7 @@ var (
 	demoModelOnce sync.Once
 	demoModelPath string
 	demoModelDir  string // removed by TestMain
+	demoStdout    string // what the demo printed
 )
 
 // TestMain removes the shared demo model's directory after the tests.
@@ -47,9 +52,11 @@ func demoModel(t *testing.T) string {
 		}
 		demoModelDir = dir
 		demoModelPath = filepath.Join(dir, "demo", "model.json")
-		if code, _, stderr := call(t, context.Background(), "demo", "--paths", "200", "--dir", filepath.Join(dir, "demo")); code != 0 {
+		code, stdout, stderr := call(t, context.Background(), "demo", "--paths", "200", "--dir", filepath.Join(dir, "demo"))
+		if code != 0 {
 			t.Fatalf("demo failed (%d): %s", code, stderr)
 		}
+		demoStdout = stdout
 	})
 	return demoModelPath
 }
@@ -460,5 +467,70 @@ func TestSimulateSummaryAndDetail(t *testing.T) {
 	}
 	if lines := strings.Count(short, "\n"); lines > 50 || lines >= strings.Count(long, "\n") {
 		t.Errorf("summary has %d lines, detail %d: the summary should fit a screen", lines, strings.Count(long, "\n"))
+	}
+}
+
+// TestDemoSummary checks the demo's one-page summary: it fits a screen (at
+// most 60 lines; prose within 100 columns, tables within 120), has no
+// exponent notation, and its headline numbers are the JSON's, formatted to
+// their Monte Carlo error.
+func TestDemoSummary(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	out := demoStdout
+	lines := strings.Split(strings.TrimRight(out, "\n"), "\n")
+	if len(lines) > 60 {
+		t.Errorf("the summary has %d lines, want at most 60", len(lines))
+	}
+	for i, l := range lines {
+		limit := 100
+		if strings.ContainsAny(l, "│┌└├") {
+			limit = 120
+		}
+		if n := utf8.RuneCountInString(l); n > limit {
+			t.Errorf("line %d has %d columns (limit %d): %q", i+1, n, limit, l)
+		}
+	}
+	if m := regexp.MustCompile(`\d[eE][-+]?\d`).FindString(out); m != "" {
+		t.Errorf("exponent notation %q in the summary:\n%s", m, out)
+	}
+	var tails struct {
+		Indices []struct {
+			Key, Period  string
+			ReturnLevels map[string]float64 `json:"return_levels"`
+			ES95         float64            `json:"es95"`
+			MCSE         struct {
+				ReturnLevels map[string]float64 `json:"return_levels"`
+				ES95         float64            `json:"es95"`
+			} `json:"monte_carlo_se"`
+		}
+	}
+	b, err := os.ReadFile(filepath.Join(dir, "tails.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &tails); err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, x := range tails.Indices {
+		label := map[string]string{"hdd": "HDD", "energy": "demand energy"}[x.Key]
+		if label == "" || x.Period != "heating" {
+			continue
+		}
+		want := []string{numfmt.Value(x.ReturnLevels["20"], x.MCSE.ReturnLevels["20"]),
+			numfmt.Value(x.ReturnLevels["50"], x.MCSE.ReturnLevels["50"]), numfmt.Value(x.ES95, x.MCSE.ES95)}
+		for _, l := range lines {
+			if strings.HasPrefix(l, "│ "+label+", heating ") {
+				checked++
+				cells := strings.Split(l, "│")
+				if got := []string{strings.TrimSpace(cells[4]), strings.TrimSpace(cells[5]), strings.TrimSpace(cells[6])}; !slices.Equal(got, want) {
+					t.Errorf("%s, heating: 1-in-20, 1-in-50, ES 95%% %q in the summary, %q from tails.json", label, got, want)
+				}
+			}
+		}
+	}
+	if checked != 2 {
+		t.Errorf("found %d of the 2 headline rows (HDD and demand energy, heating) in:\n%s", checked, out)
 	}
 }

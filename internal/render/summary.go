@@ -186,7 +186,7 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 	if len(warns) > 0 {
 		e.printf("\nWarnings\n")
 		for _, w := range warns {
-			e.printf("  - %s\n", wrap(w, wrapWidth, "    "))
+			e.printf("%s\n", wrap("  - "+w, wrapWidth, "    "))
 		}
 	}
 	e.printf("\nFull tables: --detail (or --format csv|json).\n%s\n", wrap(Caution, wrapWidth, ""))
