@@ -65,6 +65,10 @@ var indexInfo = [...]Info{
 // Info returns the description of the index.
 func (x Index) Info() Info { return indexInfo[x] }
 
+// NeedsDemand reports whether the index exists only in runs with a demand
+// model.
+func (x Index) NeedsDemand() bool { return x >= Energy && x < numIndices || x == SnapEnergy }
+
 // Unit returns the index's unit for temperatures in units and demand in
 // demandUnit (e.g. "GJ/day"; the energy of a period is then in GJ).
 func (i Info) Unit(units model.Units, demandUnit string) string {

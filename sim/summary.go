@@ -47,9 +47,12 @@ func ParseThreshold(s string) (Threshold, error) {
 	if !ok {
 		return th, fmt.Errorf("sim: threshold %q: unknown index %q: want one of %s", s, key, strings.Join(IndexKeys(), ", "))
 	}
+	if x == PeakDay {
+		return th, fmt.Errorf("sim: threshold %q: the day of the peak is a date, not a level; for the peak-day demand use peak", s)
+	}
 	v, err := strconv.ParseFloat(value, 64)
-	if err != nil {
-		return th, fmt.Errorf("sim: threshold %q: %q is not a number", s, value)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return th, fmt.Errorf("sim: threshold %q: %q is not a finite number", s, value)
 	}
 	return Threshold{Index: x, Period: strings.ToLower(period), Value: v}, nil
 }

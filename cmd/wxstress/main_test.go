@@ -83,6 +83,15 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--period", "winter"}, exitUsage, "MM-DD:MM-DD"},
 		{[]string{"simulate", "--model", "m.json", "--period", "02-30:03-01"}, exitUsage, "malformed window"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "frost:3"}, exitUsage, "unknown index"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:heating:NaN"}, exitUsage, "not a finite number"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:Inf"}, exitUsage, "not a finite number"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "peak-day:heating:40"}, exitUsage, "the day of the peak is a date"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "energy:heating:1e7"}, exitUsage, "demand energy needs --demand"},
+		{[]string{"simulate", "--model", "m.json", "--demand", "d.json", "--exceed", "over-capacity:3"}, exitUsage, "needs --capacity"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "cold-snap:heating:-12"}, exitUsage, "need --design"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:jan:500"}, exitUsage,
+			`period "jan" is not simulated; the run's periods are year, heating, cooling`},
+		{[]string{"simulate", "--model", "m.json", "--period", "jan", "--exceed", "hdd:feb:500"}, exitUsage, "the run's periods are jan"},
 		{[]string{"simulate", "--model", "m.json", "--format", "xml"}, exitUsage, "table, csv or json"},
 	}
 	for _, c := range cases {

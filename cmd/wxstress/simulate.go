@@ -6,6 +6,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"slices"
 	"strings"
 	"time"
 
@@ -228,7 +229,35 @@ func (o *simulateOptions) validate() error {
 		if err != nil {
 			return usagef("simulate: --exceed: %v", strings.TrimPrefix(err.Error(), "sim: "))
 		}
+		if err := o.checkThreshold(s, th); err != nil {
+			return err
+		}
 		o.thresholds = append(o.thresholds, th)
+	}
+	return nil
+}
+
+// checkThreshold refuses an --exceed the run cannot answer: a demand index
+// without --demand, days over capacity without --capacity, the cold snap
+// without --design, or a period the run does not simulate (a hedge file may
+// add periods, so those are checked only without one).
+func (o *simulateOptions) checkThreshold(s string, th sim.Threshold) error {
+	x := th.Index
+	switch {
+	case x.NeedsDemand() && o.demand == "":
+		return usagef("simulate: --exceed %s: %s needs --demand", s, x.Info().Name)
+	case x == sim.OverCapacity && o.capacity == 0:
+		return usagef("simulate: --exceed %s: days over capacity needs --capacity", s)
+	case (x == sim.ColdSnap || x == sim.SnapEnergy) && len(o.design) == 0:
+		return usagef("simulate: --exceed %s: the %d-day snap indices need --design", s, o.snapDays)
+	}
+	periods := o.periods
+	if len(periods) == 0 {
+		periods = sim.DefaultPeriods()
+	}
+	if th.Period != "" && o.hedgeFile == "" && !slices.Contains(periods, th.Period) {
+		return usagef("simulate: --exceed %s: period %q is not simulated; the run's periods are %s (add it with --period)",
+			s, th.Period, strings.Join(periods, ", "))
 	}
 	return nil
 }
