@@ -1,8 +1,12 @@
 package sim
 
 import (
+	"slices"
 	"strings"
 	"testing"
+	"time"
+
+	"wxstress/calendar"
 )
 
 func TestParsePeriod(t *testing.T) {
@@ -74,5 +78,25 @@ func TestParseThreshold(t *testing.T) {
 		if _, err := ParseThreshold(bad); err == nil {
 			t.Errorf("%q accepted", bad)
 		}
+	}
+}
+
+// TestDateSpread checks the day-of-the-peak summary on a hand-made heating
+// season of 2026 (1 Nov 2025 = day 1): days 1 and 31 fall in November and
+// December, 62 and 62 on 1 January, 151 on 31 March; the lower median of
+// {1, 31, 62, 62, 151} is day 62, 1 January 2026.
+func TestDateSpread(t *testing.T) {
+	t.Parallel()
+	p, err := ParsePeriod("heating", 2026)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := dateSpread(p, []float64{62, 151, 1, 62, 31})
+	if want := calendar.FromYMD(2026, time.January, 1); d.Median != want {
+		t.Errorf("median %s, want %s", d.Median, want)
+	}
+	want := []MonthShare{{time.November, 0.2}, {time.December, 0.2}, {time.January, 0.4}, {time.March, 0.2}}
+	if !slices.Equal(d.Months, want) {
+		t.Errorf("months %v, want %v (calendar order within the period, empty months left out)", d.Months, want)
 	}
 }

@@ -3,12 +3,15 @@ package sim
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/stat"
 
+	"wxstress/calendar"
 	"wxstress/model"
 )
 
@@ -20,6 +23,47 @@ type Row struct {
 	Unit   string
 	Info   Info
 	Tail   Tail
+	// Dates, for the day of the peak only, is the distribution of the
+	// dates the index stands for; its Tail is then only a count of days.
+	Dates *DateSpread
+}
+
+// DateSpread is the distribution of a date across paths: the median date
+// and the share of paths in each calendar month.
+type DateSpread struct {
+	Median calendar.Date
+	// Months holds the months with any paths, in calendar order within
+	// the period (December before January for a winter period).
+	Months []MonthShare
+}
+
+// MonthShare is the share of paths whose date falls in Month.
+type MonthShare struct {
+	Month time.Month
+	Share float64
+}
+
+// dateSpread summarizes day-of-period values (1 = the period's first day).
+func dateSpread(p Period, days []float64) *DateSpread {
+	if len(days) == 0 {
+		return nil
+	}
+	sorted := slices.Clone(days)
+	slices.Sort(sorted)
+	// The lower median: a whole day, and a day of the period.
+	ds := &DateSpread{Median: p.From + calendar.Date(sorted[(len(sorted)-1)/2]) - 1}
+	count := map[time.Month]int{}
+	for _, d := range days {
+		count[(p.From+calendar.Date(d)-1).Month()]++
+	}
+	seen := map[time.Month]bool{}
+	for d := p.From; d <= p.To; d++ {
+		if m := d.Month(); !seen[m] && count[m] > 0 {
+			seen[m] = true
+			ds.Months = append(ds.Months, MonthShare{m, float64(count[m]) / float64(len(days))})
+		}
+	}
+	return ds
 }
 
 // Threshold asks for the probability that an index is worse than Value:
@@ -88,6 +132,9 @@ func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 		g.Go(func() error {
 			rows[i] = Row{Index: a.Index, Period: a.Period.Name, Name: in.Name, Unit: in.Unit(units, demandUnit), Info: in,
 				Tail: SummarizeWith(a.Values, in.HighIsAdverse, ths, r.Config.ReturnPeriods)}
+			if a.Index == PeakDay {
+				rows[i].Dates = dateSpread(a.Period, a.Values)
+			}
 			return nil
 		})
 	}

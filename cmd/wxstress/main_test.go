@@ -543,3 +543,22 @@ func TestDemoSummary(t *testing.T) {
 		t.Errorf("found %d of the 2 headline rows (HDD and demand energy, heating) in:\n%s", checked, out)
 	}
 }
+
+// TestDetailDayOfPeakIsADate checks that --detail gives the day of the peak
+// as dates (median and month shares), never as a column of VaR, ES or
+// return levels, and leaves it out of the scenario comparison.
+func TestDetailDayOfPeakIsADate(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"),
+		"--demand", filepath.Join(dir, "demand.json"), "--paths", "300", "--detail", "--scenario", "warm-1c")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if strings.Contains(out, "day of the peak (") {
+		t.Errorf("the day of the peak is still tabled as a level:\n%s", out)
+	}
+	if n := strings.Count(out, "Day of the peak: median "); n != 3 {
+		t.Errorf("%d date lines, want one per period (3):\n%s", n, out)
+	}
+}

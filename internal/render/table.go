@@ -7,6 +7,8 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"wxstress/internal/numfmt"
+
 	"github.com/olekukonko/tablewriter"
 	"github.com/olekukonko/tablewriter/tw"
 )
@@ -44,7 +46,7 @@ func Num(v float64, d int) string {
 	if math.IsNaN(v) {
 		return "—"
 	}
-	return fmt.Sprintf("%.*f", d, v)
+	return numfmt.Fixed(v, d)
 }
 
 // PValue formats a p-value: "< 0.0001" below that.

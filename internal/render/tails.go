@@ -6,9 +6,11 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
+	"wxstress/calendar"
 	"wxstress/evidence"
 	"wxstress/internal/numfmt"
 
@@ -117,6 +119,15 @@ type jsonRow struct {
 	// Band is the parameter-uncertainty band of the tail numbers (with
 	// --uncertainty in band mode).
 	Band *jsonRowBands `json:"band,omitempty"`
+	// Dates is, for the day of the peak, the median date and the share of
+	// paths in each month (its tail numbers count days of the period).
+	Dates *jsonDates `json:"dates,omitempty"`
+}
+
+// jsonDates is a DateSpread in the JSON output.
+type jsonDates struct {
+	Median      calendar.Date      `json:"median"`
+	MonthShares map[string]float64 `json:"month_shares"` // by month name, "January" ...
 }
 
 // jsonMCSE is the Monte Carlo error of a row's tail numbers.
@@ -212,6 +223,12 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 		}
 		for _, e := range t.Exceedances {
 			j.Exceedance = append(j.Exceedance, jsonExceed{e.Threshold, e.Prob, e.SE})
+		}
+		if d := r.Dates; d != nil {
+			j.Dates = &jsonDates{Median: d.Median, MonthShares: map[string]float64{}}
+			for _, m := range d.Months {
+				j.Dates.MonthShares[m.Month.String()] = m.Share
+			}
 		}
 		out[i] = j
 	}
@@ -384,8 +401,18 @@ func SimTables(w io.Writer, r *SimReport) error {
 		e.printf("\nPeriod: %s\n", group[0].Period)
 		weather, demand := splitDemand(group)
 		writeTailTable(e, weather)
+		var dates []sim.Row
+		demand = slices.DeleteFunc(demand, func(r sim.Row) bool {
+			if r.Dates != nil {
+				dates = append(dates, r)
+			}
+			return r.Index == sim.PeakDay
+		})
 		if len(demand) > 0 {
 			writeTailTable(e, demand)
+		}
+		for _, r := range dates {
+			e.printf("  %s\n", DatesText(r))
 		}
 		for _, row := range group {
 			for _, x := range row.Tail.Exceedances {
@@ -627,6 +654,9 @@ func writeComparison(e *errWriter, r *SimReport) {
 		e.printf("  %s: %s\n", sc.Name, strings.Join(sc.What, "; "))
 	}
 	for k, base := range r.Rows {
+		if base.Index == sim.PeakDay {
+			continue // a date: its spread is under the period's tables
+		}
 		e.printf("\n%s, %s (%s)\n", base.Name, base.Period, base.Unit)
 		rows := [][]string{compRow("baseline", base.Tail, "")}
 		for _, sc := range r.Scenarios {
@@ -668,4 +698,18 @@ func NewSimReport(res *stress.Result) *SimReport {
 		}
 	}
 	return r
+}
+
+// DatesText words the date spread of a row (the day of the peak): the
+// median date and the months that hold at least 1 % of the paths.
+func DatesText(r sim.Row) string {
+	d := r.Dates
+	var parts []string
+	for _, m := range d.Months {
+		if m.Share >= 0.01 {
+			parts = append(parts, fmt.Sprintf("%s %s", m.Month.String()[:3], numfmt.Percent(m.Share)))
+		}
+	}
+	return fmt.Sprintf("%s: median %s; by month %s", strings.ToUpper(r.Name[:1])+r.Name[1:],
+		d.Median.Time().Format("2 Jan 2006"), strings.Join(parts, ", "))
 }

@@ -428,7 +428,7 @@ func TestReportNumbersMatchJSON(t *testing.T) {
 			t.Errorf("cell %s/%s/%s/%s: no such statistic in the JSON", scen, period, index, stat)
 			return
 		}
-		got, err := strconv.ParseFloat(cell, 64)
+		got, err := strconv.ParseFloat(strings.ReplaceAll(cell, ",", ""), 64) // thousands separators
 		if err != nil {
 			t.Errorf("cell %s/%s/%s/%s = %q is not a number", scen, period, index, stat, cell)
 			return
