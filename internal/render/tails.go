@@ -663,13 +663,12 @@ func writeComparison(e *errWriter, r *SimReport) {
 			c := sc.Changes[k]
 			rows = append(rows, compRow(sc.Name, sc.Rows[k].Tail, ChangeText(c.Mean, c.MeanSE)))
 		}
-		e.table([]string{"scenario", "mean", "P50", "P95", "P99", "ES 95%", "1-in-20", "change of mean ± s.e."}, rows)
+		e.table([]string{"scenario", "mean", "P50", "1-in-20 (adverse P95)", "1-in-100 (adverse P99)", "ES 95%", "change of mean ± s.e."}, rows)
 	}
 }
 
 func compRow(name string, t sim.Tail, change string) []string {
-	return []string{name, Num(t.Mean, 1), Num(t.Quantile(0.50), 1), Num(t.Quantile(0.95), 1), Num(t.Quantile(0.99), 1),
-		Num(t.ES95, 1), Num(t.ReturnLevel(20), 1), change}
+	return []string{name, Num(t.Mean, 1), Num(t.Quantile(0.50), 1), Num(t.VaR95, 1), Num(t.VaR99, 1), Num(t.ES95, 1), change}
 }
 
 // NewSimReport lays out a stress run's simulation for the renderers: the

@@ -504,13 +504,15 @@ func (b *builder) compareTable(group []sim.Row) compareTable {
 		for _, c := range []struct {
 			stat string
 			v    float64
-		}{{"mean", tl.Mean}, {"p50", tl.Quantile(0.50)}, {"p95", tl.Quantile(0.95)}, {"p99", tl.Quantile(0.99)},
-			{"es95", tl.ES95}, {"rl20", tl.ReturnLevel(20)}} {
+		}{{"mean", tl.Mean}, {"p50", tl.Quantile(0.50)}, {"var95", tl.VaR95}, {"var99", tl.VaR99}, {"es95", tl.ES95}} {
 			out = append(out, newNumCell(scen, row, c.stat, fixed(c.v, valueDecimals)))
 		}
 		return out
 	}
 	for _, base := range group {
+		if base.Index == sim.PeakDay {
+			continue // a date, not a level
+		}
 		k := rowPosition(s.Rows, base)
 		ix := compareIndex{Name: base.Name, Unit: base.Unit, Adverse: render.AdverseSide(base), Baseline: cells("baseline", base)}
 		for _, sc := range s.Scenarios {
