@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -432,6 +433,56 @@ func TestDemoWritesTheReport(t *testing.T) {
 	}
 	if !strings.Contains(html, "not forecasts") || !strings.Contains(html, "licensed professional judgement") {
 		t.Error("report lacks the cautions")
+	}
+	// The report opens with the terminal's summary: the same key-figure rows.
+	i := strings.Index(html, `id="summary"`)
+	if i < 0 || i > strings.Index(html, `class="intro"`) {
+		t.Fatal("the report does not open with the summary")
+	}
+	found := false
+	for _, l := range strings.Split(demoStdout, "\n") {
+		if !strings.HasPrefix(l, "│ HDD, heating ") {
+			continue
+		}
+		found = true
+		cells := strings.Split(l, "│")
+		row := "<th scope=\"row\">HDD, heating</th>"
+		for _, c := range cells[2:7] {
+			row += `<td class="n">` + strings.TrimSpace(c) + "</td>"
+		}
+		if !strings.Contains(html, row) {
+			t.Errorf("the report's summary lacks the terminal's row %q", row)
+		}
+	}
+	if !found {
+		t.Errorf("no HDD, heating row in the demo's summary:\n%s", demoStdout)
+	}
+}
+
+// TestSimulateReportTitle checks --title and the default title, which
+// names the target year and the station rather than the model file.
+func TestSimulateReportTitle(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{nil, "<title>Synthetic years of 2026: Kestrel Bay Airfield (invented demonstration data)</title>"},
+		{[]string{"--title", "Winter book <2026>"}, "<title>Winter book &lt;2026&gt;</title>"},
+	} {
+		p := filepath.Join(dir, fmt.Sprintf("r%d.html", len(c.args)))
+		args := append([]string{"simulate", "--model", demoModel(t), "--paths", "100", "--report", p}, c.args...)
+		if code, _, stderr := call(t, context.Background(), args...); code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(b), c.want) {
+			t.Errorf("%v: the report lacks %q", c.args, c.want)
+		}
 	}
 }
 

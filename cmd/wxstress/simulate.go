@@ -69,6 +69,7 @@ type simulateOptions struct {
 	report    string
 	force     bool
 	detail    bool
+	title     string
 	maxMemory string
 	hedgeFile string
 	loading   float64
@@ -120,6 +121,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.format, "format", "table", "output: table, csv or json")
 	fs.BoolVar(&o.force, "force", false, "replace existing output files")
 	fs.BoolVar(&o.detail, "detail", false, "print the full tail tables instead of the one-page summary")
+	fs.StringVar(&o.title, "title", "", "with --report: the report's title (default: the station the model describes)")
 	fs.StringVar(&o.maxMemory, "max-memory", "", "refuse a run whose estimated memory is above this, e.g. 8G (default: half the machine's memory)")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
@@ -395,7 +397,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	if o.report != "" {
 		meta := report.Meta{
-			Title: "Synthetic years of " + filepath.Base(o.modelPath), Created: time.Now(), RunTime: time.Since(start),
+			Title: o.reportTitle(m, rep.Manifest.Year), Created: time.Now(), RunTime: time.Since(start),
 			Inputs:   []report.InputFile{{Role: "model", Name: o.modelPath, SHA256: sum}},
 			Manifest: rep.Manifest,
 		}
@@ -434,4 +436,17 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		fmt.Fprintf(stdout, "Report written to %s\n", o.report)
 	}
 	return nil
+}
+
+// reportTitle is --title, or names the station the model describes (the
+// model file's name when the fit recorded no description).
+func (o *simulateOptions) reportTitle(m *model.File, year int) string {
+	if o.title != "" {
+		return o.title
+	}
+	station := m.Data.Description
+	if station == "" {
+		station = filepath.Base(m.Data.File)
+	}
+	return fmt.Sprintf("Synthetic years of %d: %s", year, station)
 }

@@ -47,27 +47,39 @@ func ModelLine(m *model.File) string {
 	return strings.Join(parts, ", ")
 }
 
-// SimSummary writes the one-page summary of a run: the figures each user
-// came for — season degree days and energy at the median, 1-in-20 and
-// 1-in-50 with the expected shortfall, the design day and capacity, the
-// hedged position, baseline against scenarios — then the warnings. The
-// full tables are SimTables.
-func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
-	e := &errWriter{w: w}
+// Summary is the one-page summary of a run, laid out once for the terminal
+// and the HTML report: the figures each user came for — season degree days
+// and energy at the median, 1-in-20 and 1-in-50 with the expected
+// shortfall, the design day and capacity, the hedged position, baseline
+// against scenarios — then the warnings. The full tables are SimTables.
+type Summary struct {
+	Run      []string // what was run: paths, year, start, model, season under way
+	KeyTitle string
+	KeyHead  []string
+	KeyRows  [][]string
+	Notes    []string // exceedances, design days, capacities, the hedge
+	ScenHead []string // nil without scenarios
+	ScenRows [][]string
+	Warnings []string
+}
+
+// NewSummary lays out the summary of r; m (the temperature model) may be
+// nil.
+func NewSummary(r *SimReport, m *model.File) *Summary {
+	sm := &Summary{KeyTitle: "Key figures (adverse side: high for degree days and demand, low for the coldest day)"}
 	mf := r.Manifest
-	e.printf("%s synthetic years of %d (%s start, seed %d), %d periods: %s\n", numfmt.Number(float64(mf.Paths)), mf.Year,
-		mf.Start, mf.Seed, len(mf.Periods), strings.Join(mf.Periods, ", "))
+	sm.Run = append(sm.Run, fmt.Sprintf("%s synthetic years of %d (%s start, seed %d), %d periods: %s",
+		numfmt.Number(float64(mf.Paths)), mf.Year, mf.Start, mf.Seed, len(mf.Periods), strings.Join(mf.Periods, ", ")))
 	if m != nil {
-		e.printf("%s\n", Wrap("Model: "+ModelLine(m), "  "))
+		sm.Run = append(sm.Run, "Model: "+ModelLine(m))
 	}
 	for _, o := range r.InSeason {
 		if o.Days > 0 {
-			e.printf("Season under way: %s, %d days observed, HDD so far %s\n", o.Period, o.Days, numfmt.Fixed(o.Values[sim.HDD], 0))
+			sm.Run = append(sm.Run, fmt.Sprintf("Season under way: %s, %d days observed, HDD so far %s", o.Period, o.Days,
+				numfmt.Fixed(o.Values[sim.HDD], 0)))
 		}
 	}
 
-	// Key figures.
-	var rows [][]string
 	bandCol := len(r.Bands) > 0
 	for _, x := range summaryIndices {
 		for k, row := range r.Rows {
@@ -75,27 +87,25 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 				continue
 			}
 			t := row.Tail
-			v := func(val, se float64) string { return numfmt.Value(val, se) }
 			line := []string{row.Name + ", " + row.Period, row.Unit,
-				v(t.Quantile(0.5), t.QuantileSE[4]), v(t.ReturnLevel(20), t.ReturnLevelError(20)),
-				v(t.ReturnLevel(50), t.ReturnLevelError(50)), v(t.ES95, t.ES95SE)}
+				numfmt.Value(t.Quantile(0.5), t.QuantileSE[4]), numfmt.Value(t.ReturnLevel(20), t.ReturnLevelError(20)),
+				numfmt.Value(t.ReturnLevel(50), t.ReturnLevelError(50)), numfmt.Value(t.ES95, t.ES95SE)}
 			if bandCol {
-				b := r.Bands[k].RL20
-				line = append(line, fmt.Sprintf("%s to %s", numfmt.Value(b.Lo, t.ReturnLevelError(20)), numfmt.Value(b.Hi, t.ReturnLevelError(20))))
+				b, se := r.Bands[k].RL20, t.ReturnLevelError(20)
+				line = append(line, fmt.Sprintf("%s to %s", numfmt.Value(b.Lo, se), numfmt.Value(b.Hi, se)))
 			}
-			rows = append(rows, line)
+			sm.KeyRows = append(sm.KeyRows, line)
 		}
 	}
-	head := []string{"index, period", "unit", "P50", "1-in-20", "1-in-50", "ES 95%"}
+	sm.KeyHead = []string{"index, period", "unit", "P50", "1-in-20", "1-in-50", "ES 95%"}
 	if bandCol {
-		head = append(head, "1-in-20, 90% band")
+		sm.KeyHead = append(sm.KeyHead, "1-in-20, 90% band")
 	}
-	e.printf("\nKey figures (adverse side: high for degree days and demand, low for the coldest day)\n")
-	e.table(head, rows)
 	for _, row := range r.Rows {
 		for _, x := range row.Tail.Exceedances {
-			e.printf("  P(%s, %s %s %s) = %s %s\n", row.Name, row.Period, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
-				numfmt.Number(x.Threshold), numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE))
+			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s) = %s %s", row.Name, row.Period,
+				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold),
+				numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE)))
 		}
 	}
 
@@ -115,46 +125,60 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 		if !math.IsNaN(d.Peak) {
 			line += ", demand " + numfmt.Value(d.Peak, d.PeakSE) + peakUnit
 		}
-		e.printf("%s\n", line)
+		sm.Notes = append(sm.Notes, line)
 	}
 	for _, c := range r.Capacities {
-		e.printf("Capacity for %s, %s: %s%s\n", c.Target, c.Period, numfmt.ValueSE(c.Capacity, c.SE), peakUnit)
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity for %s, %s: %s%s", c.Target, c.Period, numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
 	}
 	if h := r.Hedge; h != nil {
-		e.printf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges remove %s of its variance\n",
-			r.HedgeFile.Currency, numfmt.Fixed(h.Unhedged.ES95, 0), numfmt.Fixed(h.Hedged.ES95, 0), numfmt.Percent(h.VarianceReduction))
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges remove %s of its variance",
+			r.HedgeFile.Currency, numfmt.Fixed(h.Unhedged.ES95, 0), numfmt.Fixed(h.Hedged.ES95, 0), numfmt.Percent(h.VarianceReduction)))
 	}
 
 	// Scenarios: the change of the mean of the first few key figures.
 	if len(r.Scenarios) > 0 {
-		var keys []int
-		for _, x := range []sim.Index{sim.HDD, sim.Energy, sim.PeakDemand, sim.Coldest} {
-			for k, row := range r.Rows {
-				if row.Index == x && occurs(row) && len(keys) < 3 && !slices.ContainsFunc(keys, func(j int) bool { return r.Rows[j].Index == x }) {
-					if row.Period == "heating" || !slices.ContainsFunc(r.Rows, func(q sim.Row) bool { return q.Index == x && q.Period == "heating" }) {
-						keys = append(keys, k)
-					}
-				}
-			}
-		}
-		head := []string{"scenario: change of the mean"}
+		keys := scenarioKeys(r.Rows)
+		sm.ScenHead = []string{"scenario: change of the mean"}
 		for _, k := range keys {
-			head = append(head, r.Rows[k].Name+", "+r.Rows[k].Period)
+			sm.ScenHead = append(sm.ScenHead, r.Rows[k].Name+", "+r.Rows[k].Period)
 		}
-		var rows [][]string
 		for _, sc := range r.Scenarios {
 			line := []string{sc.Name}
 			for _, k := range keys {
 				c := sc.Changes[k]
 				line = append(line, ChangeText(c.Mean, c.MeanSE))
 			}
-			rows = append(rows, line)
+			sm.ScenRows = append(sm.ScenRows, line)
 		}
-		e.printf("\n")
-		e.table(head, rows)
 	}
+	sm.Warnings = summaryWarnings(r, m)
+	return sm
+}
 
-	// Warnings.
+// scenarioKeys picks the rows of the summary's scenario table: up to three
+// of HDD, demand energy, peak-day demand and the coldest day, each for the
+// heating season when the run has it.
+func scenarioKeys(rows []sim.Row) []int {
+	var keys []int
+	for _, x := range []sim.Index{sim.HDD, sim.Energy, sim.PeakDemand, sim.Coldest} {
+		if len(keys) == 3 {
+			break
+		}
+		hasHeating := slices.ContainsFunc(rows, func(q sim.Row) bool { return q.Index == x && q.Period == "heating" })
+		for k, row := range rows {
+			if row.Index == x && occurs(row) && (row.Period == "heating" || !hasHeating) {
+				keys = append(keys, k)
+				break
+			}
+		}
+	}
+	return keys
+}
+
+// summaryWarnings collects what should make a reader doubt the figures:
+// Monte Carlo error (in one line), the record's spread outside the model's
+// band, return levels outside the GEV interval, and the fit's spread check.
+func summaryWarnings(r *SimReport, m *model.File) []string {
 	var warns []string
 	if w := mcSummary(r.Rows); w != "" {
 		warns = append(warns, w)
@@ -183,9 +207,28 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 			}
 		}
 	}
-	if len(warns) > 0 {
+	return warns
+}
+
+// SimSummary writes the one-page summary (NewSummary) for the terminal.
+func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
+	sm := NewSummary(r, m)
+	e := &errWriter{w: w}
+	for _, l := range sm.Run {
+		e.printf("%s\n", Wrap(l, "  "))
+	}
+	e.printf("\n%s\n", sm.KeyTitle)
+	e.table(sm.KeyHead, sm.KeyRows)
+	for _, n := range sm.Notes {
+		e.printf("%s\n", Wrap(n, "  "))
+	}
+	if sm.ScenHead != nil {
+		e.printf("\n")
+		e.table(sm.ScenHead, sm.ScenRows)
+	}
+	if len(sm.Warnings) > 0 {
 		e.printf("\nWarnings\n")
-		for _, w := range warns {
+		for _, w := range sm.Warnings {
 			e.printf("%s\n", wrap("  - "+w, wrapWidth, "    "))
 		}
 	}

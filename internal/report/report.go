@@ -106,6 +106,9 @@ type page struct {
 	CSS                      template.CSS
 	Facts                    [][2]string   // label, value
 	Sections                 []pageSection // the present ones, in order
+	// Summary is the one-page summary of a simulation, the same as the
+	// terminal's; nil for a report without one.
+	Summary *render.Summary
 }
 
 // pageSection is one numbered top-level section; Body is the value of the
@@ -127,6 +130,9 @@ func (b *builder) page() (*page, error) {
 	}
 	p := &page{Title: title, Subtitle: b.subtitle(), Caution: render.Caution, CSS: template.CSS(styleSheet),
 		Facts: b.facts()}
+	if in.Sim != nil {
+		p.Summary = render.NewSummary(in.Sim, in.Model)
+	}
 	for _, s := range []struct {
 		id, title string
 		present   bool
