@@ -29,7 +29,7 @@ const (
 
 // Indices returns the index keys a contract or an exposure may name (a new
 // slice each time); energy and peak need a run with a demand model.
-func Indices() []string { return []string{"hdd", "cdd", "energy", "peak"} }
+func Indices() []string { return []string{"hdd", "cdd", "energy", "peak-demand"} }
 
 // Key names a per-path value the simulator produces: an index (one of
 // Indices(), a sim.Index key) over a period (a sim.ParsePeriod name, lower
@@ -41,7 +41,7 @@ type Key struct {
 func (k Key) String() string { return k.Index + "/" + k.Period }
 
 // NeedsDemand reports whether the index is a demand index.
-func (k Key) NeedsDemand() bool { return k.Index == "energy" || k.Index == "peak" }
+func (k Key) NeedsDemand() bool { return k.Index == "energy" || k.Index == "peak-demand" }
 
 // File is a hedge file: the retailer's exposure and its contracts.
 type File struct {

@@ -54,8 +54,8 @@ var indexInfo = [...]Info{
 	ColdSpell: {"cold-spell", "longest cold spell", true, "days"},
 
 	Energy:       {"energy", "demand energy", true, "energy"},
-	PeakDemand:   {"peak", "peak-day demand", true, "demand"},
-	PeakDay:      {"peak-day", "day of the peak", true, "day of period"},
+	PeakDemand:   {"peak-demand", "peak-day demand", true, "demand"},
+	PeakDay:      {"peak-date", "day of the peak", true, "day of period"},
 	OverCapacity: {"over-capacity", "days over capacity", true, "days"},
 
 	ColdSnap:   {"cold-snap", "coldest k-day mean", false, "deg"},

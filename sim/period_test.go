@@ -66,7 +66,7 @@ func TestParseThreshold(t *testing.T) {
 		{"HDD:heating:2800.5", HDD, "heating", 2800.5},
 		{"coldest:-15", Coldest, "", -15},
 		{"hdd:12-01:02-28:1500", HDD, "12-01:02-28", 1500},
-		{"peak:year:130000", PeakDemand, "year", 130000},
+		{"peak-demand:year:130000", PeakDemand, "year", 130000},
 	}
 	for _, c := range cases {
 		th, err := ParseThreshold(c.in)

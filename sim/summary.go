@@ -92,7 +92,7 @@ func ParseThreshold(s string) (Threshold, error) {
 		return th, fmt.Errorf("sim: threshold %q: unknown index %q: want one of %s", s, key, strings.Join(IndexKeys(), ", "))
 	}
 	if x == PeakDay {
-		return th, fmt.Errorf("sim: threshold %q: the day of the peak is a date, not a level; for the peak-day demand use peak", s)
+		return th, fmt.Errorf("sim: threshold %q: the day of the peak is a date, not a level; for the peak-day demand use peak-demand", s)
 	}
 	v, err := strconv.ParseFloat(value, 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {

@@ -86,7 +86,7 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--exceed", "frost:3"}, exitUsage, "unknown index"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:heating:NaN"}, exitUsage, "not a finite number"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:Inf"}, exitUsage, "not a finite number"},
-		{[]string{"simulate", "--model", "m.json", "--exceed", "peak-day:heating:40"}, exitUsage, "the day of the peak is a date"},
+		{[]string{"simulate", "--model", "m.json", "--exceed", "peak-date:heating:40"}, exitUsage, "the day of the peak is a date"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "energy:heating:1e7"}, exitUsage, "demand energy needs --demand"},
 		{[]string{"simulate", "--model", "m.json", "--demand", "d.json", "--exceed", "over-capacity:3"}, exitUsage, "needs --capacity"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "cold-snap:heating:-12"}, exitUsage, "need --design"},

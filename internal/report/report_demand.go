@@ -187,7 +187,7 @@ func (b *builder) planning() (*planningBlock, error) {
 	in := b.in
 	var peaks []sim.Row
 	for _, row := range in.Sim.Rows {
-		if row.Index == sim.PeakDemand && row.Info.Key == "peak" {
+		if row.Index == sim.PeakDemand && row.Info.Key == "peak-demand" {
 			peaks = append(peaks, row)
 		}
 	}

@@ -53,7 +53,7 @@ func isDemandRow(r sim.Row) bool {
 
 // hasExceedance reports whether an exceedance curve of the row means
 // anything: not for the day of the peak, a date rather than a level.
-func hasExceedance(r sim.Row) bool { return r.Index != sim.PeakDay && r.Info.Key != "peak-day" }
+func hasExceedance(r sim.Row) bool { return r.Index != sim.PeakDay && r.Info.Key != "peak-date" }
 
 func temperatureRows(rows []sim.Row) []sim.Row {
 	var out []sim.Row
