@@ -529,3 +529,36 @@ func TestDemandRecoversDemoTruth(t *testing.T) {
 		}
 	}
 }
+
+// TestReadDemandLoadColumn checks LoadColumn: it picks a column with any
+// name (here among two that read as loads), matched without regard to case,
+// and a name that is absent or is the date column is an error on the header
+// line that lists the columns found.
+func TestReadDemandLoadColumn(t *testing.T) {
+	t.Parallel()
+	start := calendar.FromYMD(2021, time.January, 1)
+	body := demandCSV(start, 400, nil)
+	body = body[strings.IndexByte(body, '\n')+1:]
+	var text strings.Builder
+	text.WriteString("date,sendout_gj,holiday,load\n")
+	for _, line := range strings.Split(strings.TrimSpace(body), "\n") {
+		f := strings.Split(line, ",")
+		text.WriteString(f[0] + "," + f[1] + "," + f[2] + ",1\n")
+	}
+	d, err := ReadDemand(strings.NewReader(text.String()), "d.csv", DemandReadOptions{LoadColumn: " SENDOUT_GJ "})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.LoadColumn != "sendout_gj" || d.Load[0] == 1 {
+		t.Errorf("load column %q, first load %v: want the sendout_gj column", d.LoadColumn, d.Load[0])
+	}
+	for _, c := range []struct{ col, want string }{
+		{"gas", `d.csv:1: load column "gas" not found; columns found: "date", "sendout_gj", "holiday", "load"`},
+		{"Date", `d.csv:1: load column "Date" is the date column`},
+	} {
+		_, err := ReadDemand(strings.NewReader(text.String()), "d.csv", DemandReadOptions{LoadColumn: c.col})
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("LoadColumn %q: error %v, want %q", c.col, err, c.want)
+		}
+	}
+}

@@ -20,6 +20,9 @@ type DemandReadOptions struct {
 	Holidays *Holidays
 	// HolidaysName names the list in messages and in the model file.
 	HolidaysName string
+	// LoadColumn names the load column (matched without regard to case);
+	// "" looks for one of the accepted names (load, demand, ...).
+	LoadColumn string
 }
 
 // DemandSeries is a daily demand history as read: one entry per data row, in
@@ -107,10 +110,14 @@ func (p *demandParser) readHeader() error {
 		return err
 	}
 	p.date = p.find(dateNames, "the date", true)
-	p.load = p.find(loadNames, "the load", true)
 	p.holiday = p.find(holidayNames, "the holiday flag", true)
 	p.needColumn(p.date, "date", dateNames)
-	p.needColumn(p.load, "load", loadNames)
+	if p.opt.LoadColumn != "" {
+		p.load = p.namedColumn(p.opt.LoadColumn, "load")
+	} else {
+		p.load = p.find(loadNames, "the load", true)
+		p.needColumn(p.load, "load", loadNames)
+	}
 	if len(p.errs) > 0 {
 		return p.errList()
 	}

@@ -169,14 +169,7 @@ func (p *tempParser) readHeader() error {
 	hi, lo := p.find(maxNames, "", false), p.find(minNames, "", false)
 	switch {
 	case p.opt.MeanColumn != "":
-		want := strings.TrimSpace(p.opt.MeanColumn)
-		p.mean = slicesIndexFold(p.header, want)
-		switch {
-		case p.mean < 0:
-			p.errorf(p.headerLine, 0, "", "mean column %s not found; columns found: %s", quote(want), p.listColumns())
-		case p.mean == p.date:
-			p.errorf(p.headerLine, 0, "", "mean column %s is the date column", quote(want))
-		default:
+		if p.mean = p.namedColumn(p.opt.MeanColumn, "mean"); p.mean >= 0 {
 			p.meanFrom = "column " + p.header[p.mean]
 		}
 	case hi >= 0 && lo >= 0:

@@ -285,6 +285,23 @@ func (s *rowScanner) needColumn(index int, role string, names []string) {
 	}
 }
 
+// namedColumn finds the column a flag names (matched without regard to
+// case or surrounding space) for role ("mean", "load"), and records an error
+// on the header line when there is none or it is the date column; it then
+// returns −1. The date column must be found first.
+func (s *rowScanner) namedColumn(want, role string) int {
+	want = strings.TrimSpace(want)
+	i := slicesIndexFold(s.header, want)
+	switch {
+	case i < 0:
+		s.errorf(s.headerLine, 0, "", "%s column %s not found; columns found: %s", role, quote(want), s.listColumns())
+	case i == s.date:
+		s.errorf(s.headerLine, 0, "", "%s column %s is the date column", role, quote(want))
+		return -1
+	}
+	return i
+}
+
 func slicesIndexFold(list []string, s string) int {
 	for i, v := range list {
 		if strings.EqualFold(v, s) {

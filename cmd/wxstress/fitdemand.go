@@ -15,7 +15,7 @@ import (
 )
 
 var fitDemandUsage = helpText{
-	usage: "wxstress fit-demand --temps FILE.csv --demand FILE.csv --unit UNIT [--out demand.json] [flags]",
+	usage: "wxstress fit-demand --temps FILE.csv --demand FILE.csv --load-unit UNIT [--out demand.json] [flags]",
 	about: `Fit a change-point model of daily demand to the daily mean temperature:
 
   D = β0 + weekday terms + βhol·holiday + βH·max(TbH − T, 0) + βC·max(T − TbC, 0) + u
@@ -42,14 +42,16 @@ YYYY-MM-DD; a rule is one of
 Rules give their day in every year of the demand record.
 The temperature CSV is read as by 'wxstress fit'; every demand day must lie
 within it, and days without a temperature are left out.`,
-	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --out demand.json
-  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --holidays holidays.txt --form heating-and-cooling-band
-  wxstress fit-demand --temps station.csv --demand load.csv --unit MWh/day --units F --format json
-  wxstress fit-demand --temps station.csv --demand sendout.csv --unit GJ/day --model model.json`,
+	examples: `  wxstress fit-demand --temps station.csv --demand sendout.csv --load-unit GJ/day --out demand.json
+  wxstress fit-demand --temps station.csv --demand meter.csv --load-column sendout_gj --load-unit GJ/day
+  wxstress fit-demand --temps station.csv --demand load.csv --load-unit MWh/day --holidays holidays.txt --form heating-and-cooling-band
+  wxstress fit-demand --temps station.csv --demand load.csv --load-unit MWh/day --units F --format json
+  wxstress fit-demand --temps station.csv --demand sendout.csv --load-unit GJ/day --model model.json`,
 }
 
 type fitDemandOptions struct {
 	temps, demand, holidays string
+	loadColumn              string
 	unit, form, units       string
 	out, format             string
 	modelPath               string
@@ -68,7 +70,8 @@ func newFitDemandFlags(o *fitDemandOptions) *pflag.FlagSet {
 func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
 	fs.StringVar(&o.demand, "demand", "", "daily demand CSV: date, load and an optional holiday column (required)")
-	fs.StringVar(&o.unit, "unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
+	fs.StringVar(&o.unit, "load-unit", "", "unit of the loads, e.g. GJ/day or MWh/day (required; recorded in the model)")
+	fs.StringVar(&o.loadColumn, "load-column", "", "the demand CSV's load column (default: one named load, demand, consumption or value)")
 	fs.StringVar(&o.holidays, "holidays", "", "holiday dates and rules (fixed 12-25, 4 Thu Nov, last Mon May, easter -2): one per line, or CSV with a date and/or rule column")
 	fs.StringVar(&o.noise, "noise", "auto", "scale of the residual noise: auto (by AIC), constant, load (in proportion to the expected load: the multiplicative form) or bands (σ by temperature quarter)")
 	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandFormNames(), ", "))
@@ -86,7 +89,7 @@ func (o *fitDemandOptions) validate() error {
 	case o.demand == "":
 		return usagef("fit-demand: --demand is required")
 	case strings.TrimSpace(o.unit) == "":
-		return usagef("fit-demand: --unit is required: the unit of the loads, e.g. GJ/day or MWh/day")
+		return usagef("fit-demand: --load-unit is required: the unit of the loads, e.g. GJ/day or MWh/day")
 	}
 	if o.format != "table" && o.format != "json" {
 		return usagef("fit-demand: --format %q: want table or json", o.format)
@@ -127,7 +130,7 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err != nil {
 		return err
 	}
-	var dopt calibrate.DemandReadOptions
+	dopt := calibrate.DemandReadOptions{LoadColumn: o.loadColumn}
 	if o.holidays != "" {
 		if dopt.Holidays, err = calibrate.ReadHolidaysFile(o.holidays); err != nil {
 			return err

@@ -32,7 +32,7 @@ func callFitDemand(t *testing.T, args ...string) (int, string, string) {
 func TestFitDemandSummary(t *testing.T) {
 	t.Parallel()
 	out := filepath.Join(t.TempDir(), "demand.json")
-	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day", "--out", out)
+	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day", "--out", out)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -70,7 +70,7 @@ func TestFitDemandJSON(t *testing.T) {
 	dir := t.TempDir()
 	hol := filepath.Join(dir, "holidays.txt")
 	os.WriteFile(hol, []byte("2021-01-01\n2023-06-05\n"), 0o644)
-	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day",
+	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day",
 		"--form", "heating-only", "--format", "json", "--holidays", hol)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
@@ -105,7 +105,7 @@ func TestFitDemandHolidayRules(t *testing.T) {
 	os.WriteFile(hol, []byte("date,rule,name\n2023-06-05,,Harbour Day\n,first Mon Jun,Harbour Day\n,easter +1,Easter Monday\n"+
 		",fixed 05-01,Labour Day\n"), 0o644)
 	out := filepath.Join(dir, "demand.json")
-	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day",
+	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day",
 		"--form", "heating-and-cooling-band", "--holidays", hol, "--out", out)
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
@@ -130,7 +130,7 @@ func TestFitDemandHolidayRules(t *testing.T) {
 	// A bad rule names its position and the accepted forms.
 	bad := filepath.Join(dir, "bad.csv")
 	os.WriteFile(bad, []byte("date,rule\n,5 Mon May\n"), 0o644)
-	code, _, stderr = callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day", "--holidays", bad)
+	code, _, stderr = callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day", "--holidays", bad)
 	if want := bad + `:2:2: not a holiday rule: "5 Mon May": a fifth Monday is not in every May: use last Mon May`; code != exitFailure ||
 		!strings.Contains(stderr, want) {
 		t.Errorf("bad rule: exit %d, stderr %q; want %q", code, stderr, want)
@@ -157,19 +157,19 @@ func TestFitDemandErrors(t *testing.T) {
 		code int
 		msg  string
 	}{
-		{[]string{"--demand", "d.csv", "--unit", "GJ/day"}, exitUsage, "--temps is required"},
-		{[]string{"--temps", "t.csv", "--unit", "GJ/day"}, exitUsage, "--demand is required"},
-		{[]string{"--temps", "t.csv", "--demand", "d.csv"}, exitUsage, "--unit is required"},
-		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--form", "6p"}, exitUsage,
+		{[]string{"--demand", "d.csv", "--load-unit", "GJ/day"}, exitUsage, "--temps is required"},
+		{[]string{"--temps", "t.csv", "--load-unit", "GJ/day"}, exitUsage, "--demand is required"},
+		{[]string{"--temps", "t.csv", "--demand", "d.csv"}, exitUsage, "--load-unit is required"},
+		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--load-unit", "GJ/day", "--form", "6p"}, exitUsage,
 			`--form "6p": want auto, heating-only, cooling-only, heating-and-cooling, heating-and-cooling-band`},
-		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--format", "xml"}, exitUsage, "want table or json"},
-		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day", "--units", "K"}, exitUsage, "want C or F"},
+		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--load-unit", "GJ/day", "--format", "xml"}, exitUsage, "want table or json"},
+		{[]string{"--temps", "t.csv", "--demand", "d.csv", "--load-unit", "GJ/day", "--units", "K"}, exitUsage, "want C or F"},
 		{[]string{"--bogus"}, exitUsage, "unknown flag"},
-		{[]string{"--temps", demoTemps, "--demand", "/nonexistent/d.csv", "--unit", "GJ/day"}, exitFailure, "no such file"},
-		{[]string{"--temps", demoTemps, "--demand", bad, "--unit", "GJ/day"}, exitFailure, bad + `:3:12: field load: not a number: "n/a"`},
-		{[]string{"--temps", demoTemps, "--demand", late, "--unit", "GJ/day"}, exitFailure,
+		{[]string{"--temps", demoTemps, "--demand", "/nonexistent/d.csv", "--load-unit", "GJ/day"}, exitFailure, "no such file"},
+		{[]string{"--temps", demoTemps, "--demand", bad, "--load-unit", "GJ/day"}, exitFailure, bad + `:3:12: field load: not a number: "n/a"`},
+		{[]string{"--temps", demoTemps, "--demand", late, "--load-unit", "GJ/day"}, exitFailure,
 			late + ":1828:1: field date: date 2026-01-01 is not covered by the temperature record " + demoTemps},
-		{[]string{"--temps", demoTemps, "--demand", demoDemand, "--unit", "GJ/day", "--holidays", badHol}, exitFailure,
+		{[]string{"--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day", "--holidays", badHol}, exitFailure,
 			badHol + `:2:1: not a date (YYYY-MM-DD) or a holiday rule: "Christmas": want fixed MM-DD (fixed 12-25)`},
 		{[]string{"-h"}, exitOK, "Exit status:"},
 	}

@@ -84,6 +84,9 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--period", "winter"}, exitUsage, "MM-DD:MM-DD"},
 		{[]string{"simulate", "--model", "m.json", "--period", "02-30:03-01"}, exitUsage, "malformed window"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "frost:3"}, exitUsage, "unknown index"},
+		{[]string{"fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv", "--demand", "../../demo/lanternfield_demand.csv",
+			"--load-unit", "GJ/day", "--load-column", "gas"}, exitFailure, `load column "gas" not found; columns found:`},
+		{[]string{"fit-demand", "--temps", "t.csv", "--demand", "d.csv", "--unit", "GJ/day"}, exitUsage, "unknown flag: --unit"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:heating:NaN"}, exitUsage, "not a finite number"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "hdd:Inf"}, exitUsage, "not a finite number"},
 		{[]string{"simulate", "--model", "m.json", "--exceed", "peak-date:heating:40"}, exitUsage, "the day of the peak is a date"},
@@ -295,7 +298,7 @@ func TestDemoRefusesToOverwrite(t *testing.T) {
 func TestFitDemandWithModelNormalizes(t *testing.T) {
 	t.Parallel()
 	code, out, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
-		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--model", demoModel(t))
+		"--demand", "../../demo/lanternfield_demand.csv", "--load-unit", "GJ/day", "--model", demoModel(t))
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -311,7 +314,7 @@ func TestSimulateWithDemand(t *testing.T) {
 	dir := t.TempDir()
 	dem := filepath.Join(dir, "demand.json")
 	if code, _, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
-		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--out", dem); code != 0 {
+		"--demand", "../../demo/lanternfield_demand.csv", "--load-unit", "GJ/day", "--out", dem); code != 0 {
 		t.Fatalf("fit-demand: %s", stderr)
 	}
 	code, out, stderr := call(t, context.Background(), "simulate", "--model", demoModel(t), "--demand", dem,
@@ -360,7 +363,7 @@ func TestSimulateHolidayRules(t *testing.T) {
 	dir := t.TempDir()
 	dem := filepath.Join(dir, "demand.json")
 	if code, _, stderr := call(t, context.Background(), "fit-demand", "--temps", "../../demo/kestrel_bay_daily.csv",
-		"--demand", "../../demo/lanternfield_demand.csv", "--unit", "GJ/day", "--out", dem); code != 0 {
+		"--demand", "../../demo/lanternfield_demand.csv", "--load-unit", "GJ/day", "--out", dem); code != 0 {
 		t.Fatalf("fit-demand: %s", stderr)
 	}
 	d, err := model.ReadDemand(dem)
