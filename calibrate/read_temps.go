@@ -106,6 +106,13 @@ const minDaysWithValues = 730
 // probably °F: no place on Earth has a calendar month averaging 45 °C.
 const fahrenheitHint = 45.0
 
+// celsiusHintF is the warmest calendar-month mean, in °F, below which data
+// declared as °F are flagged as probably °C: 40 °F (4.4 °C) is colder than
+// the warmest month of any station outside the polar regions, while °C data
+// read as °F put every station's warmest month below it, since none averages
+// 40 °C (a climatological fact, from memory; no standard sets it).
+const celsiusHintF = 40.0
+
 // longGap is the longest run of missing days that passes without a warning:
 // a gap of more than a year usually means a mistyped date.
 const longGap = 365
@@ -296,13 +303,19 @@ func (p *tempParser) series() (*Series, error) {
 			"%d days without values from %v to %v; check the dates on either side",
 			n, s.Date(from), s.Date(from+n-1)))
 	}
-	if s.Units == "" {
+	warm, ok := warmestMonthMean(s)
+	switch {
+	case s.Units == "":
 		s.Units = Celsius
-		if warm, ok := warmestMonthMean(s); ok && warm > fahrenheitHint {
+		if ok && warm > fahrenheitHint {
 			s.Warnings = append(s.Warnings, fmt.Sprintf(
 				"units not declared, so values are read as °C, but they look like °F (the warmest calendar month averages %.1f); if the file is in °F, pass --units F",
 				warm))
 		}
+	case s.Units == Fahrenheit && ok && warm < celsiusHintF:
+		s.Warnings = append(s.Warnings, fmt.Sprintf(
+			"values are read as °F, but they look like °C (the warmest calendar month averages %.1f °F, %.1f °C, colder than any but polar stations); if the file is in °C, drop --units F",
+			warm, Fahrenheit.Convert(warm, Celsius)))
 	}
 	return s, nil
 }

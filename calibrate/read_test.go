@@ -10,6 +10,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -598,5 +599,57 @@ func BenchmarkReadCSV(b *testing.B) {
 		if _, err := ReadCSV(strings.NewReader(text), "k.csv", ReadOptions{}); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// TestUnitsLookWrong checks the unit-sanity warnings on a real record: the
+// NOAA Seattle daily series (testdata/noaa, °C) read as declared °F is
+// flagged as probably °C, the same series converted to °F and read without
+// declared units is refused with the fix named, and each read in its own
+// units gives no warning.
+func TestUnitsLookWrong(t *testing.T) {
+	t.Parallel()
+	raw, err := os.ReadFile("../testdata/noaa/seattle.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	warned := func(s *Series, part string) bool {
+		return slices.ContainsFunc(s.Warnings, func(w string) bool { return strings.Contains(w, part) })
+	}
+	read := func(text string, u Units) *Series {
+		s, err := ReadCSV(strings.NewReader(text), "seattle.csv", ReadOptions{Units: u})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	if s := read(string(raw), ""); warned(s, "look like °") {
+		t.Errorf("°C read as °C: %q", s.Warnings)
+	}
+	if s := read(string(raw), Fahrenheit); !warned(s, "look like °C") || !warned(s, "drop --units F") {
+		t.Errorf("°C read as °F: %q", s.Warnings)
+	}
+	var f strings.Builder
+	for i, line := range strings.Split(strings.TrimSpace(string(raw)), "\n") {
+		if i == 0 {
+			f.WriteString(line + "\n")
+			continue
+		}
+		fields := strings.Split(line, ",")
+		for k := 1; k < len(fields); k++ {
+			if v, err := strconv.ParseFloat(fields[k], 64); err == nil {
+				fields[k] = strconv.FormatFloat(v*9/5+32, 'f', 1, 64)
+			}
+		}
+		f.WriteString(strings.Join(fields, ",") + "\n")
+	}
+	// Seattle's summer maxima pass 60 in °F, so read as °C they are errors
+	// that name the fix.
+	if _, err := ReadCSV(strings.NewReader(f.String()), "seattle.csv", ReadOptions{}); err == nil ||
+		!strings.Contains(err.Error(), "if the file is in °F, pass --units F") {
+		t.Errorf("°F read without units: %v", err)
+	}
+	if s := read(f.String(), Fahrenheit); warned(s, "look like °") {
+		t.Errorf("°F read as °F: %q", s.Warnings)
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"wxstress/calendar"
+	"wxstress/model"
 )
 
 func TestParsePeriod(t *testing.T) {
@@ -98,5 +99,30 @@ func TestDateSpread(t *testing.T) {
 	want := []MonthShare{{time.November, 0.2}, {time.December, 0.2}, {time.January, 0.4}, {time.March, 0.2}}
 	if !slices.Equal(d.Months, want) {
 		t.Errorf("months %v, want %v (calendar order within the period, empty months left out)", d.Months, want)
+	}
+}
+
+// TestBasesImplausible checks the unit-sanity warnings: a °F base given to
+// a °C model (65, 32) and a °C base given to a °F model (18, 0) are flagged
+// with the conversion (65 °F = 18.3 °C: the usual bases, common practice),
+// and the usual bases of each scale are not.
+func TestBasesImplausible(t *testing.T) {
+	t.Parallel()
+	if w := BasesFor(model.Celsius).Implausible(model.Celsius); len(w) != 0 {
+		t.Errorf("the usual °C bases flagged: %q", w)
+	}
+	if w := BasesFor(model.Fahrenheit).Implausible(model.Fahrenheit); len(w) != 0 {
+		t.Errorf("the usual °F bases flagged: %q", w)
+	}
+	w := Bases{HDD: 65, CDD: 18, ColdBelow: 32}.Implausible(model.Celsius)
+	if len(w) != 2 || !strings.Contains(w[0], "HDD base 65 °C") || !strings.Contains(w[0], "65 °F = 18.3 °C") ||
+		!strings.Contains(w[1], "cold-day threshold 32 °C") {
+		t.Errorf("°F values for a °C model: %q", w)
+	}
+	// 0 °F (−17.8 °C) is a plausible cold threshold in either reading: not
+	// flagged.
+	w = Bases{HDD: 18, CDD: 65, ColdBelow: 0}.Implausible(model.Fahrenheit)
+	if len(w) != 1 || !strings.Contains(w[0], "HDD base 18 °F") || !strings.Contains(w[0], "18 °C = 64.4 °F") {
+		t.Errorf("°C values for a °F model: %q", w)
 	}
 }

@@ -36,6 +36,39 @@ func BasesFor(u model.Units) Bases {
 	return Bases{HDD: b, CDD: b, ColdBelow: u.ColdThreshold()}
 }
 
+// Plausible degree-day bases and cold thresholds, in °C: degree-day bases
+// in use run from about 10 °C (cooling in some markets) to 25 °C, the cold
+// threshold from −30 °C to 10 °C (common practice; wider than any
+// convention, so only a value in the other scale falls outside).
+var (
+	plausibleBaseC = [2]float64{5, 30}
+	plausibleColdC = [2]float64{-40, 15}
+)
+
+// Implausible returns a warning for each base of b that lies outside the
+// plausible range in units u but inside it in the other scale (an 18 given
+// to a °F model, a 65 to a °C one), with the value it probably means.
+func (b Bases) Implausible(u model.Units) []string {
+	other := model.Fahrenheit
+	if u == model.Fahrenheit {
+		other = model.Celsius
+	}
+	var out []string
+	for _, c := range []struct {
+		name   string
+		v      float64
+		rangeC [2]float64
+	}{{"HDD base", b.HDD, plausibleBaseC}, {"CDD base", b.CDD, plausibleBaseC}, {"cold-day threshold", b.ColdBelow, plausibleColdC}} {
+		inC := func(x float64, from model.Units) float64 { return from.Convert(x, model.Celsius) }
+		here, there := inC(c.v, u), inC(c.v, other)
+		if (here < c.rangeC[0] || here > c.rangeC[1]) && there >= c.rangeC[0] && there <= c.rangeC[1] {
+			out = append(out, fmt.Sprintf("%s %g °%s is implausible for a °%s model; it reads like °%s (%g °%s = %.1f °%s)",
+				c.name, c.v, u, u, other, c.v, other, other.Convert(c.v, u), u))
+		}
+	}
+	return out
+}
+
 // segment is a run of accumulated days [lo, hi) that no period boundary
 // splits; periods are unions of consecutive segments.
 type segment struct{ lo, hi int }

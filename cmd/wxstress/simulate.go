@@ -304,6 +304,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		return err
 	}
 	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds, MaxMemory: o.memoryLimit}
+	for _, w := range job.Config.Bases.Implausible(model.Units(m.Data.Units)) {
+		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+	}
 	var demandSum string
 	if o.demand != "" {
 		if job.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
