@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -256,6 +257,7 @@ func (b *builder) figures(figs []figure, notes []string, open bool, summary stri
 type periodBlock struct {
 	ID, Heading string
 	Table       tailTable
+	Dates       []string // the day of the peak, as dates (render.DatesText)
 	Figures     figGroup
 }
 
@@ -267,7 +269,13 @@ func (b *builder) periodBlocks(rows []sim.Row, idPrefix, heading, caption, plots
 	for k, g := range byPeriodOf(rows) {
 		p := g[0].Period
 		blk := periodBlock{ID: b.uniqueID(idPrefix + p), Heading: heading + b.periodText(p)}
-		blk.Table = b.tailTable("baseline", g, caption+p)
+		levels := slices.DeleteFunc(slices.Clone(g), func(r sim.Row) bool { return r.Index == sim.PeakDay })
+		for _, r := range g {
+			if r.Dates != nil {
+				blk.Dates = append(blk.Dates, render.DatesText(r))
+			}
+		}
+		blk.Table = b.tailTable("baseline", levels, caption+p)
 		figs, notes, err := b.indexFigures(g)
 		if err != nil {
 			return nil, err
