@@ -93,10 +93,14 @@ type Job struct {
 }
 
 // DetailPaths is how many paths the fan chart and the load-duration curve
-// keep whole by default; NormalPaths how many synthetic years weather
-// normalization draws for each historical year.
+// keep whole by default: a run of at most that many keeps them all, so its
+// load-duration curve and its tail tables come from the same paths and
+// agree (the busiest day's quantiles are the peak-day demand's). Larger
+// runs keep the first DetailPaths (about 35 MB of daily values for a year
+// of temperature and demand). NormalPaths is how many synthetic years
+// weather normalization draws for each historical year.
 const (
-	DetailPaths = 2000
+	DetailPaths = 20000
 	NormalPaths = 1000
 )
 

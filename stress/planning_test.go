@@ -139,3 +139,35 @@ func TestGrowthScalesDemand(t *testing.T) {
 		}
 	}
 }
+
+// TestLoadDurationAgreesWithPeakDay checks that a run of at most
+// DetailPaths keeps every path for the load-duration curve, so its busiest
+// day has exactly the quantiles of the peak-day demand of the year in the
+// tail table (the two came from different path counts before).
+func TestLoadDurationAgreesWithPeakDay(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo data")
+	}
+	t.Parallel()
+	job := demoDemandJob(t, 3000)
+	job.Detail = DetailPaths
+	res, err := Run(context.Background(), job)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Set.Fan == nil || res.Set.Fan.Paths != 3000 {
+		t.Fatalf("the fan keeps %v paths, want all 3000", res.Set.Fan)
+	}
+	for _, r := range res.Set.Rows {
+		if r.Index != sim.PeakDemand || r.Period != "year" {
+			continue
+		}
+		for k, p := range sim.FanQuantileProbs() {
+			if got, want := res.Set.Fan.LoadDuration[k][0], r.Tail.Quantile(p); math.Abs(got-want) > 1e-6*want {
+				t.Errorf("busiest day P%.0f %.3f, peak-day demand P%.0f %.3f", 100*p, got, 100*p, want)
+			}
+		}
+		return
+	}
+	t.Fatal("no peak-day demand row for the year")
+}

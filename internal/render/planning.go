@@ -5,6 +5,7 @@ import (
 	"io"
 	"slices"
 
+	"wxstress/internal/numfmt"
 	"wxstress/sim"
 )
 
@@ -63,8 +64,8 @@ func writePlanning(e *errWriter, r *SimReport) {
 	e.printf("  50/50 and 90/10: the peak exceeded in one year in two and in one in ten (common practice in\n" +
 		"  resource planning); 1-in-20 and 1-in-50: the levels gas network planning sizes to (common practice).\n")
 	if p.LoadDuration != nil {
-		e.printf("\nLoad-duration curve of %d (the n-th highest day of the year, %d paths; %s)\n",
-			r.Manifest.Year, p.LoadDurationPaths, p.Unit)
+		e.printf("\nLoad-duration curve of %d (the n-th highest day of the year, %s paths; %s)\n",
+			r.Manifest.Year, numfmt.Number(float64(p.LoadDurationPaths)), p.Unit)
 		rows = rows[:0]
 		for _, rank := range loadDurationRanks {
 			if rank > len(p.LoadDuration[0]) {
