@@ -27,7 +27,7 @@ func BandTable(rows []sim.Row, bands []stress.RowBands, refits int) (title strin
 		return fmt.Sprintf("%s [%s, %s]", numfmt.Fixed(v, d), numfmt.Fixed(b.Lo, d), numfmt.Fixed(b.Hi, d))
 	}
 	for k, r := range rows {
-		if k >= len(bands) || r.Index == sim.PeakDay || r.Tail.Quantile(0.95) == 0 && r.Tail.Mean < 1 {
+		if k >= len(bands) || r.Index == sim.PeakDay || rare(r.Tail) {
 			continue
 		}
 		b, t := bands[k], r.Tail

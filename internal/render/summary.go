@@ -17,16 +17,17 @@ import (
 // day of winter, and the demand figures.
 var summaryIndices = []sim.Index{sim.HDD, sim.CDD, sim.Coldest, sim.Energy, sim.PeakDemand}
 
-// occurs reports whether an index means something in its period: not zero
-// in nineteen years of twenty with a mean below one (CDD in winter), and the
-// coldest day only where it is a winter figure (not the cooling season).
+// occurs reports whether an index means something in its period: not rare,
+// and the coldest day only where it is a winter figure (not the cooling
+// season).
 func occurs(r sim.Row) bool {
-	t := r.Tail
-	if t.Quantile(0.95) == 0 && t.Mean < 1 {
-		return false
-	}
-	return !(r.Index == sim.Coldest && r.Period == "cooling")
+	return !rare(r.Tail) && !(r.Index == sim.Coldest && r.Period == "cooling")
 }
+
+// rare reports whether an index hardly occurs in its period: zero in
+// nineteen years of twenty, with a mean below one (CDD in winter, cold days
+// in summer). Its tail numbers mean nothing.
+func rare(t sim.Tail) bool { return t.Quantile(0.95) == 0 && t.Mean < 1 }
 
 // ModelLine describes a temperature model in one line for people.
 func ModelLine(m *model.File) string {

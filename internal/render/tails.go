@@ -483,7 +483,7 @@ func monteCarloFlags(group []sim.Row) []mcFlag {
 	var out []mcFlag
 	for _, r := range group {
 		t := r.Tail
-		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || t.Quantile(0.95) == 0 && t.Mean < 1 {
+		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || rare(t) {
 			continue // no spread, a date, or an index that hardly occurs in the period
 		}
 		f := mcFlag{row: r, target: mcTolerance * t.SD}
