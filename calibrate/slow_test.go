@@ -46,10 +46,9 @@ func annualHDD(t *testing.T, m *model.File, paths int) (mean, sd float64) {
 // high for its generator: the sd of its 71 annual mean anomalies is 0.646 °C
 // against about 0.55 °C expected from the generator (about two sampling
 // standard errors above), and the fitted slow part follows the record (sd
-// 0.75 against 0.6 °C). The model's annual HDD sd comes out about 8 % above
-// the generator's (7.7 % with this seed, 8.8 % with another); the tolerance
-// is 10 %, inside what the slow part's sampling error on a 71-year record
-// allows (its s.e. of about 0.09 °C moves the annual HDD sd by about 10 %).
+// 0.75 against 0.6 °C). The model's annual HDD sd comes out 7.7 % above the
+// generator's; the tolerance here is 10 %. That the estimator itself holds
+// ±7 % is checked over many records by TestSlowRecoveryOverRecords.
 func TestDemoAnnualHDDSpread(t *testing.T) {
 	if testing.Short() {
 		t.Skip("fits 71 years and simulates 20 000 paths")
@@ -174,6 +173,85 @@ func TestLeanFitMatchesFull(t *testing.T) {
 			if math.Abs(c.x-c.y) > c.tol {
 				t.Errorf("start %v: lean %s %.5f, full %.5f (tolerance %.5f)", start != nil, c.what, c.y, c.x, c.tol)
 			}
+		}
+	}
+}
+
+// slowRecord draws a record of the given years from a two-component model
+// with the demo generator's persistence and spread (φ 0.72, φ_slow 0.985,
+// s_F 0.6 °C, σ from 1.7 to 3.0 °C over the year) and normal shocks.
+func slowRecord(r *rand.Rand, first, last int) *Series {
+	const phi, phiSlow, sdSlow = 0.72, 0.985, 0.6
+	start := calendar.FromYMD(first, time.January, 1)
+	end := calendar.FromYMD(last, time.December, 31)
+	s := &Series{Name: "slow", Start: start, Units: Celsius}
+	f, y := sdSlow*r.NormFloat64(), 0.0
+	for d := start - 200; d <= end; d++ {
+		y = phi*y + slowRecordSigma(d)*r.NormFloat64()
+		f = phiSlow*f + sdSlow*math.Sqrt(1-phiSlow*phiSlow)*r.NormFloat64()
+		if d >= start {
+			s.Temps = append(s.Temps, slowRecordSeasonal(d)+f+y)
+		}
+	}
+	return s
+}
+
+func slowRecordSeasonal(d calendar.Date) float64 {
+	return 10 + 11*math.Cos(2*math.Pi*(d.ModelTime()-206)/calendar.DaysPerYear)
+}
+
+func slowRecordSigma(d calendar.Date) float64 {
+	return 2.35 + 0.65*math.Cos(2*math.Pi*(d.ModelTime()-14)/calendar.DaysPerYear)
+}
+
+// TestSlowRecoveryOverRecords checks the estimator rather than one record:
+// it fits 12 records of 71 years drawn from a generator with the demo's
+// slow part and compares the mean of the fitted models' annual HDD sd with
+// the generator's own, computed here by simulating the generator. A single
+// 71-year record's own low-frequency spread moves the fitted annual HDD sd
+// by a few per cent (the demo record, an unusually wide one, by 7.7 %), so
+// one record is a weak test of ±7 %. Over 12 records of this generator the fitted/generator ratio has a
+// mean of 0.98 and an sd of 0.03 (a linear trend fitted to trendless
+// records takes a little low-frequency variance): the mean must be within
+// ±3 % and every record within ±10 %.
+func TestSlowRecoveryOverRecords(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits 12 records of 71 years")
+	}
+	t.Parallel()
+	const records = 12
+	r := rand.New(rand.NewPCG(71, 12))
+	// The generator's own annual HDD sd for 2026 (base 18 °C, no trend).
+	var hdds []float64
+	for range 20000 {
+		rec := slowRecord(r, 2026, 2026)
+		h := 0.0
+		for _, v := range rec.Temps {
+			h += math.Max(18-v, 0)
+		}
+		hdds = append(hdds, h)
+	}
+	_, want := stat.MeanStdDev(hdds, nil)
+	set := &Settings{Harmonics: 1, AROrder: 1, Slow: SlowOn, Trend: "linear", Shocks: model.FamilyNormal, Lean: true}
+	var ratios []float64
+	for i := range records {
+		res, err := Fit(slowRecord(r, 1955, 2025), set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, sd := annualHDD(t, res.Model, 20000)
+		ratios = append(ratios, sd/want)
+		t.Logf("record %2d: φ_slow %.4f, s_F %.3f °C, annual HDD sd %.1f (%+.1f %%)",
+			i+1, res.Model.Slow.Phi, res.Model.Slow.SD, sd, 100*(sd/want-1))
+	}
+	m, s := stat.MeanStdDev(ratios, nil)
+	t.Logf("generator annual HDD sd %.1f; fitted/generator: mean %.3f, sd %.3f over %d records", want, m, s, records)
+	if math.Abs(m-1) > 0.03 {
+		t.Errorf("mean fitted annual HDD sd is %+.1f %% off the generator's (±3 %% allowed)", 100*(m-1))
+	}
+	for i, x := range ratios {
+		if math.Abs(x-1) > 0.10 {
+			t.Errorf("record %d: fitted annual HDD sd %+.1f %% off the generator's (±10 %% allowed)", i+1, 100*(x-1))
 		}
 	}
 }
