@@ -544,10 +544,10 @@ func (pl *plan) collect(segs []segStats, out [][]float64, i int) {
 		o[HDD][i], o[CDD][i] = hdd, cdd
 		o[Coldest][i], o[Hottest][i] = lo, hi
 		o[ColdDays][i], o[ColdSpell][i] = float64(cold), float64(best)
-		if nx > int(numTempIndices) {
+		if pl.demand != nil {
 			o[Energy][i], o[PeakDemand][i] = energy, peak
 			o[PeakDay][i] = float64(peakAt - pl.segs[span[0]].lo + 1)
-			if nx > int(OverCapacity) {
+			if !math.IsInf(pl.capacity, 1) {
 				o[OverCapacity][i] = float64(over)
 			}
 		}

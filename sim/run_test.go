@@ -286,3 +286,16 @@ func TestConfigErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestSnapWithoutDemand runs the design cold snap on a temperature-only
+// model (a run with --design and no demand model): the 3-day snap is a mean
+// of days, so it lies between each path's coldest day and its period mean.
+func TestSnapWithoutDemand(t *testing.T) {
+	res := run(t, seasonalModel([]float64{0.7}), Config{Paths: 200, Seed: 5, Year: 2026, Periods: []string{"heating"}, SnapDays: 3})
+	snap, coldest := column(t, res, ColdSnap, "heating"), column(t, res, Coldest, "heating")
+	for i := range snap {
+		if !(snap[i] >= coldest[i]) || math.IsInf(snap[i], 0) {
+			t.Fatalf("path %d: 3-day snap %v below the coldest day %v", i, snap[i], coldest[i])
+		}
+	}
+}

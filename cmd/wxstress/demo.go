@@ -103,6 +103,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		Config:    sim.Config{Paths: o.paths, Seed: o.seed, Bases: sim.BasesFor(model.Celsius), Capacity: demoCapacity},
 		Scenarios: scens, Detail: stress.DetailPaths, Normals: true, History: true, Observed: true, ToolVersion: version,
 		Uncertainty: &stress.Uncertainty{Refits: demoRefits}, MaxMemory: stress.DefaultMemoryLimit(),
+		Design: demoDesign, CapacityTargets: []stress.CapacityTarget{demoTarget},
 	}
 	stop := attachProgress(&job.Config, stderr, 1+len(scens))
 	res, err := runPipeline(ctx, job)
@@ -190,6 +191,13 @@ var demoFiles = []string{"model.json", "demand.json", "tails.json", "tails.csv",
 // demoRefits is the number of bootstrap refits behind the demo's parameter
 // bands: enough for a 90 % band, few enough to keep the demo quick.
 const demoRefits = 20
+
+// demoDesign are the planning standards of the demo's design day, and
+// demoTarget the peak-day capacity target it solves.
+var (
+	demoDesign = []float64{20, 50}
+	demoTarget = stress.CapacityTarget{Kind: "peak", Value: 20, Text: "peak:1-in-20"}
+)
 
 // demoScenarios are the built-in scenarios the demo runs beside the baseline.
 var demoScenarios = []string{"warm-1c", "trend-2050", "volatile-winter", "cold-spell-10d"}

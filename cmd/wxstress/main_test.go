@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"html"
 	"math"
 	"os"
 	"path/filepath"
@@ -534,9 +535,9 @@ func TestSimulateSummaryAndDetail(t *testing.T) {
 }
 
 // TestDemoSummary checks the demo's one-page summary: it fits a screen (at
-// most 60 lines; prose within 100 columns, tables within 120), has no
-// exponent notation, and its headline numbers are the JSON's, formatted to
-// their Monte Carlo error.
+// most 60 lines within 100 columns), has no exponent notation, and its
+// headline numbers are the JSON's (demand energy in TJ, the JSON's GJ over
+// 1 000), formatted to their Monte Carlo error.
 func TestDemoSummary(t *testing.T) {
 	t.Parallel()
 	dir := filepath.Dir(demoModel(t))
@@ -547,9 +548,6 @@ func TestDemoSummary(t *testing.T) {
 	}
 	for i, l := range lines {
 		limit := 100
-		if strings.ContainsAny(l, "│┌└├") {
-			limit = 120
-		}
 		if n := utf8.RuneCountInString(l); n > limit {
 			t.Errorf("line %d has %d columns (limit %d): %q", i+1, n, limit, l)
 		}
@@ -581,12 +579,16 @@ func TestDemoSummary(t *testing.T) {
 		if label == "" || x.Period != "heating" {
 			continue
 		}
-		want := []string{numfmt.Value(x.ReturnLevels["20"], x.MCSE.ReturnLevels["20"]),
-			numfmt.Value(x.ReturnLevels["50"], x.MCSE.ReturnLevels["50"]), numfmt.Value(x.ES95, x.MCSE.ES95)}
+		unit, f := map[string]string{"hdd": "°C·day", "energy": "TJ"}[x.Key], map[string]float64{"hdd": 1, "energy": 1000}[x.Key]
+		want := []string{numfmt.Value(x.ReturnLevels["20"]/f, x.MCSE.ReturnLevels["20"]/f),
+			numfmt.Value(x.ReturnLevels["50"]/f, x.MCSE.ReturnLevels["50"]/f), numfmt.Value(x.ES95/f, x.MCSE.ES95/f)}
 		for _, l := range lines {
 			if strings.HasPrefix(l, "│ "+label+", heating ") {
 				checked++
 				cells := strings.Split(l, "│")
+				if got := strings.TrimSpace(cells[2]); got != unit {
+					t.Errorf("%s, heating: unit %q, want %q", label, got, unit)
+				}
 				if got := []string{strings.TrimSpace(cells[4]), strings.TrimSpace(cells[5]), strings.TrimSpace(cells[6])}; !slices.Equal(got, want) {
 					t.Errorf("%s, heating: 1-in-20, 1-in-50, ES 95%% %q in the summary, %q from tails.json", label, got, want)
 				}
@@ -614,5 +616,50 @@ func TestDetailDayOfPeakIsADate(t *testing.T) {
 	}
 	if n := strings.Count(out, "Day of the peak: median "); n != 3 {
 		t.Errorf("%d date lines, want one per period (3):\n%s", n, out)
+	}
+}
+
+// TestFitWarningsShownEverywhere fits a °C record declared as °F, which
+// draws a unit warning, and checks that each warning the fit summary lists
+// is also on stderr and in the report's warnings row.
+func TestFitWarningsShownEverywhere(t *testing.T) {
+	t.Parallel()
+	p := filepath.Join(t.TempDir(), "fit.html")
+	code, stdout, stderr := call(t, context.Background(), "fit", "--temps", "../../testdata/noaa/seattle.csv",
+		"--units", "F", "--slow", "none", "--report", p)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	_, section, ok := strings.Cut(stdout, "\nWarnings\n")
+	if !ok {
+		t.Fatalf("no Warnings section in the fit summary:\n%s", stdout)
+	}
+	section, _, _ = strings.Cut(section, "\n\n")
+	var warns []string
+	for _, l := range strings.Split(section, "\n") {
+		if w, ok := strings.CutPrefix(l, "  - "); ok {
+			warns = append(warns, w)
+		} else if len(warns) > 0 {
+			warns[len(warns)-1] += " " + strings.TrimSpace(l)
+		}
+	}
+	b, err := os.ReadFile(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := html.UnescapeString(string(b))
+	flat := strings.Join(strings.Fields(stderr), " ")
+	for _, want := range []string{"they look like °C", "365 days lies above the model's band"} {
+		if !slices.ContainsFunc(warns, func(w string) bool { return strings.Contains(w, want) }) {
+			t.Errorf("no warning with %q among %q", want, warns)
+		}
+	}
+	for _, w := range warns {
+		if !strings.Contains(flat, w) {
+			t.Errorf("warning %q printed in the summary but not on stderr:\n%s", w, stderr)
+		}
+		if !strings.Contains(page, w) {
+			t.Errorf("warning %q printed in the summary but not in the report's warnings row", w)
+		}
 	}
 }

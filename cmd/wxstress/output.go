@@ -27,10 +27,10 @@ import (
 	"wxstress/stress"
 )
 
-// emitFit prints the model summary or JSON, with the data's warnings on
-// stderr.
+// emitFit prints the model summary or JSON, with the fit's warnings
+// (render.FitWarnings) on stderr.
 func emitFit(stdout, stderr io.Writer, m *model.File, format string, checks ...stress.ExtremeCheck) error {
-	return emit(stdout, stderr, m.Data.Warnings, format, m.MarshalIndent, func() error { return render.FitSummaryWith(stdout, m, checks) })
+	return emit(stdout, stderr, render.FitWarnings(m, checks), format, m.MarshalIndent, func() error { return render.FitSummaryWith(stdout, m, checks) })
 }
 
 // emitDemand prints the demand summary or JSON, with the fit's warnings on
@@ -256,6 +256,7 @@ func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Mani
 		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
 		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,
 		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution, Capacity: c.Capacity,
+		SnapDays: c.SnapDays,
 	}
 }
 

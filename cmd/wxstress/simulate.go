@@ -386,9 +386,6 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	if o.out != "" || o.report != "" {
 		rep.Manifest.RunID = plan.runID() // names the set of files written together
 	}
-	if len(o.standards) > 0 {
-		rep.Manifest.SnapDays = out.Set.Config.SnapDays
-	}
 	rep.Manifest.Scenarios = o.scenarios
 	if o.demand != "" {
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(o.demand), demandSum

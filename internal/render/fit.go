@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"time"
 
@@ -24,11 +25,8 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 	u := "°" + f.Data.Units
 	d := f.Data
 	e.printf("Station record  %s\n", d.File)
-	e.printf("  %s to %s: %d days, %d missing (longest gap %d days); daily mean = %s; units %s\n",
-		d.FirstDate, d.LastDate, d.Days, d.Missing, d.LongestGap, d.MeanFrom, u)
-	for _, w := range d.Warnings {
-		e.printf("  warning: %s\n", w)
-	}
+	e.printf("%s\n", Wrap(fmt.Sprintf("  %s to %s: %d days, %d missing (longest gap %d days); daily mean = %s; units %s",
+		d.FirstDate, d.LastDate, d.Days, d.Missing, d.LongestGap, d.MeanFrom, u), "  "))
 
 	e.printf("\nSeasonal mean  S(t) = a + b·t + Σ harmonics, period %.2f days, t in days since %s\n",
 		f.Seasonal.PeriodDays, f.Trend.Epoch)
@@ -88,19 +86,17 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 				{"with the slow part", Num(c.LogLikWith, 1), Num(c.BICWith, 1), Mark(c.Kept)},
 				{"fast AR alone", Num(c.LogLikWithout, 1), Num(c.BICWithout, 1), Mark(!c.Kept)},
 			})
-			e.printf("  likelihood ratio %.2f, p-value %s (against ½χ²₁ + ½χ²₂: the null is on the boundary s_F = 0)\n", c.LR, PValue(c.P))
+			e.printf("%s\n", Wrap(fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary)", c.LR, PValue(c.P)), "    "))
 		}
 	}
 	if dg != nil {
 		if f.Slow != nil || (dg.SlowChoice != nil && dg.SlowChoice.Setting != "none") {
-			e.printf("AR order of the fast part by BIC (exact likelihood, slow part in the model; orders above 1 with the slow part held)\n")
+			e.printf("AR order of the fast part by BIC (exact likelihood, slow part in the model;\n" +
+				"  orders above 1 with the slow part held)\n")
 		} else {
 			e.printf("AR order by BIC (exact likelihood)\n")
 		}
 		e.table([]string{"p", "BIC", ""}, orderRows(dg.ARTable))
-		if dg.ARAdvice != "" {
-			e.printf("  note: %s\n", dg.ARAdvice)
-		}
 	}
 
 	e.printf("\nFast-part innovation volatility σ by month (%s, with 95%% band)\n", u)
@@ -129,12 +125,18 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 			header, rows, notes := ExtremesTable(checks, f.Data.Units)
 			e.printf("\nExtreme days checked by extreme-value theory (the model simulated for %d)\n", checks[0].Year)
 			e.table(header, rows)
-			for _, n := range notes {
-				e.printf("  %s\n", n)
-			}
+			e.printf("%s\n", Wrap("  "+strings.Join(notes, " "), "  "))
 		}
 	}
-	e.printf("\n%s\n", Caution)
+	if warns := FitWarnings(f, checks); len(warns) > 0 {
+		e.printf("\nWarnings\n")
+		for _, w := range warns {
+			e.printf("%s\n", wrap("  - "+w, wrapWidth, "    "))
+		}
+	} else {
+		e.printf("\nWarnings: none\n")
+	}
+	e.printf("\n%s\n", Wrap(Caution, ""))
 	return e.err
 }
 
@@ -180,7 +182,7 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 	}
 	head := []string{"window", "windows", "observed sd", "model sd", "90% band", "observed"}
 	if fastBand {
-		head = append(head, "band without slow part")
+		head = append(head, "band, no slow part")
 		for i := range rows {
 			for len(rows[i]) < len(head) {
 				rows[i] = append(rows[i], "")
@@ -188,18 +190,57 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 		}
 	}
 	e.table(head, rows)
+}
+
+// FitWarnings lists what should make a reader doubt a fitted model, in the
+// words the fit summary prints them: the data's warnings, the AR-order
+// advice, window spreads outside the model's band (with the remedy that
+// moves them) and model return levels outside the GEV interval of checks.
+// The fit summary, its stderr and the report's warnings row show this list.
+func FitWarnings(f *model.File, checks []stress.ExtremeCheck) []string {
+	warns := slices.Clone(f.Data.Warnings)
+	dg := f.Diagnostics
+	if dg == nil {
+		return warns
+	}
+	if dg.ARAdvice != "" {
+		warns = append(warns, dg.ARAdvice)
+	}
+	var narrow, wide []string
 	for _, s := range dg.Spread {
-		switch {
-		case s.Verdict == "too narrow" && f.Slow == nil:
-			e.printf("  note: the data's %d-day spread lies above the model's band: seasonal and annual sums will be "+
-				"too narrow; refit with --slow on (more AR lags do not add low-frequency spread)\n", s.Days)
-		case s.Verdict == "too narrow":
-			e.printf("  note: the data's %d-day spread lies above the model's band even with the slow part: "+
-				"treat tail tables over that span as narrow\n", s.Days)
-		case s.Verdict == "too wide":
-			e.printf("  note: the data's %d-day spread lies below the model's band: the model is wider than the record at that span\n", s.Days)
+		switch s.Verdict {
+		case "too narrow":
+			narrow = append(narrow, fmt.Sprint(s.Days))
+		case "too wide":
+			wide = append(wide, fmt.Sprint(s.Days))
 		}
 	}
+	switch {
+	case len(narrow) > 0 && f.Slow == nil:
+		warns = append(warns, fmt.Sprintf("the data's spread over %s days lies above the model's band: seasonal and annual sums will be "+
+			"too narrow; refit with --slow on (more AR lags do not add low-frequency spread)", andList(narrow)))
+	case len(narrow) > 0:
+		warns = append(warns, fmt.Sprintf("the data's spread over %s days lies above the model's band even with the slow part: "+
+			"treat tail tables over that span as narrow", andList(narrow)))
+	}
+	if len(wide) > 0 {
+		warns = append(warns, fmt.Sprintf("the data's spread over %s days lies below the model's band: the model is wider than the record at that span", andList(wide)))
+	}
+	return append(warns, gevWarnings(checks)...)
+}
+
+// gevWarnings lists the model return levels outside the GEV's interval.
+func gevWarnings(checks []stress.ExtremeCheck) []string {
+	var warns []string
+	for _, c := range checks {
+		for _, l := range c.Levels {
+			if l.Outside {
+				warns = append(warns, fmt.Sprintf("%s, %s: the model's 1-in-%s lies %s the GEV's 95 %% interval", c.Index.Info().Name,
+					c.Period, periodKey(l.T), l.OutsideSide))
+			}
+		}
+	}
+	return warns
 }
 
 func lbRow(name string, t model.Test) []string {
@@ -252,4 +293,12 @@ func ShockText(s model.Shocks) string { return s.Text() }
 func DayName(doy float64) string {
 	d := time.Date(2001, time.January, 1, 0, 0, 0, 0, time.UTC).AddDate(0, 0, int(doy)-1)
 	return d.Format("2 Jan")
+}
+
+// andList joins words as "a", "a and b" or "a, b and c".
+func andList(words []string) string {
+	if len(words) < 2 {
+		return strings.Join(words, "")
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " and " + words[len(words)-1]
 }

@@ -10,6 +10,7 @@ import (
 	"wxstress/internal/numfmt"
 	"wxstress/model"
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // summaryIndices are the indices the one-page summary shows, in order, and
@@ -54,14 +55,15 @@ func ModelLine(m *model.File) string {
 // shortfall, the design day and capacity, the hedged position, baseline
 // against scenarios — then the warnings. The full tables are SimTables.
 type Summary struct {
-	Run      []string // what was run: paths, year, start, model, season under way
-	KeyTitle string
-	KeyHead  []string
-	KeyRows  [][]string
-	Notes    []string // exceedances, design days, capacities, the hedge
-	ScenHead []string // nil without scenarios
-	ScenRows [][]string
-	Warnings []string
+	Run       []string // what was run: paths, year, start, model, season under way
+	KeyTitle  string
+	KeyHead   []string
+	KeyRows   [][]string
+	Notes     []string // exceedances, design days, capacities, the hedge
+	ScenTitle string
+	ScenHead  []string // nil without scenarios
+	ScenRows  [][]string
+	Warnings  []string
 }
 
 // NewSummary lays out the summary of r; m (the temperature model) may be
@@ -88,12 +90,14 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 				continue
 			}
 			t := row.Tail
-			line := []string{row.Name + ", " + row.Period, row.Unit,
-				numfmt.Value(t.Quantile(0.5), t.QuantileSE[4]), numfmt.Value(t.ReturnLevel(20), t.ReturnLevelError(20)),
-				numfmt.Value(t.ReturnLevel(50), t.ReturnLevelError(50)), numfmt.Value(t.ES95, t.ES95SE)}
+			f, unit := ScaleUnit(row.Unit, max(math.Abs(t.Quantile(0.5)), math.Abs(t.ES95)))
+			v := func(x, se float64) string { return numfmt.Value(x/f, se/f) }
+			line := []string{row.Name + ", " + row.Period, unit,
+				v(t.Quantile(0.5), t.QuantileSE[4]), v(t.ReturnLevel(20), t.ReturnLevelError(20)),
+				v(t.ReturnLevel(50), t.ReturnLevelError(50)), v(t.ES95, t.ES95SE)}
 			if bandCol {
 				b, se := r.Bands[k].RL20, t.ReturnLevelError(20)
-				line = append(line, fmt.Sprintf("%s to %s", numfmt.Value(b.Lo, se), numfmt.Value(b.Hi, se)))
+				line = append(line, fmt.Sprintf("%s to %s", v(b.Lo, se), v(b.Hi, se)))
 			}
 			sm.KeyRows = append(sm.KeyRows, line)
 		}
@@ -117,9 +121,10 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 			peakUnit = " " + row.Unit
 		}
 	}
+	planning := planningPeriod(mf.Periods)
 	for _, d := range r.Design {
-		if d.Period == "cooling" {
-			continue // the coldest day of summer designs nothing
+		if d.Period != planning {
+			continue // the other periods' design days: --detail
 		}
 		line := fmt.Sprintf("Design day 1-in-%s, %s: %s °%s, %d-day snap %s °%s", periodKey(d.T), d.Period,
 			numfmt.Value(d.Coldest, d.ColdestSE), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, d.SnapSE), mf.Units)
@@ -128,7 +133,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		}
 		sm.Notes = append(sm.Notes, line)
 	}
-	for _, c := range r.Capacities {
+	for _, c := range bindingCapacities(r.Capacities) {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity for %s, %s: %s%s", c.Target, c.Period, numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
 	}
 	if h := r.Hedge; h != nil {
@@ -139,15 +144,20 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	// Scenarios: the change of the mean of the first few key figures.
 	if len(r.Scenarios) > 0 {
 		keys := scenarioKeys(r.Rows)
-		sm.ScenHead = []string{"scenario: change of the mean"}
-		for _, k := range keys {
-			sm.ScenHead = append(sm.ScenHead, r.Rows[k].Name+", "+r.Rows[k].Period)
+		sm.ScenTitle = "Scenarios: change of the mean against the baseline (same random numbers, so ± is the paired error)"
+		sm.ScenHead = []string{"scenario"}
+		scale := make([]float64, len(keys))
+		for i, k := range keys {
+			row := r.Rows[k]
+			f, unit := ScaleUnit(row.Unit, max(math.Abs(row.Tail.Quantile(0.5)), math.Abs(row.Tail.ES95)))
+			scale[i] = f
+			sm.ScenHead = append(sm.ScenHead, row.Name+", "+row.Period+"\n"+unit)
 		}
 		for _, sc := range r.Scenarios {
 			line := []string{sc.Name}
-			for _, k := range keys {
+			for i, k := range keys {
 				c := sc.Changes[k]
-				line = append(line, ChangeText(c.Mean, c.MeanSE))
+				line = append(line, ChangeText(c.Mean/scale[i], c.MeanSE/scale[i]))
 			}
 			sm.ScenRows = append(sm.ScenRows, line)
 		}
@@ -193,14 +203,7 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 			}
 		}
 	}
-	for _, c := range r.Extremes {
-		for _, l := range c.Levels {
-			if l.Outside {
-				warns = append(warns, fmt.Sprintf("%s, %s: the model's 1-in-%s lies %s the GEV's 95 %% interval", c.Index.Info().Name,
-					c.Period, periodKey(l.T), l.OutsideSide))
-			}
-		}
-	}
+	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
 		for _, s := range m.Diagnostics.Spread {
 			if s.Verdict == "too narrow" || s.Verdict == "too wide" {
@@ -224,7 +227,7 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 		e.printf("%s\n", Wrap(n, "  "))
 	}
 	if sm.ScenHead != nil {
-		e.printf("\n")
+		e.printf("\n%s\n", Wrap(sm.ScenTitle, ""))
 		e.table(sm.ScenHead, sm.ScenRows)
 	}
 	if len(sm.Warnings) > 0 {
@@ -290,3 +293,72 @@ func DemandLine(d *model.Demand) string {
 // Wrap breaks a line of prose for the terminal at wrapWidth columns,
 // starting continuation lines with indent.
 func Wrap(text, indent string) string { return wrap(text, wrapWidth, indent) }
+
+// planningPeriod is the period whose design day the summary shows: the
+// heating season when the run has it, else the year, else the first.
+func planningPeriod(periods []string) string {
+	for _, p := range []string{"heating", "year"} {
+		if slices.Contains(periods, p) {
+			return p
+		}
+	}
+	if len(periods) > 0 {
+		return periods[0]
+	}
+	return ""
+}
+
+// bindingCapacities keeps, for each capacity target, the period that needs
+// the most capacity: the one that binds.
+func bindingCapacities(rows []stress.CapacityRow) []stress.CapacityRow {
+	var out []stress.CapacityRow
+	for _, c := range rows {
+		i := slices.IndexFunc(out, func(o stress.CapacityRow) bool { return o.Target == c.Target })
+		switch {
+		case i < 0:
+			out = append(out, c)
+		case c.Capacity > out[i].Capacity:
+			out[i] = c
+		}
+	}
+	return out
+}
+
+// siPrefixes are the SI prefixes ScaleUnit steps through.
+const siPrefixes = "kMGTPE"
+
+// ScaleUnit returns the divisor and the unit that show values of magnitude
+// big with at most six integer digits: the next SI prefix for energy in
+// joules or watt-hours (GJ → TJ, MWh/day → GWh/day), else "thousand" or
+// "million" before the unit.
+func ScaleUnit(unit string, big float64) (float64, string) {
+	steps := 0
+	for f := big; f >= 1e6 && steps < 2; f /= 1e3 {
+		steps++
+	}
+	if steps == 0 {
+		return 1, unit
+	}
+	factor := math.Pow(1e3, float64(steps))
+	base, per, _ := strings.Cut(unit, "/")
+	if per != "" {
+		per = "/" + per
+	}
+	for _, u := range []string{"J", "Wh"} {
+		pre, ok := strings.CutSuffix(base, u)
+		if !ok {
+			continue
+		}
+		i := 0
+		if pre != "" {
+			i = strings.Index(siPrefixes, pre) + 1
+			if i == 0 || len(pre) != 1 {
+				break
+			}
+		}
+		if i+steps-1 < len(siPrefixes) {
+			return factor, siPrefixes[i+steps-1:i+steps] + u + per
+		}
+	}
+	return factor, []string{"thousand ", "million "}[steps-1] + unit
+}

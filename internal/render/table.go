@@ -87,7 +87,9 @@ const wrapWidth = 100
 // indent.
 func wrap(text string, width int, indent string) string {
 	var b strings.Builder
-	col := 0
+	lead := text[:len(text)-len(strings.TrimLeft(text, " "))]
+	b.WriteString(lead)
+	col := len(lead)
 	for i, word := range strings.Fields(text) {
 		n := utf8.RuneCountInString(word)
 		switch {

@@ -26,6 +26,9 @@ func TestWrap(t *testing.T) {
 			t.Errorf("line %d not indented: %q", i, l)
 		}
 	}
+	if got := wrap("  kept indent and wrapped", 14, "    "); got != "  kept indent\n    and\n    wrapped" {
+		t.Errorf("the first line's indent must stay, got %q", got)
+	}
 	if got := wrap("a-very-long-word-indeed", 5, ""); got != "a-very-long-word-indeed" {
 		t.Errorf("a long word must stand alone, got %q", got)
 	}

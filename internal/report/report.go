@@ -14,6 +14,7 @@ import (
 
 	"wxstress/internal/render"
 	"wxstress/model"
+	"wxstress/stress"
 )
 
 // Write writes in as one self-contained HTML5 page: inline CSS and
@@ -385,8 +386,12 @@ func (b *builder) dataRows() [][2]string {
 				[2]string{"days used in the AR fit", strconv.Itoa(m.Diagnostics.ARPairs)})
 		}
 		warn := "none"
-		if len(d.Warnings) > 0 {
-			warn = strings.Join(d.Warnings, "; ")
+		var checks []stress.ExtremeCheck
+		if in.Sim != nil {
+			checks = in.Sim.Extremes
+		}
+		if ws := render.FitWarnings(m, checks); len(ws) > 0 {
+			warn = strings.Join(ws, "; ")
 		}
 		return append(rows, [2]string{"warnings", warn})
 	}
