@@ -5,7 +5,9 @@ import (
 	"maps"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"slices"
+	"sync"
 	"time"
 
 	"golang.org/x/sync/errgroup"
@@ -222,27 +224,39 @@ func spreadBands(s *Series, x []float64, months []uint8, prm statespace.Params, 
 		out[i] = band{ok: len(starts) >= 2, windows: len(starts), starts: starts, observed: sd}
 	}
 	sims := make([][]float64, len(SpreadWindows))
-	rec := make([]float64, len(x))
-	obsVals := make([]float64, len(proj.idx))
-	for r := range spreadReplicates {
-		simulateAnomaly(prm, months, rec, uint64(r))
-		for j, i := range proj.idx {
-			obsVals[j] = rec[i]
-		}
-		res := proj.residuals(obsVals)
-		for i := range rec {
-			rec[i] = math.NaN()
-		}
-		for j, i := range proj.idx {
-			rec[i] = res[j]
-		}
-		for i, L := range SpreadWindows {
-			if out[i].ok {
-				sd, _ := windowSD(rec, L)
-				sims[i] = append(sims[i], sd)
-			}
-		}
+	for i := range sims {
+		sims[i] = make([]float64, spreadReplicates)
 	}
+	// The replicates (each its own seed) are shared out among the
+	// processors; each writes its own slot, so the result does not depend
+	// on their number.
+	workers := runtime.GOMAXPROCS(0)
+	var wg sync.WaitGroup
+	for w := range workers {
+		wg.Go(func() {
+			rec := make([]float64, len(x))
+			obsVals := make([]float64, len(proj.idx))
+			for r := w; r < spreadReplicates; r += workers {
+				simulateAnomaly(prm, months, rec, uint64(r))
+				for j, i := range proj.idx {
+					obsVals[j] = rec[i]
+				}
+				res := proj.residuals(obsVals)
+				for i := range rec {
+					rec[i] = math.NaN()
+				}
+				for j, i := range proj.idx {
+					rec[i] = res[j]
+				}
+				for i, L := range SpreadWindows {
+					if out[i].ok {
+						sims[i][r], _ = windowSD(rec, L)
+					}
+				}
+			}
+		})
+	}
+	wg.Wait()
 	for i := range out {
 		if !out[i].ok {
 			continue

@@ -302,7 +302,7 @@ func finishFit(res *Result, s *Series, z []float64, set *Settings, f *model.File
 	d.Skewness = diagnose.Skewness(zc)
 	d.ExcessKurtosis = diagnose.ExcessKurtosis(zc)
 	d.KS = diagnose.KolmogorovSmirnov(zc, dist.CDF)
-	d.QQTheoretical, d.QQSample = thin(diagnose.QQ(zc, dist.Quantile))
+	d.QQTheoretical, d.QQSample = diagnose.QQPoints(zc, dist.Quantile, qqPoints)
 	d.Climatology = climatology(s)
 	return res, nil
 }
@@ -587,20 +587,6 @@ func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.Fil
 	}
 	f.Shocks = params[chosen]
 	return fits[chosen].Dist, nil
-}
-
-// thin keeps about qqPoints evenly spaced pairs, always the two ends.
-func thin(a, b []float64) ([]float64, []float64) {
-	n := len(a)
-	if n <= qqPoints {
-		return a, b
-	}
-	ta, tb := make([]float64, 0, qqPoints), make([]float64, 0, qqPoints)
-	for j := range qqPoints {
-		i := j * (n - 1) / (qqPoints - 1)
-		ta, tb = append(ta, a[i]), append(tb, b[i])
-	}
-	return ta, tb
 }
 
 func finiteOr0(v float64) float64 {

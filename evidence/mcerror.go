@@ -68,7 +68,7 @@ func QuantileSorted(s []float64, p float64) QuantileEstimate {
 	k := sort.Search(n+1, func(k int) bool { return upperTail(n, p, k) <= tail })
 	q := QuantileEstimate{
 		P:     p,
-		Value: stat.Quantile(p, stat.LinInterp, s, nil),
+		Value: SortedQuantile(p, s),
 		Lo:    math.Inf(-1),
 		Hi:    math.Inf(1),
 		J:     j,

@@ -121,8 +121,19 @@ func tLogLik(z []float64, nu float64) float64 {
 	c := unitT(nu).LogProb(0)
 	inv := 1 / (nu - 2)
 	var acc float64
-	for _, x := range z {
-		acc += math.Log1p(x * x * inv)
+	i := 0
+	// Σ log1p as the logarithms of products over blocks of 8 (one logarithm
+	// in 8, the fits' inner loop). Each factor lies between 1 and about
+	// 1 + 10⁴ for standardized shocks and ν above 2, so a product of 8 is far
+	// from overflow; rounding 1 + a for small a moves the sum by about 10⁻¹⁶
+	// a term.
+	for ; i+8 <= len(z); i += 8 {
+		b := z[i : i+8 : i+8]
+		acc += math.Log((1 + b[0]*b[0]*inv) * (1 + b[1]*b[1]*inv) * (1 + b[2]*b[2]*inv) * (1 + b[3]*b[3]*inv) *
+			(1 + b[4]*b[4]*inv) * (1 + b[5]*b[5]*inv) * (1 + b[6]*b[6]*inv) * (1 + b[7]*b[7]*inv))
+	}
+	for ; i < len(z); i++ {
+		acc += math.Log1p(z[i] * z[i] * inv)
 	}
 	return float64(len(z))*c - (nu+1)/2*acc
 }
@@ -132,15 +143,27 @@ func (k skewT) logLik(z []float64) float64 {
 	nu := k.t.Nu
 	c := k.logScale + k.t.LogProb(0)
 	inv := 1 / (nu - 2)
+	s, mu, invXi, xi := k.s, k.mu, k.invXi, k.xi
+	// a is the day's log1p argument, y²/(ν − 2) with y scaled by 1/ξ above
+	// the mode and by ξ below.
+	// The scale is picked by y's sign bit (half and half: a branch would
+	// miss often): A + B·sign(y) is 1/ξ for y ≥ 0 and ξ below.
+	A, B := (invXi+xi)/2, (invXi-xi)/2
+	a := func(x float64) float64 {
+		y := s*x + mu
+		y *= A + B*math.Copysign(1, y)
+		return y * y * inv
+	}
 	var acc float64
-	for _, x := range z {
-		y := k.s*x + k.mu
-		if y >= 0 {
-			y *= k.invXi
-		} else {
-			y *= k.xi
-		}
-		acc += math.Log1p(y * y * inv)
+	i := 0
+	// As tLogLik: logarithms of products over blocks of 8.
+	for ; i+8 <= len(z); i += 8 {
+		b := z[i : i+8 : i+8]
+		acc += math.Log((1 + a(b[0])) * (1 + a(b[1])) * (1 + a(b[2])) * (1 + a(b[3])) *
+			(1 + a(b[4])) * (1 + a(b[5])) * (1 + a(b[6])) * (1 + a(b[7])))
+	}
+	for ; i < len(z); i++ {
+		acc += math.Log1p(a(z[i]))
 	}
 	return float64(len(z))*c - (nu+1)/2*acc
 }

@@ -3,6 +3,8 @@ package shocks
 import (
 	"fmt"
 	"math"
+	"runtime"
+	"sync"
 )
 
 // Layout of a Table. Each half of (0, 1) is tabulated against x = p·2⁵⁴
@@ -49,7 +51,23 @@ const (
 type Table struct {
 	// nodes[0][i] is the quantile at p = xᵢ·2⁻⁵⁴, nodes[1][i] at 1 − xᵢ·2⁻⁵⁴.
 	nodes [2][tableNodes]float64
+	// central[i] is the quantile at p = i/centralCells for i from centralLo
+	// to centralCells − centralLo (Draw32's central range); the others are
+	// zero and never returned.
+	central [centralCells + 1]float64
 }
+
+// Layout of Draw32's central table: the top centralBits of the 32 random
+// bits pick one of centralCells cells of equal width in p, the other
+// centralFrac bits the point inside it. Cells below centralLo or from
+// centralCells − centralLo on (p < 1/64 or p > 63/64, one draw in 32) go to
+// the octave table, whose cells narrow towards the tails.
+const (
+	centralBits  = 11
+	centralCells = 1 << centralBits
+	centralLo    = 32
+	centralFrac  = 32 - centralBits
+)
 
 // NewTable tabulates the quantile function of d. It uses d's UpperQuantile
 // when d implements UpperQuantiler; otherwise the upper tail is Quantile(1 − q),
@@ -65,14 +83,46 @@ func NewTable(d Dist) *Table {
 		upper = uq.UpperQuantile
 	}
 	t := new(Table)
-	for i := range tableNodes {
-		p := nodeX(i) * 0x1p-54
-		t.nodes[0][i] = d.Quantile(p)
-		t.nodes[1][i] = upper(p)
-		for h := range 2 {
-			if v := t.nodes[h][i]; math.IsNaN(v) || math.IsInf(v, 0) {
-				panic(fmt.Sprintf("shocks: quantile of %T at node %d of half %d is %v", d, i, h, v))
+	// The quantiles (thousands of inverse incomplete beta functions for a
+	// t) are shared out among the processors; d's methods are pure.
+	workers := runtime.GOMAXPROCS(0)
+	bad := make([]any, workers) // a panic of d's, or a message, to raise in the caller
+	var wg sync.WaitGroup
+	for w := range workers {
+		wg.Go(func() {
+			defer func() {
+				if r := recover(); r != nil {
+					bad[w] = r
+				}
+			}()
+			check := func(v float64, where string) {
+				if (math.IsNaN(v) || math.IsInf(v, 0)) && bad[w] == nil {
+					bad[w] = fmt.Sprintf("shocks: quantile of %T %s is %v", d, where, v)
+				}
 			}
+			for i := centralLo + w; i <= centralCells-centralLo; i += workers {
+				p := float64(i) / centralCells
+				if i <= centralCells/2 {
+					t.central[i] = d.Quantile(p)
+				} else {
+					t.central[i] = upper(1 - p)
+				}
+				check(t.central[i], fmt.Sprintf("at p = %v", p))
+			}
+			for i := w; i < tableNodes; i += workers {
+				p := nodeX(i) * 0x1p-54
+				t.nodes[0][i] = d.Quantile(p)
+				t.nodes[1][i] = upper(p)
+				for h := range 2 {
+					check(t.nodes[h][i], fmt.Sprintf("at node %d of half %d", i, h))
+				}
+			}
+		})
+	}
+	wg.Wait()
+	for _, r := range bad {
+		if r != nil {
+			panic(r)
 		}
 	}
 	return t
@@ -95,6 +145,73 @@ func (t *Table) Draw(u uint64) float64 {
 	n := &t.nodes[h&1]
 	lo := n[i]
 	return lo + f*(n[i+1]-lo)
+}
+
+// Draw32 maps 32 uniform random bits w to a shock: the quantile at
+// p = (w + ½)·2⁻³², so p lies in [2⁻³³, 1 − 2⁻³³] and the most extreme
+// shocks are the 2⁻³³ ≈ 1.2·10⁻¹⁰ quantiles. One 64-bit draw serves two
+// days. For p in [1/64, 63/64] (31 draws in 32) the quantile is interpolated
+// linearly in p between 2 048 equally spaced nodes (16 KiB); outside, Draw
+// gives it from the octave table at p + 2⁻⁵⁴. Simulation loops call Central
+// and Tail32 themselves so that the common case inlines.
+func (t *Table) Draw32(w uint32) float64 {
+	if v, ok := t.Central(w); ok {
+		return v
+	}
+	return t.Tail32(w)
+}
+
+// Central returns Draw32(w) and true when w falls in the central range;
+// otherwise false (and a value to ignore): call Tail32.
+func (t *Table) Central(w uint32) (float64, bool) {
+	i := w >> centralFrac
+	// f = (the low centralFrac bits + ½)·2^−centralFrac, exactly, from the
+	// bits of a float64 in [1, 2).
+	f := math.Float64frombits(0x3ff<<52|uint64(w)<<(52-centralFrac)&(1<<52-1)|1<<(51-centralFrac)) - 1
+	lo := t.central[i]
+	return lo + f*(t.central[i+1]-lo), i-centralLo < centralCells-2*centralLo
+}
+
+// Tail32 is Draw32 for w outside the central range (it is exact for any w,
+// only slower).
+func (t *Table) Tail32(w uint32) float64 { return t.Draw(uint64(w)<<32 | 1<<31) }
+
+// Moments32 returns the mean and variance of Draw32 over all 2³² equally
+// likely w, computed exactly from the nodes (not by sampling).
+func (t *Table) Moments32() (mean, variance float64) {
+	const w = 0x1p-32 // weight of one value of w
+	var s1, s2 float64
+	add := func(k, mid, spread2 float64) { // k values with this mean and mean square deviation
+		s1 += w * k * mid
+		s2 += w * k * (mid*mid + spread2)
+	}
+	// Central cells: 2^centralFrac values of f = (j + ½)/k spaced evenly.
+	const k = 1 << centralFrac
+	for i := centralLo; i < centralCells-centralLo; i++ {
+		a, b := t.central[i], t.central[i+1]
+		add(k, (a+b)/2, (b-a)*(b-a)*(k*k-1)/(12*k*k))
+	}
+	// Tails: the lower one reads x = 2²²·w + 2²¹ + 1 for w below 2²⁶, the
+	// upper one x = 2²²·w′ + 2²¹ − 1 for w′ = 2³² − 1 − w below 2²⁶. Inside
+	// an octave cell Draw is linear in x, so each cell's points (an
+	// arithmetic progression) sum in closed form.
+	const step, count = 1 << 22, 1 << 26
+	for h, x0 := range [2]float64{1<<21 + 1, 1<<21 - 1} {
+		n := &t.nodes[h]
+		for i := 0; i < tableNodes-1; i++ {
+			lo, hi := nodeX(i), nodeX(i+1)
+			first := max(math.Ceil((lo-x0)/step), 0)
+			last := min(math.Ceil((hi-x0)/step), count) - 1 // points x0 + step·j, j in [first, last]
+			if last < first {
+				continue
+			}
+			c := last - first + 1
+			xm := x0 + step*(first+last)/2
+			slope := (n[i+1] - n[i]) / (hi - lo)
+			add(c, n[i]+slope*(xm-lo), slope*slope*step*step*(c*c-1)/12)
+		}
+	}
+	return s1, s2 - s1*s1
 }
 
 // Moments returns the mean and variance of Draw over all 2⁵³ equally likely
@@ -127,4 +244,36 @@ func (t *Table) Moments() (mean, variance float64) {
 		}
 	}
 	return s1, s2 - s1*s1
+}
+
+// tableCache keeps the tables TableFor made, by distribution: a run and its
+// scenarios, a backtest's refits of one structure and a bootstrap's runs
+// use the same few shapes again and again, and a table takes about as long
+// to build as simulating ten thousand days.
+var tableCache struct {
+	sync.Mutex
+	m map[Dist]*Table
+}
+
+// tableCacheSize bounds the cache; when full it starts again.
+const tableCacheSize = 64
+
+// TableFor is NewTable with a cache: the same distribution (compared as a
+// value, so d's type must be comparable, as Normal, StudentT and SkewT
+// are) gives the same *Table, which is safe for concurrent use.
+func TableFor(d Dist) *Table {
+	tableCache.Lock()
+	t, ok := tableCache.m[d]
+	tableCache.Unlock()
+	if ok {
+		return t
+	}
+	t = NewTable(d)
+	tableCache.Lock()
+	defer tableCache.Unlock()
+	if len(tableCache.m) >= tableCacheSize || tableCache.m == nil {
+		tableCache.m = make(map[Dist]*Table)
+	}
+	tableCache.m[d] = t
+	return t
 }

@@ -8,29 +8,43 @@ import (
 	"wxstress/model"
 )
 
-// BenchmarkPathDay times the per-day kernel: one path of the default
-// periods (year, heating, cooling: 426 accumulated days plus the burn-in)
-// with Student-t shocks, reported per simulated day.
+// BenchmarkPathDay times the per-day kernel: paths of the default periods
+// (year, heating, cooling: 426 accumulated days plus the burn-in) with
+// Student-t shocks, four at a time as a run simulates them, and the
+// accumulation of their indices; reported per simulated day.
 func BenchmarkPathDay(b *testing.B) {
 	benchPathDay(b, flatModel(10, 0.72, 2.5, model.FamilyStudentT, 6))
 }
 
-// benchPathDay times one path of m (temperatures and accumulation) and
-// reports nanoseconds per simulated day.
+// benchPathDay times paths of m (temperatures and accumulation) the way a
+// run's worker does and reports nanoseconds per simulated day.
 func benchPathDay(b *testing.B, m *model.File) {
 	pl, _, err := prepare(m, &Config{Paths: 1, Bases: BasesFor(model.Celsius)})
 	if err != nil {
 		b.Fatal(err)
 	}
 	segs := make([]segStats, len(pl.segs))
-	buf := make([]float64, pl.n)
-	var rng rand.PCG
-	for i := 0; b.Loop(); i++ {
-		seedPath(&rng, 1, i)
-		pl.temps(&rng, buf)
-		pl.accumulate(buf, segs)
+	var rngs [4]rand.PCG
+	var bufs [4][]float64
+	for k := range bufs {
+		bufs[k] = make([]float64, pl.n)
 	}
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(pl.n), "ns/day")
+	k := 1
+	if pl.fast1() {
+		k = 4
+	}
+	for i := 0; b.Loop(); i += k {
+		if k == 4 {
+			pl.temps4(&rngs, &bufs, 1, i)
+		} else {
+			seedPath(&rngs[0], 1, i)
+			pl.temps(&rngs[0], bufs[0])
+		}
+		for j := range k {
+			pl.accumulate(bufs[j], segs)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(k*pl.n), "ns/day")
 }
 
 // BenchmarkRun times a whole run of 100 000 paths on all cores, tail

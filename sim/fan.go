@@ -5,9 +5,11 @@ import (
 	"math/rand/v2"
 	"slices"
 
+	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/stat"
 
 	"wxstress/calendar"
+	"wxstress/evidence"
 	"wxstress/model"
 )
 
@@ -36,7 +38,8 @@ type Fan struct {
 // RunFan simulates paths whole years (the first paths of a run with cfg's
 // seed, so they are the same years as a Run's) and returns their daily
 // quantiles. It keeps paths × days values, so it is for a few thousand
-// paths, not millions.
+// paths, not millions. Paths and rows are shared out among cfg.Workers
+// goroutines.
 func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, error) {
 	cfg.Paths, cfg.Periods = paths, []string{"year"}
 	pl, periods, err := prepare(m, &cfg)
@@ -48,38 +51,54 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 	off := int(y.From - pl.first)
 	temps := matrix(n, paths) // temps[d][path]
 	var demand, ranked [][]float64
-	var dbuf []float64
 	if pl.demand != nil {
-		demand, ranked, dbuf = matrix(n, paths), matrix(n, paths), make([]float64, pl.n)
+		demand, ranked = matrix(n, paths), matrix(n, paths)
 	}
-	var rng rand.PCG
-	buf := make([]float64, pl.n)
-	for i := range paths {
-		if i%1024 == 0 {
-			if err := ctx.Err(); err != nil {
-				return nil, err
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(cfg.Workers)
+	for lo := 0; lo < paths; lo += BatchSize {
+		hi := min(lo+BatchSize, paths)
+		g.Go(func() error {
+			if err := gctx.Err(); err != nil {
+				return err
 			}
-		}
-		pl.path(&rng, cfg.Seed, i, buf, dbuf)
-		for d := range n {
-			temps[d][i] = buf[off+d]
-		}
-		if dbuf != nil {
-			year := slices.Clone(dbuf[off : off+n])
-			slices.Sort(year)
-			for d := range n {
-				demand[d][i] = dbuf[off+d]
-				ranked[d][i] = year[n-1-d]
+			var rngs [4]rand.PCG
+			bufs, dbufs := pl.buffers()
+			year := make([]float64, n)
+			for i := lo; i < hi; {
+				k := 1
+				if pl.fast1() && hi-i >= 4 {
+					k = 4
+				}
+				pl.paths(&rngs, &bufs, &dbufs, cfg.Seed, i, k)
+				for j := range k {
+					for d := range n {
+						temps[d][i+j] = bufs[j][off+d]
+					}
+					if dbuf := dbufs[j]; dbuf != nil {
+						copy(year, dbuf[off:off+n])
+						slices.Sort(year)
+						for d := range n {
+							demand[d][i+j] = dbuf[off+d]
+							ranked[d][i+j] = year[n-1-d]
+						}
+					}
+				}
+				i += k
 			}
-		}
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
 	}
 	f := &Fan{Paths: paths}
 	for d := range n {
 		f.Dates = append(f.Dates, y.From+calendar.Date(d))
 	}
-	f.Q = quantilesByRow(temps)
+	f.Q = quantilesByRow(temps, cfg.Workers)
 	if pl.demand != nil {
-		f.DemandQ, f.LoadDuration = quantilesByRow(demand), quantilesByRow(ranked)
+		f.DemandQ, f.LoadDuration = quantilesByRow(demand, cfg.Workers), quantilesByRow(ranked, cfg.Workers)
 		for _, row := range demand {
 			f.DemandMean = append(f.DemandMean, stat.Mean(row, nil))
 		}
@@ -96,14 +115,25 @@ func matrix(rows, cols int) [][]float64 {
 }
 
 // quantilesByRow returns q[k][r], quantile fanProbs[k] of rows[r] (which it
-// sorts).
-func quantilesByRow(rows [][]float64) [][]float64 {
+// reorders: the few order statistics the quantiles read are selected, not
+// the whole row sorted), on up to workers goroutines.
+func quantilesByRow(rows [][]float64, workers int) [][]float64 {
 	q := matrix(len(fanProbs), len(rows))
+	var g errgroup.Group
+	g.SetLimit(max(workers, 1))
 	for r, row := range rows {
-		slices.Sort(row)
-		for k, p := range fanProbs {
-			q[k][r] = stat.Quantile(p, stat.LinInterp, row, nil)
-		}
+		g.Go(func() error {
+			var ranks []int
+			for _, p := range fanProbs {
+				ranks = append(ranks, evidence.QuantileRanks(p, len(row))...)
+			}
+			evidence.SelectRanks(row, ranks)
+			for k, p := range fanProbs {
+				q[k][r] = evidence.SortedQuantile(p, row)
+			}
+			return nil
+		})
 	}
+	g.Wait()
 	return q
 }

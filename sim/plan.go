@@ -124,7 +124,24 @@ type plan struct {
 	weekday  []time.Weekday
 	holiday  []bool
 	capacity float64
+	// The expected load's terms (model.Demand.Expected): per day the
+	// intercept, weekday and holiday effects; the change points, with the
+	// slopes halved (and zero for an absent side) for the branch-free form.
+	dayBase                []float64
+	heatBP, coolBP         float64
+	heatSlope2, coolSlope2 float64
+	// The noise's scale (model.DemandNoise.NoiseSigma).
+	noiseKind            int
+	loadSigma            float64 // σ/Ē, the load scale
+	bandEdges, bandSigma []float64
 }
+
+// Kinds of demand noise scale.
+const (
+	noiseConstant = iota
+	noiseLoad
+	noiseBands
+)
 
 // planEvent is a scenario event resolved to the run's days: its start is
 // drawn from [lo, hi].
@@ -140,14 +157,14 @@ type planEvent struct {
 
 const maxAR = 5
 
-// etaBits low bits of each day's 64-bit draw, which the fast part's shock
-// table does not read (it uses the top 54), pick the slow part's shock η:
-// one of etaLevels equally likely normal quantiles at the cell midpoints
-// Φ⁻¹((k + ½)/1024), scaled to unit variance. The slow part sums hundreds of
+// etaBits low bits of each day's 32 random bits, which the fast part's
+// shock does not read (shockWord), pick the slow part's shock η: one of
+// etaLevels equally likely normal quantiles at the cell midpoints
+// Φ⁻¹((k + ½)/32), scaled to unit variance. The slow part sums hundreds of
 // them before it moves appreciably (its e-folding time is weeks to months),
 // so its law is normal to well within sampling error (TestSlowPartLaw).
 const (
-	etaBits   = 10
+	etaBits   = 5
 	etaLevels = 1 << etaBits
 )
 
@@ -251,7 +268,7 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	if sl := m.Slow; sl != nil {
 		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)
 		pl.eta = slowGrid()
-		pl.startNormal = shocks.NewTable(shocks.Normal{})
+		pl.startNormal = shocks.TableFor(shocks.Normal{})
 		pl.f0SD = sl.SD
 		if cfg.Start == StartConditional {
 			pl.f0Mean, pl.f0SD, pl.conditional = sl.State, sl.StateSD, true
@@ -344,11 +361,15 @@ func (pl *plan) setShocks(s model.Shocks, months []int) error {
 		}
 		return nil
 	}
-	pl.table = shocks.NewTable(fam.New(s))
-	// The table cuts the tails beyond 2⁻⁵⁴: negligible for ν ≥ 3, but for ν
-	// near 2 much of the variance lies out there. Rescale so the shocks
-	// simulated have unit variance whatever ν is.
-	if _, v := pl.table.Moments(); v > 0 && v != 1 {
+	pl.table = shocks.TableFor(fam.New(s))
+	// The days' 32 random bits cut the tails beyond 2⁻³³ (2⁻²⁸ with a slow
+	// part): negligible for ν above about 5, but for ν near 2 much of the
+	// variance lies out there. Rescale so the shocks simulated have unit
+	// variance whatever ν is. (Moments32 is that of all 32 bits; with a
+	// slow part the fast shock's p sits at the midpoints of 2²⁷ cells of
+	// the same grid, whose variance differs from it by far less than the
+	// cut's.)
+	if _, v := pl.table.Moments32(); v > 0 && v != 1 {
 		c := 1 / math.Sqrt(v)
 		for i := range pl.sd {
 			pl.sd[i] *= c
@@ -388,7 +409,7 @@ func (pl *plan) setDemand(cfg *Config) {
 	if pl.growth == 0 {
 		pl.growth = 1
 	}
-	pl.normal = shocks.NewTable(shocks.Normal{})
+	pl.normal = shocks.TableFor(shocks.Normal{})
 	if cfg.Start == StartConditional {
 		pl.u0 = cfg.Demand.Noise.Last
 	}
@@ -398,9 +419,31 @@ func (pl *plan) setDemand(cfg *Config) {
 	}
 	pl.weekday = make([]time.Weekday, pl.n)
 	pl.holiday = make([]bool, pl.n)
+	pl.dayBase = make([]float64, pl.n)
+	dm := cfg.Demand
 	for i := range pl.n {
 		d := pl.first + calendar.Date(i)
 		pl.weekday[i], pl.holiday[i] = d.Weekday(), hol[d]
+		// Expected's own order of additions: intercept, weekday, holiday.
+		pl.dayBase[i] = dm.Intercept + dm.Weekday[(d.Weekday()+6)%7]
+		if hol[d] {
+			pl.dayBase[i] += dm.Holiday
+		}
+	}
+	if h := dm.Heating; h.Present {
+		pl.heatBP, pl.heatSlope2 = h.BalancePoint, h.Slope/2
+	}
+	if c := dm.Cooling; c.Present {
+		pl.coolBP, pl.coolSlope2 = c.BalancePoint, c.Slope/2
+	}
+	nz := dm.Noise
+	switch {
+	case nz.Scale == "load" && nz.MeanLoad > 0:
+		pl.noiseKind, pl.loadSigma = noiseLoad, nz.Sigma/nz.MeanLoad
+	case nz.Scale == "bands" && len(nz.BandSigma) == len(nz.BandEdges)+1:
+		pl.noiseKind, pl.bandEdges, pl.bandSigma = noiseBands, nz.BandEdges, nz.BandSigma
+	default:
+		pl.noiseKind = noiseConstant
 	}
 	pl.indices = append(pl.indices, Energy, PeakDemand, PeakDay)
 	pl.capacity = math.Inf(1)

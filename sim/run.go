@@ -12,6 +12,7 @@ import (
 
 	"wxstress/calendar"
 	"wxstress/model"
+	"wxstress/shocks"
 )
 
 // Config is a simulation run.
@@ -205,26 +206,30 @@ func Run(ctx context.Context, m *model.File, cfg Config) (*Result, error) {
 			if err := gctx.Err(); err != nil {
 				return err
 			}
-			var rng rand.PCG
+			var rngs [4]rand.PCG
+			bufs, dbufs := pl.buffers()
 			segs := make([]segStats, len(pl.segs))
-			buf := make([]float64, pl.n)
-			var dbuf []float64
-			if pl.demand != nil {
-				dbuf = make([]float64, pl.n)
-			}
-			for i := lo; i < hi; i++ {
-				pl.path(&rng, cfg.Seed, i, buf, dbuf)
-				pl.accumulate(buf, segs)
-				if dbuf != nil {
-					pl.accumulateDemand(dbuf, segs)
+			for i := lo; i < hi; {
+				k := 1
+				if pl.fast1() && hi-i >= 4 {
+					k = 4
 				}
-				pl.collect(segs, out, i)
-				if pl.snapDays > 0 {
-					pl.snaps(buf, dbuf, out, i)
+				pl.paths(&rngs, &bufs, &dbufs, cfg.Seed, i, k)
+				for j := range k {
+					buf, dbuf := bufs[j], dbufs[j]
+					pl.accumulate(buf, segs)
+					if dbuf != nil {
+						pl.accumulateDemand(dbuf, segs)
+					}
+					pl.collect(segs, out, i+j)
+					if pl.snapDays > 0 {
+						pl.snaps(buf, dbuf, out, i+j)
+					}
+					if pl.topDays > 0 {
+						pl.top(dbuf, res.Top, i+j)
+					}
 				}
-				if pl.topDays > 0 {
-					pl.top(dbuf, res.Top, i)
-				}
+				i += k
 			}
 			if cfg.Progress != nil {
 				cfg.Progress(hi - lo)
@@ -306,77 +311,264 @@ type segStats struct {
 
 // temps fills buf (pl.n days) with one path's daily temperatures: the AR
 // anomaly driven by the day's shock, the slow part when the model has one,
-// plus the seasonal mean. AR(1) with tabulated shocks, the common case, has
-// its own loops. The slow part's start is one draw from rng before the
-// days; the models without one draw nothing extra, so their streams are as
-// they were.
+// plus the seasonal mean.
+//
+// Random bits: the slow part's start (when the model has one) takes one
+// 64-bit draw; then each 64-bit draw serves two days, its low 32 bits the
+// first and its high 32 bits the second. Without a slow part a day's 32
+// bits are the fast shock's (Table.Draw32: p resolution 2⁻³²); with one,
+// the low etaBits pick the slow part's shock η and the other 27 the fast
+// shock's p (resolution 2⁻²⁷, the extreme shocks at p = 2⁻²⁸ ≈ 3.7·10⁻⁹).
 func (pl *plan) temps(rng *rand.PCG, buf []float64) {
-	if n := len(pl.obs); n > 0 {
-		// A season under way: its observed days, then the simulation from
-		// the data end.
-		copy(buf, pl.obs)
-		pl.simulate(rng, buf[n:], n)
-		return
-	}
-	pl.simulate(rng, buf, 0)
+	n, x, f := pl.start(rng, buf)
+	pl.simulate(rng, buf[n:], n, x, f)
 }
 
-// simulate fills buf with the simulated days from day off of the plan on.
-func (pl *plan) simulate(rng *rand.PCG, buf []float64, off int) {
-	mean, sd := pl.mean[off:off+len(buf)], pl.sd[off:off+len(buf)]
-	x0 := pl.x0
-	f := 0.0
+// start copies the observed days of a season under way into buf and
+// returns how many there are, the fast AR state x before the first
+// simulated day and the slow part's start f (drawn from rng).
+func (pl *plan) start(rng *rand.PCG, buf []float64) (int, [maxAR]float64, float64) {
+	x, f := pl.x0, 0.0
 	if pl.slow {
 		f = pl.f0Mean + pl.f0SD*pl.startNormal.Draw(rng.Uint64())
 		if pl.conditional {
 			for i := range pl.p {
-				x0[i] -= f
+				x[i] -= f
 			}
 		}
 	}
-	if pl.table != nil && pl.p == 1 {
-		tab, phi, x := pl.table, pl.phi[0], x0[0]
-		if !pl.slow {
-			for d := range buf {
-				x = phi*x + sd[d]*tab.Draw(rng.Uint64())
-				buf[d] = mean[d] + x
-			}
-			return
-		}
-		eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
-		for d := range buf {
-			u := rng.Uint64()
-			x = phi*x + sd[d]*tab.Draw(u)
-			f = phiS*f + q*eta[u&(etaLevels-1)]
-			buf[d] = mean[d] + x + f
-		}
+	return copy(buf, pl.obs), x, f
+}
+
+// shockWord is the part of a day's 32 random bits the fast shock reads:
+// all of them without a slow part, else the top 27 with the etaBits below
+// set to the middle of their range (so p is the cell's midpoint).
+func shockWord(w uint32, slow bool) uint32 {
+	if slow {
+		return w&^(etaLevels-1) | etaLevels/2
+	}
+	return w
+}
+
+// simulate fills buf with the simulated days from day off of the plan on,
+// from the AR state x0 and the slow part's start f.
+func (pl *plan) simulate(rng *rand.PCG, buf []float64, off int, x0 [maxAR]float64, f float64) {
+	mean, sd := pl.mean[off:off+len(buf)], pl.sd[off:off+len(buf)]
+	if pl.fast1() {
+		pl.simulate1(rng, buf, mean, sd, x0[0], f)
 		return
 	}
 	p1, p2, p3, p4, p5 := pl.phi[0], pl.phi[1], pl.phi[2], pl.phi[3], pl.phi[4]
 	x1, x2, x3, x4, x5 := x0[0], x0[1], x0[2], x0[3], x0[4]
 	phiS, q := pl.phiS, pl.slowQ // zero without a slow part: f stays 0
-	var eta *[etaLevels]float64
+	eta := &zeroEta
 	if pl.slow {
 		eta = pl.eta
-	} else {
-		eta = &zeroEta
 	}
+	var u uint64
 	for d := range buf {
-		u := rng.Uint64()
+		if d&1 == 0 {
+			u = rng.Uint64()
+		} else {
+			u >>= 32
+		}
+		w := uint32(u)
+		sw := shockWord(w, pl.slow)
 		var z float64
 		if pl.table != nil {
-			z = pl.table.Draw(u)
+			z = pl.table.Draw32(sw)
 		} else {
-			// The bootstrap index takes the top bits (a 64×64 high product),
-			// so the low bits stay free for η.
-			hi, _ := bits.Mul64(u, pl.poolLen[off+d])
-			z = pl.pool[pl.poolOff[off+d]+int32(hi)]
+			// The bootstrap index: the top bits of sw·L (a multiply-shift
+			// map of 32 bits onto the pool of L).
+			z = pl.pool[pl.poolOff[off+d]+int32(uint64(sw)*pl.poolLen[off+d]>>32)]
 		}
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
-		f = phiS*f + q*eta[u&(etaLevels-1)]
+		f = phiS*f + q*eta[w&(etaLevels-1)]
 		buf[d] = mean[d] + x + f
 	}
+}
+
+// fast1 reports whether the run takes the AR(1) loops with a shock table
+// (simulate1 and simulate4), the common case.
+func (pl *plan) fast1() bool { return pl.table != nil && pl.p == 1 }
+
+// simulate1 is simulate for an AR(1) with a shock table. Its arithmetic is
+// simulate4's for one path, so a path's numbers do not depend on which of
+// the two ran it.
+func (pl *plan) simulate1(rng *rand.PCG, buf, mean, sd []float64, x, f float64) {
+	tab, phi := pl.table, pl.phi[0]
+	var u uint64
+	if !pl.slow {
+		for d := range buf {
+			if d&1 == 0 {
+				u = rng.Uint64()
+			} else {
+				u >>= 32
+			}
+			z, ok := tab.Central(uint32(u))
+			if !ok {
+				z = tab.Tail32(uint32(u))
+			}
+			x = phi*x + sd[d]*z
+			buf[d] = mean[d] + x
+		}
+		return
+	}
+	eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
+	for d := range buf {
+		if d&1 == 0 {
+			u = rng.Uint64()
+		} else {
+			u >>= 32
+		}
+		w := uint32(u)
+		z, ok := tab.Central(shockWord(w, true))
+		if !ok {
+			z = tab.Tail32(shockWord(w, true))
+		}
+		x = phi*x + sd[d]*z
+		f = phiS*f + q*eta[w&(etaLevels-1)]
+		buf[d] = mean[d] + x + f
+	}
+}
+
+// simulate4 is simulate1 for four paths at once: their recursions and
+// random streams are independent, so the processor overlaps the latency of
+// one path's step with the others'. Every path gets the numbers simulate1
+// would give it. The day's step is written out for each half of the draws
+// (and the odd last day): a loop over the halves or a helper the compiler
+// will not inline keeps the states in memory and costs twice the time.
+func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]float64, f [4]float64) {
+	tab, phi := pl.table, pl.phi[0]
+	m := pl.n - n
+	mean, sd := pl.mean[n:pl.n], pl.sd[n:pl.n]
+	b0, b1, b2, b3 := bufs[0][n:pl.n], bufs[1][n:pl.n], bufs[2][n:pl.n], bufs[3][n:pl.n]
+	b0, b1, b2, b3 = b0[:m], b1[:m], b2[:m], b3[:m]
+	sd, mean = sd[:m], mean[:m]
+	r0, r1, r2, r3 := &rngs[0], &rngs[1], &rngs[2], &rngs[3]
+	x0, x1, x2, x3 := x[0], x[1], x[2], x[3]
+	var u0, u1, u2, u3 uint64
+	var s, mu, z0, z1, z2, z3 float64
+	var w0, w1, w2, w3 uint32
+	var ok0, ok1, ok2, ok3 bool
+	if !pl.slow {
+		// Two days per iteration, the low and the high halves of the draws.
+		d := 0
+		for ; d+1 < m; d += 2 {
+			u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+			s, mu = sd[d], mean[d]
+			w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+			z0, ok0 = tab.Central(w0)
+			z1, ok1 = tab.Central(w1)
+			z2, ok2 = tab.Central(w2)
+			z3, ok3 = tab.Central(w3)
+			if !(ok0 && ok1 && ok2 && ok3) {
+				z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			}
+			x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+			b0[d], b1[d], b2[d], b3[d] = mu+x0, mu+x1, mu+x2, mu+x3
+			s, mu = sd[d+1], mean[d+1]
+			w0, w1, w2, w3 = uint32(u0>>32), uint32(u1>>32), uint32(u2>>32), uint32(u3>>32)
+			z0, ok0 = tab.Central(w0)
+			z1, ok1 = tab.Central(w1)
+			z2, ok2 = tab.Central(w2)
+			z3, ok3 = tab.Central(w3)
+			if !(ok0 && ok1 && ok2 && ok3) {
+				z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			}
+			x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+			b0[d+1], b1[d+1], b2[d+1], b3[d+1] = mu+x0, mu+x1, mu+x2, mu+x3
+		}
+		if d < m {
+			u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+			s, mu = sd[d], mean[d]
+			w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+			z0, ok0 = tab.Central(w0)
+			z1, ok1 = tab.Central(w1)
+			z2, ok2 = tab.Central(w2)
+			z3, ok3 = tab.Central(w3)
+			if !(ok0 && ok1 && ok2 && ok3) {
+				z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			}
+			x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+			b0[d], b1[d], b2[d], b3[d] = mu+x0, mu+x1, mu+x2, mu+x3
+		}
+		return
+	}
+	eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
+	f0, f1, f2, f3 := f[0], f[1], f[2], f[3]
+	// Two days per iteration, the low and the high halves of the draws.
+	d := 0
+	for ; d+1 < m; d += 2 {
+		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+		s, mu = sd[d], mean[d]
+		w0, w1, w2, w3 = shockWord(uint32(u0), true), shockWord(uint32(u1), true), shockWord(uint32(u2), true), shockWord(uint32(u3), true)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+		f0 = phiS*f0 + q*eta[u0&(etaLevels-1)]
+		f1 = phiS*f1 + q*eta[u1&(etaLevels-1)]
+		f2 = phiS*f2 + q*eta[u2&(etaLevels-1)]
+		f3 = phiS*f3 + q*eta[u3&(etaLevels-1)]
+		b0[d], b1[d], b2[d], b3[d] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
+		s, mu = sd[d+1], mean[d+1]
+		w0, w1, w2, w3 = shockWord(uint32(u0>>32), true), shockWord(uint32(u1>>32), true), shockWord(uint32(u2>>32), true), shockWord(uint32(u3>>32), true)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+		f0 = phiS*f0 + q*eta[u0>>32&(etaLevels-1)]
+		f1 = phiS*f1 + q*eta[u1>>32&(etaLevels-1)]
+		f2 = phiS*f2 + q*eta[u2>>32&(etaLevels-1)]
+		f3 = phiS*f3 + q*eta[u3>>32&(etaLevels-1)]
+		b0[d+1], b1[d+1], b2[d+1], b3[d+1] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
+	}
+	if d < m {
+		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+		s, mu = sd[d], mean[d]
+		w0, w1, w2, w3 = shockWord(uint32(u0), true), shockWord(uint32(u1), true), shockWord(uint32(u2), true), shockWord(uint32(u3), true)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
+		f0 = phiS*f0 + q*eta[u0&(etaLevels-1)]
+		f1 = phiS*f1 + q*eta[u1&(etaLevels-1)]
+		f2 = phiS*f2 + q*eta[u2&(etaLevels-1)]
+		f3 = phiS*f3 + q*eta[u3&(etaLevels-1)]
+		b0[d], b1[d], b2[d], b3[d] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
+	}
+}
+
+// tail4 replaces the shocks of simulate4 whose words fall outside the
+// central table (one in 32) by the tail table's.
+func tail4(tab *shocks.Table, z0, z1, z2, z3 float64, ok0, ok1, ok2, ok3 bool, w0, w1, w2, w3 uint32) (float64, float64, float64, float64) {
+	if !ok0 {
+		z0 = tab.Tail32(w0)
+	}
+	if !ok1 {
+		z1 = tab.Tail32(w1)
+	}
+	if !ok2 {
+		z2 = tab.Tail32(w2)
+	}
+	if !ok3 {
+		z3 = tab.Tail32(w3)
+	}
+	return z0, z1, z2, z3
 }
 
 // zeroEta stands in for the η grid without a slow part.
@@ -387,6 +579,74 @@ var zeroEta [etaLevels]float64
 func (pl *plan) path(rng *rand.PCG, seed uint64, i int, buf, dbuf []float64) {
 	seedPath(rng, seed, i)
 	pl.temps(rng, buf)
+	pl.finish(rng, seed, i, buf, dbuf)
+}
+
+// temps4 fills bufs with the temperatures of paths i to i+3 (fast1 runs):
+// what temps gives each of them alone.
+func (pl *plan) temps4(rngs *[4]rand.PCG, bufs *[4][]float64, seed uint64, i int) {
+	var x, f [4]float64
+	n := 0
+	for k := range rngs {
+		seedPath(&rngs[k], seed, i+k)
+		var xk [maxAR]float64
+		n, xk, f[k] = pl.start(&rngs[k], bufs[k])
+		x[k] = xk[0]
+	}
+	pl.simulate4(rngs, bufs, n, x, f)
+}
+
+// buffers returns a worker's day buffers for four paths: temperatures and,
+// with a demand model, demand.
+func (pl *plan) buffers() (bufs, dbufs [4][]float64) {
+	for k := range bufs {
+		bufs[k] = make([]float64, pl.n)
+		if pl.demand != nil {
+			dbufs[k] = make([]float64, pl.n)
+		}
+	}
+	return bufs, dbufs
+}
+
+// paths simulates paths i to i+k−1 of a run with the given seed (k is 1,
+// or 4 for fast1 plans): temperatures into bufs and, with a demand model,
+// demand into dbufs. Every path gets what path gives it alone.
+func (pl *plan) paths(rngs *[4]rand.PCG, bufs, dbufs *[4][]float64, seed uint64, i, k int) {
+	if k == 4 {
+		pl.temps4(rngs, bufs, seed, i)
+	} else {
+		seedPath(&rngs[0], seed, i)
+		pl.temps(&rngs[0], bufs[0])
+	}
+	if len(pl.events) > 0 {
+		for j := range k {
+			seedPath(&rngs[j], seed^eventSalt, i+j)
+			pl.inject(&rngs[j], bufs[j])
+		}
+	}
+	if pl.demand == nil {
+		return
+	}
+	n := 0
+	for j := range k {
+		seedPath(&rngs[j], seed^demandSalt, i+j)
+		n = copy(dbufs[j], pl.obsLoad) // a season under way: its observed loads first
+	}
+	if k == 4 {
+		outs := [4][]float64{dbufs[0][n:pl.n], dbufs[1][n:pl.n], dbufs[2][n:pl.n], dbufs[3][n:pl.n]}
+		demandShocks4(pl.normal, rngs, &outs)
+	} else {
+		demandShocks(pl.normal, &rngs[0], dbufs[0][n:pl.n])
+	}
+	for j := range k {
+		pl.demandLoads(bufs[j], dbufs[j], n)
+	}
+}
+
+// finish adds what follows a path's temperatures in buf: the scenario's
+// events and, when the run has a demand model, the demand into dbuf. Each
+// has its own stream, so rng's state on entry does not matter.
+func (pl *plan) finish(rng *rand.PCG, seed uint64, i int, buf, dbuf []float64) {
 	if len(pl.events) > 0 {
 		seedPath(rng, seed^eventSalt, i)
 		pl.inject(rng, buf)
@@ -400,27 +660,173 @@ func (pl *plan) path(rng *rand.PCG, seed uint64, i int, buf, dbuf []float64) {
 // demandSalt separates the demand noise's random stream from the others.
 const demandSalt = 0xde3a2d5a17
 
-// demandPath fills dbuf with one path's daily demand for temperatures buf.
+// demandPath fills dbuf with one path's daily demand for temperatures buf
+// (demandShocks, then demandLoads).
 func (pl *plan) demandPath(rng *rand.PCG, buf, dbuf []float64) {
-	d := pl.demand
-	phi, sigma, tab := d.Noise.Phi, d.Noise.Sigma, pl.normal
-	u := pl.u0
-	wd, hol := pl.weekday[:len(buf)], pl.holiday[:len(buf)]
 	n := copy(dbuf, pl.obsLoad) // a season under way: its observed loads first
-	scale := pl.growth
-	if d.Noise.Scale == "" || d.Noise.Scale == "constant" {
-		for i := n; i < len(buf); i++ {
-			u = phi*u + sigma*tab.Draw(rng.Uint64())
-			dbuf[i] = scale * (d.Expected(buf[i], wd[i], hol[i]) + u)
+	demandShocks(pl.normal, rng, dbuf[n:len(buf)])
+	pl.demandLoads(buf, dbuf, n)
+}
+
+// demandShocks fills out with the demand noise's unit shocks from rng; one
+// 64-bit draw serves two days, as for the temperatures.
+func demandShocks(tab *shocks.Table, rng *rand.PCG, out []float64) {
+	var u uint64
+	for i := range out {
+		if i&1 == 0 {
+			u = rng.Uint64()
+		} else {
+			u >>= 32
 		}
+		z, ok := tab.Central(uint32(u))
+		if !ok {
+			z = tab.Tail32(uint32(u))
+		}
+		out[i] = z
+	}
+}
+
+// demandShocks4 is demandShocks for four paths at once, so that their
+// random streams overlap.
+func demandShocks4(tab *shocks.Table, rngs *[4]rand.PCG, outs *[4][]float64) {
+	r0, r1, r2, r3 := &rngs[0], &rngs[1], &rngs[2], &rngs[3]
+	o0, o1, o2, o3 := outs[0], outs[1], outs[2], outs[3]
+	m := len(o0)
+	o1, o2, o3 = o1[:m], o2[:m], o3[:m]
+	var u0, u1, u2, u3 uint64
+	var z0, z1, z2, z3 float64
+	var w0, w1, w2, w3 uint32
+	var ok0, ok1, ok2, ok3 bool
+	i := 0
+	for ; i+1 < m; i += 2 {
+		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+		w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		o0[i], o1[i], o2[i], o3[i] = z0, z1, z2, z3
+		w0, w1, w2, w3 = uint32(u0>>32), uint32(u1>>32), uint32(u2>>32), uint32(u3>>32)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		o0[i+1], o1[i+1], o2[i+1], o3[i+1] = z0, z1, z2, z3
+	}
+	if i < m {
+		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
+		w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+		z0, ok0 = tab.Central(w0)
+		z1, ok1 = tab.Central(w1)
+		z2, ok2 = tab.Central(w2)
+		z3, ok3 = tab.Central(w3)
+		if !(ok0 && ok1 && ok2 && ok3) {
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+		}
+		o0[i], o1[i], o2[i], o3[i] = z0, z1, z2, z3
+	}
+}
+
+// demandLoads turns the unit shocks in dbuf[n:] into loads: the expected
+// load plus AR(1) noise of the day's scale σ, times the growth factor. The
+// recursion u(t) = φ·u(t−1) + σ(t)·z(t) is stepped as u(t) = φ²·u(t−2) +
+// φ·e(t−1) + e(t), two interleaved chains, so that each waits on a
+// multiply-add only every other day.
+func (pl *plan) demandLoads(buf, dbuf []float64, n int) {
+	if n == len(buf) {
 		return
 	}
-	// Noise whose scale follows the day (its expected load or temperature).
-	for i := n; i < len(buf); i++ {
-		e := d.Expected(buf[i], wd[i], hol[i])
-		u = phi*u + d.Noise.NoiseSigma(e, buf[i])*tab.Draw(rng.Uint64())
-		dbuf[i] = scale * (e + u)
+	temps, out := buf[n:], dbuf[n:len(buf)]
+	out = out[:len(temps)]
+	ex := pl.expectation(n, len(buf))
+	phi, scale := pl.demand.Noise.Phi, pl.growth
+	phi2 := phi * phi
+	// The innovations e = σ·z first, in place.
+	switch pl.noiseKind {
+	case noiseConstant:
+		sigma := pl.demand.Noise.Sigma
+		for i := range out {
+			out[i] *= sigma
+		}
+	case noiseLoad:
+		k := pl.loadSigma
+		for i, t := range temps {
+			out[i] *= k * max(ex.at(i, t), 0)
+		}
+	default:
+		edges, sig := pl.bandEdges, pl.bandSigma
+		if len(edges) == 3 { // the quartile bands calibrate fits
+			e0, e1, e2 := edges[0], edges[1], edges[2]
+			s := [4]float64(sig)
+			for i, t := range temps {
+				// Each comparison as a 0 or 1 (a set-on-condition, not a
+				// branch: which band a day falls in is a coin toss).
+				k0, k1, k2 := 0, 0, 0
+				if t >= e0 {
+					k0 = 1
+				}
+				if t >= e1 {
+					k1 = 1
+				}
+				if t >= e2 {
+					k2 = 1
+				}
+				out[i] *= s[(k0+k1+k2)&3]
+			}
+			break
+		}
+		for i, t := range temps {
+			k := 0
+			for _, edge := range edges {
+				c := 0
+				if t >= edge {
+					c = 1
+				}
+				k += c
+			}
+			out[i] *= sig[k]
+		}
 	}
+	// The first day takes one ordinary step from u0.
+	prev, e1 := pl.u0, out[0] // u(t−2) and e(t−1) for the next day
+	u1 := phi*prev + e1
+	out[0] = scale * (ex.at(0, temps[0]) + u1)
+	base := ex.base[:len(temps)]
+	hbp, cbp, hs, cs := ex.heatBP, ex.coolBP, ex.heatSlope2, ex.coolSlope2
+	for i := 1; i < len(temps); i++ {
+		e, t := out[i], temps[i]
+		v := phi2*prev + (phi*e1 + e)
+		a, b := hbp-t, t-cbp // expectation.at, its fields in registers
+		out[i] = scale * (base[i] + hs*(a+math.Abs(a)) + cs*(b+math.Abs(b)) + v)
+		prev, u1, e1 = u1, v, e
+	}
+}
+
+// expectation holds the demand model's expected load (model.Demand.
+// Expected) for days lo to hi of the plan: the days' calendar terms and the
+// change points, with the slopes halved (zero for an absent side) for the
+// branch-free form — a shoulder-season day is a coin toss to a branch
+// predictor.
+type expectation struct {
+	base                   []float64
+	heatBP, coolBP         float64
+	heatSlope2, coolSlope2 float64
+}
+
+func (pl *plan) expectation(lo, hi int) expectation {
+	return expectation{pl.dayBase[lo:hi], pl.heatBP, pl.coolBP, pl.heatSlope2, pl.coolSlope2}
+}
+
+// at is the expected load on the i-th day of the range at temperature t.
+func (x expectation) at(i int, t float64) float64 {
+	a, b := x.heatBP-t, t-x.coolBP
+	return x.base[i] + x.heatSlope2*(a+math.Abs(a)) + x.coolSlope2*(b+math.Abs(b))
 }
 
 // accumulateDemand adds one path's demand statistics to its segments.
@@ -428,18 +834,48 @@ func (pl *plan) accumulateDemand(dbuf []float64, segs []segStats) {
 	capacity := pl.capacity
 	for s, sg := range pl.segs {
 		st := &segs[s]
-		sum, peak, at, over := 0.0, math.Inf(-1), sg.lo, 0
-		for i, v := range dbuf[sg.lo:sg.hi] {
-			sum += v
-			if v > peak {
-				peak, at = v, sg.lo+i
-			}
-			if v > capacity {
-				over++
-			}
-		}
-		st.energy, st.peak, st.peakAt, st.over = sum, peak, at, over
+		st.energy, st.peak, st.peakAt, st.over = demandStats(dbuf[sg.lo:sg.hi], capacity)
+		st.peakAt += sg.lo
 	}
+}
+
+// demandStats returns the total of days, the highest day and its index, and
+// the number of days above capacity. Its own function keeps the loop's
+// values in registers; two sums halve the add-latency chain.
+func demandStats(days []float64, capacity float64) (energy, peak float64, at, over int) {
+	var s0, s1 float64
+	peak = math.Inf(-1)
+	i := 0
+	for ; i+1 < len(days); i += 2 {
+		v, w := days[i], days[i+1]
+		s0 += v
+		s1 += w
+		if v > peak {
+			peak, at = v, i
+		}
+		if w > peak {
+			peak, at = w, i+1
+		}
+		c := 0
+		if v > capacity {
+			c = 1
+		}
+		if w > capacity {
+			c++
+		}
+		over += c
+	}
+	if i < len(days) {
+		v := days[i]
+		s0 += v
+		if v > peak {
+			peak, at = v, i
+		}
+		if v > capacity {
+			over++
+		}
+	}
+	return s0 + s1, peak, at, over
 }
 
 // eventSalt separates the events' random stream from the temperature
@@ -469,47 +905,83 @@ func (pl *plan) inject(rng *rand.PCG, buf []float64) {
 // degree days as max(x, 0) = (x + |x|)/2 (no branch, no NaN handling), the
 // cold-run counter branch-free.
 func (pl *plan) accumulate(buf []float64, segs []segStats) {
-	hb, cb, cold := pl.bases.HDD, pl.bases.CDD, pl.bases.ColdBelow
+	b := pl.bases
 	for s, sg := range pl.segs {
 		days := buf[sg.lo:sg.hi]
-		// Two interleaved sums per index halve the add-latency chain.
-		var h0, h1, c0, c1 float64 // twice the degree days, even and odd days
-		lo, hi := math.Inf(1), math.Inf(-1)
-		i := 0
-		for ; i+1 < len(days); i += 2 {
-			t, u := days[i], days[i+1]
-			a, b := hb-t, hb-u
-			h0 += a + math.Abs(a)
-			h1 += b + math.Abs(b)
-			a, b = t-cb, u-cb
-			c0 += a + math.Abs(a)
-			c1 += b + math.Abs(b)
-			lo, hi = min3(lo, t, u), max3(hi, t, u)
+		var st segStats
+		if b.HDD == b.CDD {
+			st = sameBaseStats(days, b.HDD, b.ColdBelow)
+		} else {
+			st = segmentStats(days, b.HDD, b.CDD, b.ColdBelow)
 		}
-		if i < len(days) {
-			t := days[i]
-			a, b := hb-t, t-cb
-			h0 += a + math.Abs(a)
-			c0 += b + math.Abs(b)
-			lo, hi = min3(lo, t, t), max3(hi, t, t)
-		}
-		hdd2, cdd2 := h0+h1, c0+c1
-		var count, best, prefix, run int
-		alive := -1 // all ones while every day so far was cold
-		for _, t := range days {
-			c := 0
-			if t < cold {
-				c = 1
-			}
-			run = (run + 1) & -c
-			best = max(best, run)
-			count += c
-			alive &= -c
-			prefix -= alive
-		}
-		segs[s] = segStats{hdd: hdd2 / 2, cdd: cdd2 / 2, lo: lo, hi: hi, cold: count, best: best, prefix: prefix,
-			suffix: run, length: len(days)}
+		st.length = len(days)
+		segs[s] = st
 	}
+}
+
+// orderedBits maps a float64 to an int64 of the same order (negative
+// floats have their magnitude bits flipped), so that the lowest and
+// highest day are integer min and max, which compile to conditional
+// moves: a new record is rare but unpredictable, and a mispredicted branch
+// costs more than the moves. It is its own inverse.
+func orderedBits(x int64) int64 { return x ^ int64(uint64(x>>63)>>1) }
+
+// sameBaseStats returns the statistics of a segment's days when the HDD
+// and CDD bases are equal (the usual case): with a = base − t, the day's
+// HDD is (a + |a|)/2 and its CDD (|a| − a)/2, one absolute value for both
+// and exact zeros on the days without. Each day's values stay in
+// registers, and a cold day and a new record are coin tosses to a branch
+// predictor, so the loop has no branch but its own.
+func sameBaseStats(days []float64, base, cold float64) segStats {
+	var h, c float64 // twice the degree days
+	lo, hi := orderedBits(int64(math.Float64bits(math.Inf(1)))), orderedBits(int64(math.Float64bits(math.Inf(-1))))
+	var count, best, prefix, run int
+	alive := -1 // all ones while every day so far was cold
+	for _, t := range days {
+		a := base - t
+		m := math.Abs(a)
+		h += a + m
+		c += m - a
+		k := orderedBits(int64(math.Float64bits(t)))
+		lo, hi = min(lo, k), max(hi, k)
+		d := 0
+		if t < cold {
+			d = 1
+		}
+		run = (run + 1) & -d
+		best = max(best, run)
+		count += d
+		alive &= -d
+		prefix -= alive
+	}
+	return segStats{hdd: h / 2, cdd: c / 2, lo: math.Float64frombits(uint64(orderedBits(lo))),
+		hi: math.Float64frombits(uint64(orderedBits(hi))), cold: count, best: best, prefix: prefix, suffix: run}
+}
+
+// segmentStats is sameBaseStats for different HDD and CDD bases.
+func segmentStats(days []float64, hb, cb, cold float64) segStats {
+	var h, c float64
+	lo, hi := orderedBits(int64(math.Float64bits(math.Inf(1)))), orderedBits(int64(math.Float64bits(math.Inf(-1))))
+	var count, best, prefix, run int
+	alive := -1
+	for _, t := range days {
+		a, b := hb-t, t-cb
+		h += a + math.Abs(a)
+		c += b + math.Abs(b)
+		k := orderedBits(int64(math.Float64bits(t)))
+		lo, hi = min(lo, k), max(hi, k)
+		d := 0
+		if t < cold {
+			d = 1
+		}
+		run = (run + 1) & -d
+		best = max(best, run)
+		count += d
+		alive &= -d
+		prefix -= alive
+	}
+	return segStats{hdd: h / 2, cdd: c / 2, lo: math.Float64frombits(uint64(orderedBits(lo))),
+		hi: math.Float64frombits(uint64(orderedBits(hi))), cold: count, best: best, prefix: prefix, suffix: run}
 }
 
 // collect merges a path's segments into its period aggregates, written at
@@ -610,26 +1082,4 @@ func (pl *plan) top(dbuf []float64, top [][]float32, i int) {
 			dst[j] = x
 		}
 	}
-}
-
-// min3 and max3 compare plainly (the simulated values are never NaN), which
-// compiles to branches the predictor gets right almost always.
-func min3(a, b, c float64) float64 {
-	if b < a {
-		a = b
-	}
-	if c < a {
-		a = c
-	}
-	return a
-}
-
-func max3(a, b, c float64) float64 {
-	if b > a {
-		a = b
-	}
-	if c > a {
-		a = c
-	}
-	return a
 }

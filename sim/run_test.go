@@ -299,3 +299,44 @@ func TestSnapWithoutDemand(t *testing.T) {
 		}
 	}
 }
+
+// TestFourPathsMatchOne checks that the four-path kernel gives every path
+// exactly the temperatures the one-path kernel gives it, with and without
+// the slow part, for climate and conditional starts.
+func TestFourPathsMatchOne(t *testing.T) {
+	slow := seasonalModel([]float64{0.7})
+	slow.Slow = &model.Slow{Phi: 0.985, SD: 0.6, State: 0.4, StateSD: 0.3}
+	for _, c := range []struct {
+		name  string
+		m     *model.File
+		start string
+	}{
+		{"fast only, climate", seasonalModel([]float64{0.7}), StartClimate},
+		{"slow, climate", slow, StartClimate},
+		{"slow, conditional", slow, StartConditional},
+	} {
+		cfg := Config{Paths: 8, Seed: 11, Year: 2026, Start: c.start, Bases: BasesFor(model.Celsius)}
+		pl, _, err := prepare(c.m, &cfg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !pl.fast1() {
+			t.Fatalf("%s: the plan does not take the AR(1) table kernels", c.name)
+		}
+		var rngs [4]rand.PCG
+		var bufs [4][]float64
+		for k := range bufs {
+			bufs[k] = make([]float64, pl.n)
+		}
+		pl.temps4(&rngs, &bufs, cfg.Seed, 4)
+		one := make([]float64, pl.n)
+		for k := range 4 {
+			var rng rand.PCG
+			seedPath(&rng, cfg.Seed, 4+k)
+			pl.temps(&rng, one)
+			if !slices.Equal(one, bufs[k]) {
+				t.Errorf("%s: path %d differs between the four-path and one-path kernels", c.name, 4+k)
+			}
+		}
+	}
+}

@@ -160,7 +160,13 @@ func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, p
 		t.SD = 0
 	}
 	t.MeanSE = t.SD / math.Sqrt(float64(n))
-	q := func(p float64) float64 { return stat.Quantile(p, stat.LinInterp, x, nil) }
+	nan := math.IsNaN(x[0]) // slices.Sort puts NaNs first; stat.Quantile would give NaN
+	q := func(p float64) float64 {
+		if nan {
+			return math.NaN()
+		}
+		return evidence.SortedQuantile(p, x)
+	}
 	for _, p := range tailProbs {
 		t.Quantiles = append(t.Quantiles, q(p))
 	}

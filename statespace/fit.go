@@ -80,11 +80,16 @@ func Fit(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
 	return newFitted(x, month, prm, -best.F, slow), nil
 }
 
+// LeanSecondStartDays is the record length (30 years) below which FitLean
+// also starts the slow part from an e-folding time of 180 days.
+const LeanSecondStartDays = 30 * 365
+
 // FitLean is the lean path of Fit for repeated refits (backtests,
 // bootstraps): BFGS from start (a previous fit's parameters) and, with the
-// slow part, also from an e-folding time of 180 days (on short records the
-// likelihood of a slow part has a second maximum that a single warm start
-// can miss), keeping the better; no standard errors (SE is nil).
+// slow part on a record shorter than LeanSecondStartDays, also from an
+// e-folding time of 180 days (there the likelihood of a slow part can have
+// a second maximum that a single warm start misses; on longer records the
+// warm start holds), keeping the better; no standard errors (SE is nil).
 func FitLean(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
 	start.check()
 	p := len(start.Phi)
@@ -94,10 +99,13 @@ func FitLean(x []float64, month []uint8, start Params, slow bool) (*Fitted, erro
 	} else {
 		alt := start
 		alt.PhiSlow, alt.SDSlow = math.Exp(-1/180.0), 0.25*meanSigma(start.Sigma)
-		if tau := start.EFolding(); !start.HasSlow() || !(tau > MinEFolding && tau < MaxEFolding) {
-			starts = starts[:0]
+		tau := start.EFolding()
+		switch {
+		case !start.HasSlow() || !(tau > MinEFolding && tau < MaxEFolding):
+			starts = []Params{alt}
+		case len(x) < LeanSecondStartDays:
+			starts = append(starts, alt)
 		}
-		starts = append(starts, alt)
 	}
 	nll := func(th []float64) float64 {
 		prm, ok := decode(th, p, slow)
@@ -193,7 +201,10 @@ func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.R
 	prob := optimize.Problem{
 		Func: f,
 		Grad: func(g, th []float64) {
-			fd.Gradient(g, f, th, &fd.Settings{Formula: fd.Central, Step: 1e-5})
+			// The likelihood is a pure function, so the 2·len(th) calls run
+			// on all processors; with a two-point stencil the sum of each
+			// component does not depend on which call finishes first.
+			fd.Gradient(g, f, th, &fd.Settings{Formula: fd.Central, Step: 1e-5, Concurrent: true})
 		},
 	}
 	set := &optimize.Settings{

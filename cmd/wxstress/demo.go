@@ -147,7 +147,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := plan.addBytes(demandPath, demandJSON); err != nil {
 		return err
 	}
-	if err := addSimDir(plan, o.dir, rep, out); err != nil {
+	if err := addSimDir(plan, o.dir, rep, out, true); err != nil {
 		return err
 	}
 	if err := addReport(plan, reportPath, res, meta); err != nil {

@@ -194,7 +194,7 @@ func TestSimulateOutDirAndInterrupt(t *testing.T) {
 	t.Parallel()
 	m := demoModel(t)
 	dir := filepath.Join(t.TempDir(), "res")
-	code, stdout, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "500", "--out", dir,
+	code, stdout, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "500", "--out", dir, "--per-path",
 		"--exceed", "hdd:heating:2500")
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)

@@ -15,6 +15,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
@@ -260,18 +261,30 @@ func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Mani
 	}
 }
 
-// simFiles are the files a simulation writes into its --out directory.
-var simFiles = []string{"tails.json", "tails.csv", "paths.csv"}
+// simFiles are the files a simulation writes into its --out directory, and
+// pathsFile the per-path file it adds on request (--per-path).
+var simFiles = []string{"tails.json", "tails.csv"}
 
-// addSimDir stages the tail tables and the per-path aggregates in dir.
-func addSimDir(p *outputPlan, dir string, rep *render.SimReport, res *sim.Result) error {
-	fills := []func(io.Writer) error{
-		func(w io.Writer) error { return render.SimJSON(w, rep) },
-		func(w io.Writer) error { return render.SimCSV(w, rep) },
-		func(w io.Writer) error { return render.PathsCSV(w, res, rep.Hedge) },
+const pathsFile = "paths.csv"
+
+// outFiles lists the files of an --out directory.
+func outFiles(perPath bool) []string {
+	if perPath {
+		return append(slices.Clone(simFiles), pathsFile)
 	}
-	for i, name := range simFiles {
-		if err := p.add(filepath.Join(dir, name), fills[i]); err != nil {
+	return simFiles
+}
+
+// addSimDir stages the tail tables and, with perPath, the per-path
+// aggregates in dir.
+func addSimDir(p *outputPlan, dir string, rep *render.SimReport, res *sim.Result, perPath bool) error {
+	fills := map[string]func(io.Writer) error{
+		"tails.json": func(w io.Writer) error { return render.SimJSON(w, rep) },
+		"tails.csv":  func(w io.Writer) error { return render.SimCSV(w, rep) },
+		pathsFile:    func(w io.Writer) error { return render.PathsCSV(w, res, rep.Hedge) },
+	}
+	for _, name := range outFiles(perPath) {
+		if err := p.add(filepath.Join(dir, name), fills[name]); err != nil {
 			return err
 		}
 	}

@@ -261,7 +261,7 @@ func TestReturnPeriodsFollow(t *testing.T) {
 	m := demoModel(t)
 	dir := filepath.Join(t.TempDir(), "rp")
 	code, stdout, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "999", "--period", "year",
-		"--return-periods", "3,30,250", "--format", "json", "--out", dir)
+		"--return-periods", "3,30,250", "--format", "json", "--out", dir, "--per-path")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -335,5 +335,35 @@ func TestWritingStopsOnInterrupt(t *testing.T) {
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 0 {
 		t.Errorf("left behind: %v", entries)
+	}
+}
+
+// TestPerPathIsAskedFor checks that paths.csv is written only with
+// --per-path, that --per-path needs --out, and that a run without it
+// refuses a directory holding an earlier run's paths.csv (the directory's
+// files would come from two runs).
+func TestPerPathIsAskedFor(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	out := filepath.Join(t.TempDir(), "res")
+	if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--out", out); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(out, "paths.csv")); err == nil {
+		t.Error("paths.csv written without --per-path")
+	}
+	if code, _, _ := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--per-path"); code != exitUsage {
+		t.Errorf("--per-path without --out: exit %d, want %d", code, exitUsage)
+	}
+	if code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--out", out, "--per-path", "--force"); code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	before := mustRead(t, filepath.Join(out, "tails.json"))
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "100", "--seed", "5", "--out", out, "--force")
+	if code == exitOK || !strings.Contains(stderr, "per-path") {
+		t.Errorf("a run without --per-path over an earlier paths.csv: exit %d, %s", code, stderr)
+	}
+	if mustRead(t, filepath.Join(out, "tails.json")) != before {
+		t.Error("the refused run replaced tails.json")
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -14,6 +15,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/hedge"
+	"wxstress/internal/outputs"
 	"wxstress/internal/render"
 	"wxstress/internal/report"
 	"wxstress/model"
@@ -66,6 +68,7 @@ type simulateOptions struct {
 	mode      string
 	format    string
 	out       string
+	perPath   bool
 	report    string
 	force     bool
 	detail    bool
@@ -124,7 +127,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.title, "title", "", "with --report: the report's title (default: the station the model describes)")
 	fs.StringVar(&o.maxMemory, "max-memory", "", "refuse a run whose estimated memory is above this, e.g. 8G (default: half the machine's memory)")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
-	fs.StringVar(&o.out, "out", "", "also write tails.json, tails.csv and the per-path aggregates paths.csv into this directory")
+	fs.StringVar(&o.out, "out", "", "also write the tail tables tails.json and tails.csv into this directory")
+	fs.BoolVar(&o.perPath, "per-path", false, "with --out: also write paths.csv, every path's aggregates (about 180 bytes a path for the default periods)")
 	o.fs = fs
 	return fs
 }
@@ -195,6 +199,9 @@ func (o *simulateOptions) validate() error {
 	}
 	if len(o.capTarget) > 0 && o.demand == "" {
 		return usagef("simulate: --capacity-target needs --demand")
+	}
+	if o.perPath && o.out == "" {
+		return usagef("simulate: --per-path writes paths.csv into the --out directory: give --out")
 	}
 	if err := sim.CheckReturnPeriods(o.periodsT); err != nil {
 		return usagef("simulate: --return-periods: %v", strings.TrimPrefix(err.Error(), "sim: "))
@@ -291,8 +298,13 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	plan := newOutputPlan(ctx, o.force, append([]string{o.modelPath, o.demand, o.holidays, o.history, o.hedgeFile, o.observed, o.obsLoad},
 		o.scenarios...)...)
 	if o.out != "" {
-		if err := plan.checkDir(o.out, simFiles...); err != nil {
+		if err := plan.checkDir(o.out, outFiles(o.perPath)...); err != nil {
 			return err
+		}
+		if _, err := os.Lstat(filepath.Join(o.out, pathsFile)); err == nil && !o.perPath {
+			// The set of files in the directory must come from one run.
+			return &outputs.RefusedError{Path: filepath.Join(o.out, pathsFile),
+				Reason: "it is an earlier run's per-path file: give --per-path (and --force) to replace it with this run's, or remove it"}
 		}
 	}
 	if err := plan.check(o.report); err != nil {
@@ -391,7 +403,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(o.demand), demandSum
 	}
 	if o.out != "" {
-		if err := addSimDir(plan, o.out, rep, res); err != nil {
+		if err := addSimDir(plan, o.out, rep, res, o.perPath); err != nil {
 			return err
 		}
 	}
@@ -430,7 +442,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		return err
 	}
 	if o.out != "" {
-		fmt.Fprintf(stdout, "\nWrote tails.json, tails.csv and paths.csv to %s\n", o.out)
+		fmt.Fprintf(stdout, "\nWrote %s to %s\n", strings.Join(outFiles(o.perPath), ", "), o.out)
 	}
 	if o.report != "" {
 		fmt.Fprintf(stdout, "Report written to %s\n", o.report)

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
 	"slices"
 	"strconv"
 	"strings"
@@ -13,6 +14,8 @@ import (
 	"wxstress/calendar"
 	"wxstress/evidence"
 	"wxstress/internal/numfmt"
+
+	"golang.org/x/sync/errgroup"
 
 	"wxstress/hedge"
 	"wxstress/sim"
@@ -548,14 +551,17 @@ func byPeriod(rows []sim.Row) [][]sim.Row {
 }
 
 // PathsCSV writes the per-path aggregates: one row a path, one column an
-// index of a period ("heating.hdd").
+// index of a period ("heating.hdd"). Values are written in the shortest
+// form that reads back to the same float64 (strconv's 'g', −1). Rows are
+// formatted in blocks on all processors and written in order, so the file
+// is the same whatever the processor count.
 func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
-	cw := csv.NewWriter(w)
 	header := []string{"path"}
+	var cols [][]float64
 	for _, a := range res.Aggregates {
 		header = append(header, a.Period.Name+"."+a.Index.Info().Key)
+		cols = append(cols, a.Values)
 	}
-	var cols [][]float64
 	if h != nil {
 		// The hedge's per-path values: the exposure cost, each contract's
 		// payout (one contract bought) and the net cost.
@@ -568,22 +574,46 @@ func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 		header = append(header, "hedge.net_cost")
 		cols = append(cols, h.Net)
 	}
+	cw := csv.NewWriter(w) // the header's names may need quoting; the numbers never do
 	cw.Write(header)
-	line := make([]string, len(header))
-	for i := range res.Config.Paths {
-		line[0] = strconv.Itoa(i)
-		for j, a := range res.Aggregates {
-			line[j+1] = strconv.FormatFloat(a.Values[i], 'g', -1, 64)
+	cw.Flush()
+	if err := cw.Error(); err != nil {
+		return err
+	}
+	const block = 4096 // rows formatted by one goroutine at a time
+	n := res.Config.Paths
+	workers := runtime.GOMAXPROCS(0)
+	bufs := make([][]byte, workers)
+	for lo := 0; lo < n; lo += block * workers {
+		var g errgroup.Group
+		for k := range workers {
+			from := lo + k*block
+			to := min(from+block, n)
+			g.Go(func() error {
+				b := bufs[k][:0]
+				for i := from; i < to; i++ {
+					b = strconv.AppendInt(b, int64(i), 10)
+					for _, c := range cols {
+						b = append(b, ',')
+						b = strconv.AppendFloat(b, c[i], 'g', -1, 64)
+					}
+					b = append(b, '\n')
+				}
+				bufs[k] = b
+				return nil
+			})
 		}
-		for j, c := range cols {
-			line[len(res.Aggregates)+1+j] = strconv.FormatFloat(c[i], 'g', -1, 64)
-		}
-		if err := cw.Write(line); err != nil {
-			return err
+		g.Wait()
+		for k := range workers {
+			if lo+k*block >= n {
+				break
+			}
+			if _, err := w.Write(bufs[k]); err != nil {
+				return err
+			}
 		}
 	}
-	cw.Flush()
-	return cw.Error()
+	return nil
 }
 
 // jsonInSeason is a period's observed part in the JSON output.
