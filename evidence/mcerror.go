@@ -49,9 +49,10 @@ func Quantile(x []float64, p float64) QuantileEstimate {
 	return QuantileSorted(sortedCopy(x), p)
 }
 
-// QuantileSorted is Quantile for values already sorted ascending (not
-// checked), without the copy: for callers that summarise many quantiles of
-// one column.
+// QuantileSorted is Quantile for values already sorted ascending, or with
+// the order statistics EstimateRanks(len(s), p) selected into place
+// (SelectRanks), not checked, without the copy: for callers that summarise
+// many quantiles of one column.
 func QuantileSorted(s []float64, p float64) QuantileEstimate {
 	n := len(s)
 	if n == 0 {
@@ -60,12 +61,8 @@ func QuantileSorted(s []float64, p float64) QuantileEstimate {
 	if !(p > 0 && p < 1) {
 		panic("evidence: quantile probability outside (0, 1)")
 	}
-	tail := (1 - IntervalLevel) / 2
 	b := distuv.Binomial{N: float64(n), P: p}
-	// CDF(m) rises with m: J is the first m in [0, n] with CDF(m) > tail.
-	j := sort.Search(n+1, func(m int) bool { return b.CDF(float64(m)) > tail })
-	// The upper tail falls with k: K is the first k with P(B ≥ k) ≤ tail.
-	k := sort.Search(n+1, func(k int) bool { return upperTail(n, p, k) <= tail })
+	j, k := intervalRanks(n, p)
 	q := QuantileEstimate{
 		P:     p,
 		Value: SortedQuantile(p, s),
@@ -83,6 +80,34 @@ func QuantileSorted(s []float64, p float64) QuantileEstimate {
 	q.Coverage = b.CDF(float64(k-1)) - b.CDF(float64(j-1))
 	q.SE = (q.Hi - q.Lo) / (2 * distuv.UnitNormal.Quantile(0.5+q.Coverage/2))
 	return q
+}
+
+// intervalRanks returns J and K of the order-statistic interval of the
+// p-quantile of n values (1-based; 0 and n + 1 when the interval is open).
+func intervalRanks(n int, p float64) (j, k int) {
+	tail := (1 - IntervalLevel) / 2
+	b := distuv.Binomial{N: float64(n), P: p}
+	// CDF(m) rises with m: J is the first m in [0, n] with CDF(m) > tail.
+	j = sort.Search(n+1, func(m int) bool { return b.CDF(float64(m)) > tail })
+	// The upper tail falls with k: K is the first k with P(B ≥ k) ≤ tail.
+	k = sort.Search(n+1, func(k int) bool { return upperTail(n, p, k) <= tail })
+	return j, k
+}
+
+// EstimateRanks returns the 0-based ranks of the order statistics
+// QuantileSorted(s, p) reads for len(s) = n: the quantile's own
+// (QuantileRanks) and its interval's ends. After SelectRanks with them,
+// QuantileSorted gives what it gives on the sorted values.
+func EstimateRanks(n int, p float64) []int {
+	r := QuantileRanks(p, n)
+	j, k := intervalRanks(n, p)
+	if j >= 1 {
+		r = append(r, j-1)
+	}
+	if k <= n {
+		r = append(r, k-1)
+	}
+	return r
 }
 
 // ShortfallEstimate is an expected shortfall with its Monte Carlo error.
@@ -114,8 +139,9 @@ func Shortfall(x []float64, alpha float64, highIsAdverse bool) ShortfallEstimate
 	return ShortfallSorted(sortedCopy(x), alpha, highIsAdverse)
 }
 
-// ShortfallSorted is Shortfall for values already sorted ascending (not
-// checked), without the copy.
+// ShortfallSorted is Shortfall for values already sorted ascending, or with
+// the boundary of the worst ⌈α·n⌉ selected into place (SelectRanks; the
+// worst values are then a set at that end), not checked, without the copy.
 func ShortfallSorted(s []float64, alpha float64, highIsAdverse bool) ShortfallEstimate {
 	n := len(s)
 	if n == 0 {

