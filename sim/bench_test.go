@@ -86,3 +86,17 @@ func BenchmarkPathDaySlow(b *testing.B) {
 	m.Slow = &model.Slow{Phi: 0.985, SD: 0.6}
 	benchPathDay(b, m)
 }
+
+// BenchmarkSummarize times the tail table of one aggregate of a million
+// paths (selection of the order statistics it reads, the shortfalls, the
+// Monte Carlo errors).
+func BenchmarkSummarize(b *testing.B) {
+	r := rand.New(rand.NewPCG(1, 2))
+	x := make([]float64, 1_000_000)
+	for i := range x {
+		x[i] = 3000 + 180*r.NormFloat64()
+	}
+	for b.Loop() {
+		SummarizeWith(x, true, nil, nil)
+	}
+}

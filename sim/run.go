@@ -747,64 +747,81 @@ func (pl *plan) demandLoads(buf, dbuf []float64, n int) {
 	ex := pl.expectation(n, len(buf))
 	phi, scale := pl.demand.Noise.Phi, pl.growth
 	phi2 := phi * phi
-	// The innovations e = σ·z first, in place.
+	base := ex.base[:len(temps)]
+	hbp, cbp, hs, cs := ex.heatBP, ex.coolBP, ex.heatSlope2, ex.coolSlope2
+	// The day's innovation e = σ·z with σ by the noise's scale; one loop
+	// for each scale, every constant in a register. The first day takes
+	// one ordinary step from u0.
+	prev, u1, e1 := pl.u0, pl.u0, 0.0 // u(t−2), u(t−1) and e(t−1)
 	switch pl.noiseKind {
 	case noiseConstant:
 		sigma := pl.demand.Noise.Sigma
-		for i := range out {
-			out[i] *= sigma
+		for i, t := range temps {
+			e := out[i] * sigma
+			v := phi2*prev + (phi*e1 + e)
+			if i == 0 {
+				v = phi*u1 + e
+			}
+			a, b := hbp-t, t-cbp // expectation.at
+			out[i] = scale * (base[i] + hs*(a+math.Abs(a)) + cs*(b+math.Abs(b)) + v)
+			prev, u1, e1 = u1, v, e
 		}
 	case noiseLoad:
 		k := pl.loadSigma
 		for i, t := range temps {
-			out[i] *= k * max(ex.at(i, t), 0)
+			a, b := hbp-t, t-cbp
+			x := base[i] + hs*(a+math.Abs(a)) + cs*(b+math.Abs(b))
+			e := out[i] * (k * max(x, 0))
+			v := phi2*prev + (phi*e1 + e)
+			if i == 0 {
+				v = phi*u1 + e
+			}
+			out[i] = scale * (x + v)
+			prev, u1, e1 = u1, v, e
 		}
 	default:
 		edges, sig := pl.bandEdges, pl.bandSigma
-		if len(edges) == 3 { // the quartile bands calibrate fits
-			e0, e1, e2 := edges[0], edges[1], edges[2]
-			s := [4]float64(sig)
-			for i, t := range temps {
+		var s4 [4]float64
+		three := len(edges) == 3 // the quartile bands calibrate fits
+		if three {
+			s4 = [4]float64(sig)
+		}
+		for i, t := range temps {
+			var sg float64
+			if three {
 				// Each comparison as a 0 or 1 (a set-on-condition, not a
 				// branch: which band a day falls in is a coin toss).
 				k0, k1, k2 := 0, 0, 0
-				if t >= e0 {
+				if t >= edges[0] {
 					k0 = 1
 				}
-				if t >= e1 {
+				if t >= edges[1] {
 					k1 = 1
 				}
-				if t >= e2 {
+				if t >= edges[2] {
 					k2 = 1
 				}
-				out[i] *= s[(k0+k1+k2)&3]
-			}
-			break
-		}
-		for i, t := range temps {
-			k := 0
-			for _, edge := range edges {
-				c := 0
-				if t >= edge {
-					c = 1
+				sg = s4[(k0+k1+k2)&3]
+			} else {
+				k := 0
+				for _, edge := range edges {
+					c := 0
+					if t >= edge {
+						c = 1
+					}
+					k += c
 				}
-				k += c
+				sg = sig[k]
 			}
-			out[i] *= sig[k]
+			e := out[i] * sg
+			v := phi2*prev + (phi*e1 + e)
+			if i == 0 {
+				v = phi*u1 + e
+			}
+			a, b := hbp-t, t-cbp
+			out[i] = scale * (base[i] + hs*(a+math.Abs(a)) + cs*(b+math.Abs(b)) + v)
+			prev, u1, e1 = u1, v, e
 		}
-	}
-	// The first day takes one ordinary step from u0.
-	prev, e1 := pl.u0, out[0] // u(t−2) and e(t−1) for the next day
-	u1 := phi*prev + e1
-	out[0] = scale * (ex.at(0, temps[0]) + u1)
-	base := ex.base[:len(temps)]
-	hbp, cbp, hs, cs := ex.heatBP, ex.coolBP, ex.heatSlope2, ex.coolSlope2
-	for i := 1; i < len(temps); i++ {
-		e, t := out[i], temps[i]
-		v := phi2*prev + (phi*e1 + e)
-		a, b := hbp-t, t-cbp // expectation.at, its fields in registers
-		out[i] = scale * (base[i] + hs*(a+math.Abs(a)) + cs*(b+math.Abs(b)) + v)
-		prev, u1, e1 = u1, v, e
 	}
 }
 

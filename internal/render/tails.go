@@ -248,6 +248,10 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		}
 		scen[i] = jsonScenario{sc.Name, sc.Description, sc.What, rows}
 	}
+	mf := r.Manifest
+	if mf.Scenarios == nil {
+		mf.Scenarios = []string{} // [] rather than null: a list with none in it
+	}
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(struct {
@@ -261,7 +265,7 @@ func SimJSON(w io.Writer, r *SimReport) error {
 		Hedge     *jsonHedge     `json:"hedge,omitempty"`
 		InSeason  []jsonInSeason `json:"in_season,omitempty"`
 		Extremes  []jsonExtreme  `json:"extremes_check,omitempty"`
-	}{r.Manifest, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r),
+	}{mf, baseRows(r), r.Refits, r.Mixed, scen, toJSONPlanning(r), toJSONHistory(r.History), toJSONHedge(r),
 		toJSONInSeason(r.InSeason), toJSONExtremes(r.Extremes)})
 }
 
