@@ -109,8 +109,9 @@ type plan struct {
 	phiS, slowQ  float64
 	f0Mean, f0SD float64
 	eta          *[etaLevels]float64
-	startNormal  *shocks.Table // unit normal, for F's start
-	conditional  bool          // the fast lags in x0 are anomalies X, from which F is taken
+	qEta         [etaLevels]float64 // slowQ·η for each level (zero without a slow part)
+	startNormal  *shocks.Table      // unit normal, for F's start
+	conditional  bool               // the fast lags in x0 are anomalies X, from which F is taken
 	segs         []segment
 	pspan        [][2]int // per period: segments [s0, s1)
 	bases        Bases
@@ -268,6 +269,9 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	if sl := m.Slow; sl != nil {
 		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)
 		pl.eta = slowGrid()
+		for k, v := range pl.eta {
+			pl.qEta[k] = pl.slowQ * v
+		}
 		pl.startNormal = shocks.TableFor(shocks.Normal{})
 		pl.f0SD = sl.SD
 		if cfg.Start == StartConditional {

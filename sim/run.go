@@ -360,11 +360,7 @@ func (pl *plan) simulate(rng *rand.PCG, buf []float64, off int, x0 [maxAR]float6
 	}
 	p1, p2, p3, p4, p5 := pl.phi[0], pl.phi[1], pl.phi[2], pl.phi[3], pl.phi[4]
 	x1, x2, x3, x4, x5 := x0[0], x0[1], x0[2], x0[3], x0[4]
-	phiS, q := pl.phiS, pl.slowQ // zero without a slow part: f stays 0
-	eta := &zeroEta
-	if pl.slow {
-		eta = pl.eta
-	}
+	phiS, qEta := pl.phiS, &pl.qEta // zero without a slow part: f stays 0
 	var u uint64
 	for d := range buf {
 		if d&1 == 0 {
@@ -384,7 +380,7 @@ func (pl *plan) simulate(rng *rand.PCG, buf []float64, off int, x0 [maxAR]float6
 		}
 		x := p1*x1 + p2*x2 + p3*x3 + p4*x4 + p5*x5 + sd[d]*z
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, x
-		f = phiS*f + q*eta[w&(etaLevels-1)]
+		f = phiS*f + qEta[w&(etaLevels-1)]
 		buf[d] = mean[d] + x + f
 	}
 }
@@ -415,7 +411,7 @@ func (pl *plan) simulate1(rng *rand.PCG, buf, mean, sd []float64, x, f float64) 
 		}
 		return
 	}
-	eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
+	phiS, qEta := pl.phiS, &pl.qEta
 	for d := range buf {
 		if d&1 == 0 {
 			u = rng.Uint64()
@@ -428,7 +424,7 @@ func (pl *plan) simulate1(rng *rand.PCG, buf, mean, sd []float64, x, f float64) 
 			z = tab.Tail32(shockWord(w, true))
 		}
 		x = phi*x + sd[d]*z
-		f = phiS*f + q*eta[w&(etaLevels-1)]
+		f = phiS*f + qEta[w&(etaLevels-1)]
 		buf[d] = mean[d] + x + f
 	}
 }
@@ -496,7 +492,7 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 		}
 		return
 	}
-	eta, phiS, q := pl.eta, pl.phiS, pl.slowQ
+	phiS, qEta := pl.phiS, &pl.qEta
 	f0, f1, f2, f3 := f[0], f[1], f[2], f[3]
 	// Two days per iteration, the low and the high halves of the draws.
 	d := 0
@@ -512,10 +508,10 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
-		f0 = phiS*f0 + q*eta[u0&(etaLevels-1)]
-		f1 = phiS*f1 + q*eta[u1&(etaLevels-1)]
-		f2 = phiS*f2 + q*eta[u2&(etaLevels-1)]
-		f3 = phiS*f3 + q*eta[u3&(etaLevels-1)]
+		f0 = phiS*f0 + qEta[u0&(etaLevels-1)]
+		f1 = phiS*f1 + qEta[u1&(etaLevels-1)]
+		f2 = phiS*f2 + qEta[u2&(etaLevels-1)]
+		f3 = phiS*f3 + qEta[u3&(etaLevels-1)]
 		b0[d], b1[d], b2[d], b3[d] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
 		s, mu = sd[d+1], mean[d+1]
 		w0, w1, w2, w3 = shockWord(uint32(u0>>32), true), shockWord(uint32(u1>>32), true), shockWord(uint32(u2>>32), true), shockWord(uint32(u3>>32), true)
@@ -527,10 +523,10 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
-		f0 = phiS*f0 + q*eta[u0>>32&(etaLevels-1)]
-		f1 = phiS*f1 + q*eta[u1>>32&(etaLevels-1)]
-		f2 = phiS*f2 + q*eta[u2>>32&(etaLevels-1)]
-		f3 = phiS*f3 + q*eta[u3>>32&(etaLevels-1)]
+		f0 = phiS*f0 + qEta[u0>>32&(etaLevels-1)]
+		f1 = phiS*f1 + qEta[u1>>32&(etaLevels-1)]
+		f2 = phiS*f2 + qEta[u2>>32&(etaLevels-1)]
+		f3 = phiS*f3 + qEta[u3>>32&(etaLevels-1)]
 		b0[d+1], b1[d+1], b2[d+1], b3[d+1] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
 	}
 	if d < m {
@@ -545,10 +541,10 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
-		f0 = phiS*f0 + q*eta[u0&(etaLevels-1)]
-		f1 = phiS*f1 + q*eta[u1&(etaLevels-1)]
-		f2 = phiS*f2 + q*eta[u2&(etaLevels-1)]
-		f3 = phiS*f3 + q*eta[u3&(etaLevels-1)]
+		f0 = phiS*f0 + qEta[u0&(etaLevels-1)]
+		f1 = phiS*f1 + qEta[u1&(etaLevels-1)]
+		f2 = phiS*f2 + qEta[u2&(etaLevels-1)]
+		f3 = phiS*f3 + qEta[u3&(etaLevels-1)]
 		b0[d], b1[d], b2[d], b3[d] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
 	}
 }
@@ -570,9 +566,6 @@ func tail4(tab *shocks.Table, z0, z1, z2, z3 float64, ok0, ok1, ok2, ok3 bool, w
 	}
 	return z0, z1, z2, z3
 }
-
-// zeroEta stands in for the η grid without a slow part.
-var zeroEta [etaLevels]float64
 
 // path simulates path i of a run with the given seed: temperatures into
 // buf, and demand into dbuf when the run has a demand model.
