@@ -83,6 +83,19 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 	lls := make([]float64, MaxAROrder)
 	lls[0] = base.LogLik
 	var g errgroup.Group
+	// The fast-only AR(1), wanted for the likelihood-ratio test when the
+	// order comes out 1 (the usual case), is fitted beside the order table
+	// rather than after it.
+	var fastOnly1 *statespace.Fitted
+	var fastOnly1Err error
+	start1 := start
+	start1.Phi = clsPhi[0]
+	if consider && set.AROrder <= 1 {
+		g.Go(func() error {
+			fastOnly1, fastOnly1Err = statespace.Fit(x, months, start1, false)
+			return nil
+		})
+	}
 	for q := 2; q <= MaxAROrder; q++ {
 		g.Go(func() error {
 			ll, err := statespace.ProfileOrder(x, months, base.Params, q)
@@ -126,10 +139,17 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 		}
 	}
 	var fastOnly *statespace.Fitted
-	if !consider && p == 1 {
+	switch {
+	case !consider && p == 1:
 		fastOnly = base
-	} else if fastOnly, err = statespace.Fit(x, months, startP, false); err != nil {
-		return nil, fail(fmt.Sprintf("AR(%d)", p), err)
+	case p == 1 && (fastOnly1 != nil || fastOnly1Err != nil):
+		if fastOnly, err = fastOnly1, fastOnly1Err; err != nil {
+			return nil, fail("AR(1)", err)
+		}
+	default:
+		if fastOnly, err = statespace.Fit(x, months, startP, false); err != nil {
+			return nil, fail(fmt.Sprintf("AR(%d)", p), err)
+		}
 	}
 
 	out := &anomalyFit{chosen: fastOnly, fastOnly: fastOnly}

@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"golang.org/x/sync/errgroup"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
@@ -545,19 +546,25 @@ func monthlySigma(s *Series, e []float64, v *model.Volatility) error {
 // chooseShocks fits the parametric families, fills the family table and the
 // model's shocks, and returns the parametric distribution z is compared with.
 func chooseShocks(setting string, z []float64, byMonth [][]float64, f *model.File, d *model.Diagnostics) (shocks.Dist, error) {
-	var (
-		fits   []shocks.Fit
-		params []model.Shocks
-	)
+	var fams []model.Family
 	for _, fam := range model.Families() {
-		if !fam.Parametric() {
-			continue
+		if fam.Parametric() {
+			fams = append(fams, fam)
 		}
-		fit, sh, err := fam.Fit(z)
-		if err != nil {
-			return nil, err
-		}
-		fits, params = append(fits, fit), append(params, sh)
+	}
+	// The families are fitted concurrently (each search is sequential);
+	// the results keep the registry's order.
+	fits, params := make([]shocks.Fit, len(fams)), make([]model.Shocks, len(fams))
+	var g errgroup.Group
+	for i, fam := range fams {
+		g.Go(func() error {
+			var err error
+			fits[i], params[i], err = fam.Fit(z)
+			return err
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
 	}
 	best := 0
 	for i, fit := range fits {

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
@@ -175,12 +176,22 @@ func newFitted(x []float64, month []uint8, prm Params, ll float64, slow bool) *F
 // bestOf minimizes nll from each start and returns the lowest result; an
 // error only when no start gave one.
 func bestOf(nll func([]float64) float64, starts []Params, slow bool, rel float64) (*optimize.Result, error) {
+	// The starts run concurrently (the likelihood is a pure function): a
+	// BFGS line search evaluates one point at a time, and the other start
+	// fills the idle processor. The choice below is in start order, so the
+	// result does not depend on which finishes first.
+	results := make([]*optimize.Result, len(starts))
+	errs := make([]error, len(starts))
+	var wg sync.WaitGroup
+	for i, st := range starts {
+		wg.Go(func() { results[i], errs[i] = minimize(nll, encode(st, slow), rel) })
+	}
+	wg.Wait()
 	var best *optimize.Result
 	var firstErr error
-	for _, st := range starts {
-		res, err := minimize(nll, encode(st, slow), rel)
-		if err != nil {
-			firstErr = err
+	for i, res := range results {
+		if errs[i] != nil {
+			firstErr = errs[i]
 			continue
 		}
 		if best == nil || res.F < best.F {
