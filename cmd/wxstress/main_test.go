@@ -663,3 +663,30 @@ func TestFitWarningsShownEverywhere(t *testing.T) {
 		}
 	}
 }
+
+// TestMessagesHaveNoPackagePrefixes runs mistakes whose errors come from
+// the library packages and checks that what a person reads names no
+// package ("sim: ", "stress: ", …), and cleanMessage on a chain of them.
+func TestMessagesHaveNoPackagePrefixes(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	for _, args := range [][]string{
+		{"simulate", "--model", m, "--period", "13-01:02-01"},
+		{"simulate", "--model", m, "--exceed", "nope:1"},
+		{"simulate", "--model", m, "--demand", m, "--capacity-target", "peak:1-in-0.5"},
+		{"fit", "--temps", "../../testdata/noaa/seattle.csv", "--units", "K"},
+	} {
+		code, _, stderr := call(t, context.Background(), args...)
+		if code == exitOK {
+			t.Errorf("%v: exit 0", args)
+		}
+		for p := range internalPackages {
+			if regexp.MustCompile(`\b` + p + `: `).MatchString(stderr) { // not "wxstress: "'s tail
+				t.Errorf("%v: the message names the package %q: %s", args, p, stderr)
+			}
+		}
+	}
+	if got := cleanMessage("stress: sim: scenario x: event 1: sim: bad window"); got != "scenario x: event 1: bad window" {
+		t.Errorf("cleanMessage = %q", got)
+	}
+}
