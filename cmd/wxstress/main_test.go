@@ -670,7 +670,15 @@ func TestFitWarningsShownEverywhere(t *testing.T) {
 func TestMessagesHaveNoPackagePrefixes(t *testing.T) {
 	t.Parallel()
 	m := demoModel(t)
+	// A °F model beside the demo's °C demand model: the library's own
+	// error (package model) reaches the person.
+	f := filepath.Join(t.TempDir(), "f.json")
+	if code, _, stderr := call(t, context.Background(), "fit", "--temps", "../../testdata/noaa/seattle.csv", "--units", "F",
+		"--out", f); code != exitOK {
+		t.Fatalf("fit: exit %d: %s", code, stderr)
+	}
 	for _, args := range [][]string{
+		{"simulate", "--model", f, "--demand", filepath.Join(filepath.Dir(m), "demand.json"), "--paths", "10"},
 		{"simulate", "--model", m, "--period", "13-01:02-01"},
 		{"simulate", "--model", m, "--exceed", "nope:1"},
 		{"simulate", "--model", m, "--demand", m, "--capacity-target", "peak:1-in-0.5"},
