@@ -159,7 +159,7 @@ func ProfileOrder(x []float64, month []uint8, base Params, q int) (float64, erro
 	th := encode(start, false)[:q]
 	// A BIC table needs the maximum to a few hundredths, not to 1e-8 of
 	// the log-likelihood: 1e-7 relative is about 0.006 on a 70-year record.
-	res, err := minimize(nll, th, 1e-7)
+	res, err := minimizeWith(nll, th, 1e-7, fd.Forward)
 	if err != nil {
 		return 0, err
 	}
@@ -211,13 +211,22 @@ func bestOf(nll func([]float64) float64, starts []Params, slow bool, rel float64
 // stalls at the optimum reports an error with a usable point; only a result
 // that got nowhere is a failure.
 func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.Result, error) {
+	return minimizeWith(f, x0, rel, fd.Central)
+}
+
+// minimizeWith is minimize with the given finite-difference formula.
+func minimizeWith(f func([]float64) float64, x0 []float64, rel float64, formula fd.Formula) (*optimize.Result, error) {
+	step := 1e-5
+	if formula.Stencil[0].Loc == 0 { // forward: √ε-sized steps
+		step = 1e-7
+	}
 	prob := optimize.Problem{
 		Func: f,
 		Grad: func(g, th []float64) {
 			// The likelihood is a pure function, so the 2·len(th) calls run
 			// on all processors; with a two-point stencil the sum of each
 			// component does not depend on which call finishes first.
-			fd.Gradient(g, f, th, &fd.Settings{Formula: fd.Central, Step: 1e-5, Concurrent: true})
+			fd.Gradient(g, f, th, &fd.Settings{Formula: formula, Step: step, Concurrent: true})
 		},
 	}
 	set := &optimize.Settings{
