@@ -47,7 +47,8 @@ type Job struct {
 	Thresholds []sim.Threshold
 	// Detail is how many baseline paths are kept whole (fan chart,
 	// load-duration curve); 0 keeps none unless a demand model needs the
-	// load-duration curve, which keeps DetailPaths.
+	// load-duration curve, which keeps DetailPaths; NoDetail keeps none
+	// even then (for outputs that show neither).
 	Detail int
 	// Normals asks for each historical demand year under normal weather
 	// (needs a demand history), with NormalPaths paths per year.
@@ -102,6 +103,7 @@ type Job struct {
 const (
 	DetailPaths = 20000
 	NormalPaths = 1000
+	NoDetail    = -1
 )
 
 // bandPaths caps the paths each refitted model is simulated with for the
@@ -271,8 +273,11 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		}
 	}
 	detail := job.Detail
-	if detail == 0 && cfg.Demand != nil {
+	switch {
+	case detail == 0 && cfg.Demand != nil:
 		detail = DetailPaths
+	case detail < 0:
+		detail = 0
 	}
 	u := job.Uncertainty
 	if u != nil {

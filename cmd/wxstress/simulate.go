@@ -331,8 +331,13 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 			}
 		}
 	}
-	if o.report != "" {
+	switch {
+	case o.report != "":
 		job.Detail = stress.DetailPaths
+	case o.format == "table" && !o.detail && o.out == "":
+		// The one-page summary shows no load-duration curve: do not keep
+		// 20 000 whole paths for one (a quarter of a demand run's time).
+		job.Detail = stress.NoDetail
 	}
 	if o.history != "" {
 		job.Temps, err = interruptible(ctx, func() (*calibrate.Series, error) {
