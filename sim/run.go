@@ -854,17 +854,23 @@ func (pl *plan) accumulateDemand(dbuf []float64, segs []segStats) {
 // values in registers; two sums halve the add-latency chain.
 func demandStats(days []float64, capacity float64) (energy, peak float64, at, over int) {
 	var s0, s1 float64
-	peak = math.Inf(-1)
+	// The peak as an ordered integer (orderedBits), so that keeping the
+	// highest day and its index compiles to conditional moves: a new peak
+	// is rare but unpredictable.
+	pk := orderedBits(int64(math.Float64bits(math.Inf(-1))))
 	i := 0
 	for ; i+1 < len(days); i += 2 {
 		v, w := days[i], days[i+1]
 		s0 += v
 		s1 += w
-		if v > peak {
-			peak, at = v, i
+		kv, kw := orderedBits(int64(math.Float64bits(v))), orderedBits(int64(math.Float64bits(w)))
+		if kv > pk {
+			pk = kv
+			at = i
 		}
-		if w > peak {
-			peak, at = w, i+1
+		if kw > pk {
+			pk = kw
+			at = i + 1
 		}
 		c := 0
 		if v > capacity {
@@ -878,14 +884,14 @@ func demandStats(days []float64, capacity float64) (energy, peak float64, at, ov
 	if i < len(days) {
 		v := days[i]
 		s0 += v
-		if v > peak {
-			peak, at = v, i
+		if k := orderedBits(int64(math.Float64bits(v))); k > pk {
+			pk, at = k, i
 		}
 		if v > capacity {
 			over++
 		}
 	}
-	return s0 + s1, peak, at, over
+	return s0 + s1, math.Float64frombits(uint64(orderedBits(pk))), at, over
 }
 
 // eventSalt separates the events' random stream from the temperature
