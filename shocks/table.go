@@ -172,6 +172,20 @@ func (t *Table) Central(w uint32) (float64, bool) {
 	return lo + f*(t.central[i+1]-lo), i-centralLo < centralCells-2*centralLo
 }
 
+// Central27 is Central(w&^31 | 16): the shock of w's top 27 bits, at the
+// middle of the 32 words that share them, leaving the low 5 bits to the
+// caller (the simulator's slow part) without the caller having to clear
+// them. Outside the central range call Tail32(w&^31 | 16).
+func (t *Table) Central27(w uint32) (float64, bool) {
+	const low5 = 31 << (52 - centralFrac) // where w's low 5 bits land in the fraction
+	const mid = 16 << (52 - centralFrac)  // ... set to 10000
+	const half = 1 << (51 - centralFrac)  // ½ of the fraction's last place
+	i := w >> centralFrac
+	f := math.Float64frombits(0x3ff<<52|uint64(w)<<(52-centralFrac)&((1<<52-1)&^low5)|mid|half) - 1
+	lo := t.central[i]
+	return lo + f*(t.central[i+1]-lo), i-centralLo < centralCells-2*centralLo
+}
+
 // Tail32 is Draw32 for w outside the central range (it is exact for any w,
 // only slower).
 func (t *Table) Tail32(w uint32) float64 { return t.Draw(uint64(w)<<32 | 1<<31) }

@@ -230,3 +230,18 @@ func TestTableFor(t *testing.T) {
 		t.Error("the cached table differs from NewTable's")
 	}
 }
+
+// TestCentral27 checks Central27(w) against Central of w with its low 5
+// bits set to 10000, for words all over the central range.
+func TestCentral27(t *testing.T) {
+	tab := NewTable(SkewT{10, 0.85})
+	rng := rand.New(rand.NewPCG(6, 6))
+	for range 200000 {
+		w := rng.Uint32()
+		a, okA := tab.Central27(w)
+		b, okB := tab.Central(w&^31 | 16)
+		if okA != okB || okA && a != b {
+			t.Fatalf("w %#x: Central27 %v %v, Central of the mid word %v %v", w, a, okA, b, okB)
+		}
+	}
+}

@@ -419,7 +419,7 @@ func (pl *plan) simulate1(rng *rand.PCG, buf, mean, sd []float64, x, f float64) 
 			u >>= 32
 		}
 		w := uint32(u)
-		z, ok := tab.Central(shockWord(w, true))
+		z, ok := tab.Central27(w) // Central(shockWord(w, true))
 		if !ok {
 			z = tab.Tail32(shockWord(w, true))
 		}
@@ -499,13 +499,14 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 	for ; d+1 < m; d += 2 {
 		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
 		s, mu = sd[d], mean[d]
-		w0, w1, w2, w3 = shockWord(uint32(u0), true), shockWord(uint32(u1), true), shockWord(uint32(u2), true), shockWord(uint32(u3), true)
-		z0, ok0 = tab.Central(w0)
-		z1, ok1 = tab.Central(w1)
-		z2, ok2 = tab.Central(w2)
-		z3, ok3 = tab.Central(w3)
+		w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+		z0, ok0 = tab.Central27(w0)
+		z1, ok1 = tab.Central27(w1)
+		z2, ok2 = tab.Central27(w2)
+		z3, ok3 = tab.Central27(w3)
 		if !(ok0 && ok1 && ok2 && ok3) {
-			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3,
+				shockWord(w0, true), shockWord(w1, true), shockWord(w2, true), shockWord(w3, true))
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
 		f0 = phiS*f0 + qEta[u0&(etaLevels-1)]
@@ -514,13 +515,14 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 		f3 = phiS*f3 + qEta[u3&(etaLevels-1)]
 		b0[d], b1[d], b2[d], b3[d] = mu+x0+f0, mu+x1+f1, mu+x2+f2, mu+x3+f3
 		s, mu = sd[d+1], mean[d+1]
-		w0, w1, w2, w3 = shockWord(uint32(u0>>32), true), shockWord(uint32(u1>>32), true), shockWord(uint32(u2>>32), true), shockWord(uint32(u3>>32), true)
-		z0, ok0 = tab.Central(w0)
-		z1, ok1 = tab.Central(w1)
-		z2, ok2 = tab.Central(w2)
-		z3, ok3 = tab.Central(w3)
+		w0, w1, w2, w3 = uint32(u0>>32), uint32(u1>>32), uint32(u2>>32), uint32(u3>>32)
+		z0, ok0 = tab.Central27(w0)
+		z1, ok1 = tab.Central27(w1)
+		z2, ok2 = tab.Central27(w2)
+		z3, ok3 = tab.Central27(w3)
 		if !(ok0 && ok1 && ok2 && ok3) {
-			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3,
+				shockWord(w0, true), shockWord(w1, true), shockWord(w2, true), shockWord(w3, true))
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
 		f0 = phiS*f0 + qEta[u0>>32&(etaLevels-1)]
@@ -532,13 +534,14 @@ func (pl *plan) simulate4(rngs *[4]rand.PCG, bufs *[4][]float64, n int, x [4]flo
 	if d < m {
 		u0, u1, u2, u3 = r0.Uint64(), r1.Uint64(), r2.Uint64(), r3.Uint64()
 		s, mu = sd[d], mean[d]
-		w0, w1, w2, w3 = shockWord(uint32(u0), true), shockWord(uint32(u1), true), shockWord(uint32(u2), true), shockWord(uint32(u3), true)
-		z0, ok0 = tab.Central(w0)
-		z1, ok1 = tab.Central(w1)
-		z2, ok2 = tab.Central(w2)
-		z3, ok3 = tab.Central(w3)
+		w0, w1, w2, w3 = uint32(u0), uint32(u1), uint32(u2), uint32(u3)
+		z0, ok0 = tab.Central27(w0)
+		z1, ok1 = tab.Central27(w1)
+		z2, ok2 = tab.Central27(w2)
+		z3, ok3 = tab.Central27(w3)
 		if !(ok0 && ok1 && ok2 && ok3) {
-			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3, w0, w1, w2, w3)
+			z0, z1, z2, z3 = tail4(tab, z0, z1, z2, z3, ok0, ok1, ok2, ok3,
+				shockWord(w0, true), shockWord(w1, true), shockWord(w2, true), shockWord(w3, true))
 		}
 		x0, x1, x2, x3 = phi*x0+s*z0, phi*x1+s*z1, phi*x2+s*z2, phi*x3+s*z3
 		f0 = phiS*f0 + qEta[u0&(etaLevels-1)]
