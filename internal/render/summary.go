@@ -107,6 +107,9 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		sm.KeyHead = append(sm.KeyHead, "1-in-20, 90% band")
 	}
 	for _, row := range r.Rows {
+		if !occurs(row) {
+			continue // the coldest day of summer, CDD in winter: nothing to exceed
+		}
 		for _, x := range row.Tail.Exceedances {
 			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s) = %s %s", row.Name, row.Period,
 				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold),

@@ -877,3 +877,34 @@ func TestChromiumRendersReport(t *testing.T) {
 		}
 	}
 }
+
+// TestTablesKeepTableLayout checks that no class the report's tables carry
+// is one the style sheet lays out otherwise (display: flex, block …): the
+// summary's tables once shared the plot legend's class and drew their
+// header beside their rows.
+func TestTablesKeepTableLayout(t *testing.T) {
+	page, err := templateFiles.ReadFile("templates/page.html")
+	if err != nil {
+		t.Fatal(err)
+	}
+	css := styleSheet
+	classes := map[string]bool{}
+	for _, m := range regexp.MustCompile(`<table class="([^"]+)"`).FindAllStringSubmatch(string(page), -1) {
+		for _, c := range strings.Fields(m[1]) {
+			classes[c] = true
+		}
+	}
+	if len(classes) == 0 {
+		t.Fatal("no table classes found in page.html")
+	}
+	for _, rule := range regexp.MustCompile(`([^{}]+)\{([^}]*)\}`).FindAllStringSubmatch(string(css), -1) {
+		if !strings.Contains(rule[2], "display") {
+			continue
+		}
+		for c := range classes {
+			if regexp.MustCompile(`\.` + c + `\b`).MatchString(rule[1]) {
+				t.Errorf("tables of class %q are laid out by %q", c, strings.TrimSpace(rule[1]+"{"+rule[2]+"}"))
+			}
+		}
+	}
+}
