@@ -18,11 +18,21 @@ import (
 // day of winter, and the demand figures.
 var summaryIndices = []sim.Index{sim.HDD, sim.CDD, sim.Coldest, sim.Energy, sim.PeakDemand}
 
-// occurs reports whether an index means something in its period: not rare,
-// and the coldest day only where it is a winter figure (not the cooling
-// season).
+// occurs reports whether an index means something in its period for the
+// summary: not rare, and a heating figure (HDD, the coldest day) not for
+// the cooling season nor a cooling figure (CDD) for the heating season,
+// where they are small remainders nobody plans on (a warm October day's
+// CDD); --detail shows them all.
 func occurs(r sim.Row) bool {
-	return !rare(r.Tail) && !(r.Index == sim.Coldest && r.Period == "cooling")
+	switch {
+	case rare(r.Tail):
+		return false
+	case r.Period == "cooling":
+		return r.Index != sim.Coldest && r.Index != sim.HDD
+	case r.Period == "heating":
+		return r.Index != sim.CDD
+	}
+	return true
 }
 
 // rare reports whether an index hardly occurs in its period: zero in

@@ -1,6 +1,10 @@
 package render
 
-import "testing"
+import (
+	"testing"
+
+	"wxstress/sim"
+)
 
 // TestScaleUnit checks the units of large values: SI prefixes for joules
 // and watt-hours (the SI prefixes of the BIPM SI Brochure, 9th edition;
@@ -24,6 +28,34 @@ func TestScaleUnit(t *testing.T) {
 		f, u := ScaleUnit(c.unit, c.big)
 		if f != c.f || u != c.want {
 			t.Errorf("ScaleUnit(%q, %g) = %g, %q; want %g, %q", c.unit, c.big, f, u, c.f, c.want)
+		}
+	}
+}
+
+// TestOccurs checks which rows the summary keeps: heating figures not for
+// the cooling season, cooling figures not for the heating season, nothing
+// that is zero nineteen years in twenty, everything else.
+func TestOccurs(t *testing.T) {
+	some := sim.Summarize([]float64{10, 20, 30, 40, 50, 60, 70, 80, 90, 100}, true, nil)
+	zero := sim.Summarize(make([]float64, 40), true, nil)
+	for _, c := range []struct {
+		x      sim.Index
+		period string
+		tail   sim.Tail
+		want   bool
+	}{
+		{sim.HDD, "heating", some, true},
+		{sim.HDD, "cooling", some, false},
+		{sim.CDD, "heating", some, false},
+		{sim.CDD, "cooling", some, true},
+		{sim.Coldest, "cooling", some, false},
+		{sim.Coldest, "year", some, true},
+		{sim.CDD, "dec", some, true},
+		{sim.CDD, "dec", zero, false},
+		{sim.Energy, "cooling", some, true},
+	} {
+		if got := occurs(sim.Row{Index: c.x, Period: c.period, Tail: c.tail}); got != c.want {
+			t.Errorf("%v, %s: occurs %v, want %v", c.x.Info().Key, c.period, got, c.want)
 		}
 	}
 }
