@@ -5,7 +5,6 @@ import (
 	"math"
 	"slices"
 	"sync"
-	"time"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -102,13 +101,12 @@ type plan struct {
 	obs               []float64
 	obsLoad           []float64 // the observed loads of the same days, with demand
 	// The slow part F (slow false without one): F(t) = phiS·F(t−1) +
-	// slowQ·η(t), η from the low bits of the fast shock's draw; F starts
+	// slowQ·η(t), η from the low bits of the day's 32 random bits; F starts
 	// from N(f0Mean, f0SD²) (its stationary law, or the filtered state at
 	// the data end for a conditional start).
 	slow         bool
 	phiS, slowQ  float64
 	f0Mean, f0SD float64
-	eta          *[etaLevels]float64
 	qEta         [etaLevels]float64 // slowQ·η for each level (zero without a slow part)
 	startNormal  *shocks.Table      // unit normal, for F's start
 	conditional  bool               // the fast lags in x0 are anomalies X, from which F is taken
@@ -122,8 +120,6 @@ type plan struct {
 	demand   *model.Demand
 	normal   *shocks.Table // unit normal, for the demand noise
 	u0       float64       // demand noise before the first day
-	weekday  []time.Weekday
-	holiday  []bool
 	capacity float64
 	// The expected load's terms (model.Demand.Expected): per day the
 	// intercept, weekday and holiday effects; the change points, with the
@@ -268,8 +264,7 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 	}
 	if sl := m.Slow; sl != nil {
 		pl.slow, pl.phiS, pl.slowQ = true, sl.Phi, sl.SD*math.Sqrt(1-sl.Phi*sl.Phi)
-		pl.eta = slowGrid()
-		for k, v := range pl.eta {
+		for k, v := range slowGrid() {
 			pl.qEta[k] = pl.slowQ * v
 		}
 		pl.startNormal = shocks.TableFor(shocks.Normal{})
@@ -421,13 +416,10 @@ func (pl *plan) setDemand(cfg *Config) {
 	for _, d := range cfg.Holidays {
 		hol[d] = true
 	}
-	pl.weekday = make([]time.Weekday, pl.n)
-	pl.holiday = make([]bool, pl.n)
 	pl.dayBase = make([]float64, pl.n)
 	dm := cfg.Demand
 	for i := range pl.n {
 		d := pl.first + calendar.Date(i)
-		pl.weekday[i], pl.holiday[i] = d.Weekday(), hol[d]
 		// Expected's own order of additions: intercept, weekday, holiday.
 		pl.dayBase[i] = dm.Intercept + dm.Weekday[(d.Weekday()+6)%7]
 		if hol[d] {

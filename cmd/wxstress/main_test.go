@@ -199,7 +199,7 @@ func TestSimulateOutDirAndInterrupt(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stdout, "P(HDD, heating > 2,500)") {
+	if !strings.Contains(stdout, "P(HDD, heating > 2,500 °C·day)") {
 		t.Errorf("exceedance not shown:\n%s", stdout)
 	}
 	paths, _ := os.ReadFile(filepath.Join(dir, "paths.csv"))

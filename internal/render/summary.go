@@ -117,12 +117,12 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		sm.KeyHead = append(sm.KeyHead, "1-in-20, 90% band")
 	}
 	for _, row := range r.Rows {
-		if !occurs(row) {
-			continue // the coldest day of summer, CDD in winter: nothing to exceed
-		}
 		for _, x := range row.Tail.Exceedances {
-			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s) = %s %s", row.Name, row.Period,
-				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold),
+			if !occurs(row) && x.Prob == 0 {
+				continue // "the coldest day of summer below −15: 0 ± 0" says nothing
+			}
+			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s %s) = %s %s", row.Name, row.Period,
+				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold), row.Unit,
 				numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE)))
 		}
 	}
@@ -282,8 +282,9 @@ func mcSummary(rows []sim.Row) string {
 	if paths > 0 {
 		need = "about " + numfmt.RoundUp(paths) + " paths would settle them all (--paths)"
 	}
-	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s %s); %s",
-		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se), numfmt.SE(worst.se), need)
+	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s %s %s); %s",
+		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se), numfmt.SE(worst.se),
+		worst.row.Unit, need)
 }
 
 // DemandLine describes a demand model in one line for people: its form and
