@@ -30,6 +30,13 @@ const (
 // SlowLevel is the likelihood-ratio test's size for keeping the slow part.
 const SlowLevel = 0.05
 
+// SlowAdviceGain is the widening of the model's annual spread (0.05 is
+// 5 %) beyond which a slow part that auto left out is named in the fit's
+// warnings: the test's power on a few decades is limited, and the cost of
+// a missed slow part (narrow seasonal and annual tails) is the one a risk
+// reader cares about.
+const SlowAdviceGain = 0.05
+
 // SpreadWindows are the window lengths (days) of the spread check;
 // selectionWindows are those whose spread decides on the slow part.
 var (
@@ -171,6 +178,16 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 		}
 	}
 	ch.SpreadTooNarrow = narrow
+	if consider {
+		// What leaving the slow part out costs at the annual scale: the
+		// likelihood-ratio test has limited power on a few decades, and a
+		// missed slow part narrows every seasonal and annual tail.
+		if i := slices.Index(SpreadWindows[:], 365); bandsFast[i].ok {
+			with := modelWindowSD(s, withSlow.Params, 365, bandsFast[i].starts)
+			without := modelWindowSD(s, fastOnly.Params, 365, bandsFast[i].starts)
+			ch.AnnualSpreadGain = with/without - 1
+		}
+	}
 	switch ch.Setting {
 	case SlowNone:
 		ch.Rule = "slow part not requested (--slow none)"
@@ -192,6 +209,10 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 	}
 	if ch.Kept {
 		out.chosen = withSlow
+	} else if ch.Setting == SlowAuto && ch.AnnualSpreadGain > SlowAdviceGain {
+		d.SlowAdvice = fmt.Sprintf("the slow part was left out (likelihood-ratio test p %s), but with it the model's spread of "+
+			"365-day means would be %.0f %% wider: if seasonal or annual tails matter, compare with --slow on",
+			pText(ch.P), 100*ch.AnnualSpreadGain)
 	}
 	out.filtered = statespace.Filter(x, months, out.chosen.Params, true)
 

@@ -115,9 +115,14 @@ func TestSlowNotSelectedOnPureAR1(t *testing.T) {
 		t.Fatal(err)
 	}
 	c := res.Model.Diagnostics.SlowChoice
-	t.Logf("LR %.2f p %.3f; %s", c.LR, c.P, c.Rule)
+	t.Logf("LR %.2f p %.3f, annual spread gain %.3f; %s; advice %q", c.LR, c.P, c.AnnualSpreadGain, c.Rule, res.Model.Diagnostics.SlowAdvice)
 	if c.P < SlowLevel {
 		t.Errorf("likelihood-ratio test rejects the pure AR(1) at 5 %%: LR %.2f, p %.4f", c.LR, c.P)
+	}
+	// The slow part fitted to this record adds 3 % to the annual spread,
+	// below the level at which the fit advises trying it.
+	if a := res.Model.Diagnostics.SlowAdvice; a != "" {
+		t.Errorf("pure AR(1) record draws the slow-part advice: %s", a)
 	}
 	if res.Model.Slow == nil {
 		return
@@ -206,14 +211,19 @@ func slowRecordSigma(d calendar.Date) float64 {
 
 // TestSlowRecoveryOverRecords checks the estimator rather than one record:
 // it fits 12 records of 71 years drawn from a generator with the demo's
-// slow part and compares the mean of the fitted models' annual HDD sd with
-// the generator's own, computed here by simulating the generator. A single
-// 71-year record's own low-frequency spread moves the fitted annual HDD sd
-// by a few per cent (the demo record, an unusually wide one, by about 8 %),
-// so one record is a weak test of ±7 %. Over 12 records of this generator
-// the fitted/generator ratio has a mean of 0.99 and an sd of 0.03 (a linear
-// trend fitted to trendless records takes a little low-frequency
-// variance): the mean must be within ±3 % and every record within ±10 %.
+// slow part, with the default choices a user gets (auto AR order, slow
+// part, trend and shock family), and compares each fitted model's annual
+// HDD sd with the generator's own, computed here by simulating the
+// generator. A single 71-year record's own low-frequency spread moves the
+// fitted annual HDD sd by a few per cent (the demo record, an unusually
+// wide one, by about 8 %), so one record is a weak test of ±7 %.
+//
+// The likelihood-ratio test has limited power on 71 years: on these
+// records auto keeps the slow part in 11 of 12 (record 10 has p = 0.097,
+// and without the slow part its annual HDD sd is 13 % short). Where it is
+// kept, the fitted/generator ratio has a mean of 0.995 and an sd of 0.026,
+// every record within ±4 %; where it is left out, the fit must say so in
+// its warnings (Diagnostics.SlowAdvice) with the width it would add.
 func TestSlowRecoveryOverRecords(t *testing.T) {
 	if testing.Short() {
 		t.Skip("fits 12 records of 71 years")
@@ -232,26 +242,42 @@ func TestSlowRecoveryOverRecords(t *testing.T) {
 		hdds = append(hdds, h)
 	}
 	_, want := stat.MeanStdDev(hdds, nil)
-	set := &Settings{Harmonics: 1, AROrder: 1, Slow: SlowOn, Trend: "linear", Shocks: model.FamilyNormal, Lean: true}
-	var ratios []float64
+	var kept []float64
+	within7 := 0
 	for i := range records {
-		res, err := Fit(slowRecord(r, 1955, 2025), set)
+		res, err := Fit(slowRecord(r, 1955, 2025), nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		_, sd := annualHDD(t, res.Model, 20000)
-		ratios = append(ratios, sd/want)
-		t.Logf("record %2d: φ_slow %.4f, s_F %.3f °C, annual HDD sd %.1f (%+.1f %%)",
-			i+1, res.Model.Slow.Phi, res.Model.Slow.SD, sd, 100*(sd/want-1))
-	}
-	m, s := stat.MeanStdDev(ratios, nil)
-	t.Logf("generator annual HDD sd %.1f; fitted/generator: mean %.3f, sd %.3f over %d records", want, m, s, records)
-	if math.Abs(m-1) > 0.03 {
-		t.Errorf("mean fitted annual HDD sd is %+.1f %% off the generator's (±3 %% allowed)", 100*(m-1))
-	}
-	for i, x := range ratios {
-		if math.Abs(x-1) > 0.10 {
-			t.Errorf("record %d: fitted annual HDD sd %+.1f %% off the generator's (±10 %% allowed)", i+1, 100*(x-1))
+		m := res.Model
+		_, sd := annualHDD(t, m, 20000)
+		ratio := sd / want
+		if math.Abs(ratio-1) <= 0.07 {
+			within7++
 		}
+		if m.Slow == nil {
+			t.Logf("record %2d: AR(%d), no slow part, annual HDD sd %.1f (%+.1f %%); advice: %q",
+				i+1, len(m.AR.Phi), sd, 100*(ratio-1), m.Diagnostics.SlowAdvice)
+			if m.Diagnostics.SlowAdvice == "" {
+				t.Errorf("record %d: slow part left out (%s) without advice, annual HDD sd %+.1f %% off the generator's",
+					i+1, m.Diagnostics.SlowChoice.Rule, 100*(ratio-1))
+			}
+			continue
+		}
+		kept = append(kept, ratio)
+		t.Logf("record %2d: AR(%d), φ_slow %.4f, s_F %.3f °C, annual HDD sd %.1f (%+.1f %%)",
+			i+1, len(m.AR.Phi), m.Slow.Phi, m.Slow.SD, sd, 100*(ratio-1))
+		if math.Abs(ratio-1) > 0.10 {
+			t.Errorf("record %d: fitted annual HDD sd %+.1f %% off the generator's (±10 %% allowed)", i+1, 100*(ratio-1))
+		}
+	}
+	m, s := stat.MeanStdDev(kept, nil)
+	t.Logf("generator annual HDD sd %.1f; slow part kept in %d of %d records; where kept, fitted/generator: mean %.3f, sd %.3f; %d of %d records within ±7 %%",
+		want, len(kept), records, m, s, within7, records)
+	if len(kept) < records-2 {
+		t.Errorf("auto kept the slow part in only %d of %d records", len(kept), records)
+	}
+	if math.Abs(m-1) > 0.03 {
+		t.Errorf("where kept, the mean fitted annual HDD sd is %+.1f %% off the generator's (±3 %% allowed)", 100*(m-1))
 	}
 }

@@ -13,6 +13,9 @@ type Diagnostics struct {
 	// ARAdvice is non-empty when BIC prefers another AR order than the
 	// one fitted by a clear margin.
 	ARAdvice string `json:"ar_advice,omitempty"`
+	// SlowAdvice is non-empty when auto left the slow part out although
+	// it would widen the model's annual spread materially.
+	SlowAdvice string `json:"slow_advice,omitempty"`
 	// SlowChoice records how the slow part was kept or left out.
 	SlowChoice *SlowChoice `json:"slow_choice,omitempty"`
 
@@ -113,6 +116,10 @@ type SlowChoice struct {
 	BICWithout    float64 `json:"bic_without"`
 	// SpreadTooNarrow lists the windows (days) whose observed sd lies
 	// above the fast-only model's 90 % band.
-	SpreadTooNarrow []int  `json:"spread_too_narrow_without,omitempty"`
-	Rule            string `json:"rule"`
+	SpreadTooNarrow []int `json:"spread_too_narrow_without,omitempty"`
+	// AnnualSpreadGain is how much wider the model's sd of 365-day means
+	// is with the slow part than without it (0.2 is 20 %), when both were
+	// fitted.
+	AnnualSpreadGain float64 `json:"annual_spread_gain,omitempty"`
+	Rule             string  `json:"rule"`
 }

@@ -86,7 +86,8 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 				{"with the slow part", Num(c.LogLikWith, 1), Num(c.BICWith, 1), Mark(c.Kept)},
 				{"fast AR alone", Num(c.LogLikWithout, 1), Num(c.BICWithout, 1), Mark(!c.Kept)},
 			})
-			e.printf("%s\n", Wrap(fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary)", c.LR, PValue(c.P)), "    "))
+			e.printf("%s\n", Wrap(fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary); "+
+				"with the slow part the model's sd of 365-day means is %s wider", c.LR, PValue(c.P), Percent(c.AnnualSpreadGain)), "    "))
 		}
 	}
 	if dg != nil {
@@ -194,7 +195,7 @@ func writeDiagnostics(e *errWriter, f *model.File) {
 
 // FitWarnings lists what should make a reader doubt a fitted model, in the
 // words the fit summary prints them: the data's warnings, the AR-order
-// advice, window spreads outside the model's band (with the remedy that
+// advice, a slow part left out that would widen the annual spread, window spreads outside the model's band (with the remedy that
 // moves them) and model return levels outside the GEV interval of checks.
 // The fit summary, its stderr and the report's warnings row show this list.
 func FitWarnings(f *model.File, checks []stress.ExtremeCheck) []string {
@@ -203,8 +204,10 @@ func FitWarnings(f *model.File, checks []stress.ExtremeCheck) []string {
 	if dg == nil {
 		return warns
 	}
-	if dg.ARAdvice != "" {
-		warns = append(warns, dg.ARAdvice)
+	for _, a := range []string{dg.ARAdvice, dg.SlowAdvice} {
+		if a != "" {
+			warns = append(warns, a)
+		}
 	}
 	var narrow, wide []string
 	for _, s := range dg.Spread {

@@ -444,8 +444,9 @@ func paramRows(m *model.File) [][2]string {
 	}
 	if c := m.Diagnostics; c != nil && c.SlowChoice != nil {
 		rows = append(rows, [2]string{"slow part: choice", fmt.Sprintf("%s (likelihood ratio %.2f, p-value %s against ½χ²₁ + ½χ²₂; "+
-			"BIC %s with, %s without)", c.SlowChoice.Rule, c.SlowChoice.LR, render.PValue(c.SlowChoice.P),
-			render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1))})
+			"BIC %s with, %s without; with it the model's sd of 365-day means is %s wider)", c.SlowChoice.Rule, c.SlowChoice.LR,
+			render.PValue(c.SlowChoice.P), render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1),
+			render.Percent(c.SlowChoice.AnnualSpreadGain))})
 	}
 	var sig []string
 	for k, v := range m.Volatility.Monthly {
