@@ -7,6 +7,8 @@ import (
 	"wxstress/model"
 )
 
+//go:generate go run ./internal/genfilter
+
 // MaxOrder is the largest fast AR order.
 const MaxOrder = 5
 
@@ -87,6 +89,9 @@ func sums(x []float64, month []uint8, p Params) (n int, logs, quad float64) {
 	if len(p.Phi) == 1 {
 		return sums1(x, month, p)
 	}
+	if n, logs, quad, ok := sumsAR(x, month, p); ok {
+		return n, logs, quad
+	}
 	r := run(x, month, p, nil, nil)
 	return r.N, r.logs, r.quad
 }
@@ -94,9 +99,8 @@ func sums(x []float64, month []uint8, p Params) (n int, logs, quad float64) {
 // sums1 is the filter of run for a fast AR(1), with or without the slow
 // part, on scalars: the likelihood of every fit's inner loop. The state
 // covariance is [[a, b], [b, c]] (fast, slow); without the slow part b and
-// c stay 0. It sums log f over blocks of 8 days as the log of their product
-// (f is a variance of a few degrees², far from overflow), which takes one
-// logarithm in 8 from the loop.
+// c stay 0. It sums log f as the log of the product of f, renormalised
+// every 8 days (renorm), which takes the logarithms out of the loop.
 func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	phi, phiS := prm.Phi[0], prm.PhiSlow
 	var sig2 [12]float64
@@ -111,8 +115,8 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	b, c := 0.0, prm.SDSlow*prm.SDSlow
 	y, f := 0.0, 0.0
 	phi2, phiS2, cross := phi*phi, phiS*phiS, phi*phiS
-	quad, logs, prod := 0.0, 0.0, 1.0
-	n, inBlock := 0, 0
+	quad, prod := 0.0, 1.0
+	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
 			y *= phi
@@ -131,8 +135,9 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		quad += v * v * inv
 		prod *= fv
 		if inBlock++; inBlock == 8 {
-			logs += math.Log(prod)
-			prod, inBlock = 1, 0
+			var e int
+			prod, e = renorm(prod)
+			exp, inBlock = exp+e, 0
 		}
 		n++
 		g := v * inv
@@ -142,9 +147,24 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		b -= ab * bc * inv
 		c -= bc * bc * inv
 	}
-	logs += math.Log(prod)
-	return n, logs, quad
+	return n, logOf(prod, exp), quad
 }
+
+// renorm splits p into a mantissa in [1, 2) and its binary exponent, so that
+// a product of many variances can be carried without overflow and its
+// logarithm taken once (logOf); zero, subnormal, infinite and NaN p come
+// back unchanged with exponent 0, and reach the logarithm as they are.
+func renorm(p float64) (float64, int) {
+	b := math.Float64bits(p)
+	e := int(b>>52) & 0x7ff
+	if e == 0 || e == 0x7ff {
+		return p, 0
+	}
+	return math.Float64frombits(b&^(0x7ff<<52) | 1023<<52), e - 1023
+}
+
+// logOf returns log(p·2^exp).
+func logOf(p float64, exp int) float64 { return math.Log(p) + float64(exp)*math.Ln2 }
 
 // Filter runs the Kalman filter over x and returns the log-likelihood, the
 // final state and, when withZ is set, the standardized innovations.
@@ -195,8 +215,8 @@ func run(x []float64, month []uint8, prm Params, z []float64, out *Filtered) *Fi
 		P[p][p] = prm.SDSlow * prm.SDSlow
 	}
 
-	logs, quad := 0.0, 0.0
-	n := 0
+	quad, prod := 0.0, 1.0
+	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
 			// a ← T a
@@ -278,23 +298,32 @@ func run(x []float64, month []uint8, prm Params, z []float64, out *Filtered) *Fi
 			// Only reachable for degenerate parameters (all σ zero).
 			return &Filtered{LogLik: math.Inf(-1), logs: math.Inf(1)}
 		}
-		logs += math.Log(f)
-		quad += v * v / f
+		// Σ log f as the log of the product, as in sums1; one division a
+		// day.
+		inv := 1 / f
+		prod *= f
+		if inBlock++; inBlock == 8 {
+			var e int
+			prod, e = renorm(prod)
+			exp, inBlock = exp+e, 0
+		}
+		quad += v * v * inv
 		n++
 		if z != nil {
 			z[t] = v / math.Sqrt(f)
 		}
-		vf := v / f
+		vf := v * inv
 		for i := range m {
 			a[i] += pz[i] * vf
 		}
 		for i := range m {
-			ki := pz[i] / f
+			ki := pz[i] * inv
 			for j := range m {
 				P[i][j] -= ki * pz[j]
 			}
 		}
 	}
+	logs := logOf(prod, exp)
 	ll := loglik(n, logs, quad)
 	if out == nil {
 		return &Filtered{LogLik: ll, N: n, logs: logs, quad: quad}

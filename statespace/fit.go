@@ -52,13 +52,7 @@ func (f *Fitted) AIC() float64 { return -2*f.LogLik + 2*float64(f.K) }
 func Fit(x []float64, month []uint8, start Params, slow bool) (*Fitted, error) {
 	start.check()
 	p := len(start.Phi)
-	nll := func(th []float64) float64 {
-		prm, ok := decode(th, p, slow)
-		if !ok {
-			return math.Inf(1)
-		}
-		return -LogLik(x, month, prm)
-	}
+	nll := nllOf(x, month, p, slow)
 	var starts []Params
 	if slow {
 		if tau := start.EFolding(); start.HasSlow() && tau > MinEFolding && tau < MaxEFolding {
@@ -108,14 +102,7 @@ func FitLean(x []float64, month []uint8, start Params, slow bool) (*Fitted, erro
 			starts = append(starts, alt)
 		}
 	}
-	nll := func(th []float64) float64 {
-		prm, ok := decode(th, p, slow)
-		if !ok {
-			return math.Inf(1)
-		}
-		return -LogLik(x, month, prm)
-	}
-	best, err := bestOf(nll, starts, slow, 1e-9)
+	best, err := bestOf(nllOf(x, month, p, slow), starts, slow, 1e-9)
 	if err != nil {
 		return nil, err
 	}
@@ -159,7 +146,7 @@ func ProfileOrder(x []float64, month []uint8, base Params, q int) (float64, erro
 	th := encode(start, false)[:q]
 	// A BIC table needs the maximum to a few hundredths, not to 1e-8 of
 	// the log-likelihood: 1e-7 relative is about 0.006 on a 70-year record.
-	res, err := minimizeWith(nll, th, 1e-7, fd.Forward)
+	res, err := minimizeWith(objective{f: nll}, th, 1e-7, fd.Forward)
 	if err != nil {
 		return 0, err
 	}
@@ -177,7 +164,7 @@ func newFitted(x []float64, month []uint8, prm Params, ll float64, slow bool) *F
 
 // bestOf minimizes nll from each start and returns the lowest result; an
 // error only when no start gave one.
-func bestOf(nll func([]float64) float64, starts []Params, slow bool, rel float64) (*optimize.Result, error) {
+func bestOf(nll objective, starts []Params, slow bool, rel float64) (*optimize.Result, error) {
 	// The starts run concurrently (the likelihood is a pure function): a
 	// BFGS line search evaluates one point at a time, and the other start
 	// fills the idle processor. The choice below is in start order, so the
@@ -210,24 +197,19 @@ func bestOf(nll func([]float64) float64, starts []Params, slow bool, rel float64
 // changes by less than rel (relative) over 3 iterations. A line search that
 // stalls at the optimum reports an error with a usable point; only a result
 // that got nowhere is a failure.
-func minimize(f func([]float64) float64, x0 []float64, rel float64) (*optimize.Result, error) {
+func minimize(f objective, x0 []float64, rel float64) (*optimize.Result, error) {
 	return minimizeWith(f, x0, rel, fd.Central)
 }
 
 // minimizeWith is minimize with the given finite-difference formula.
-func minimizeWith(f func([]float64) float64, x0 []float64, rel float64, formula fd.Formula) (*optimize.Result, error) {
+func minimizeWith(f objective, x0 []float64, rel float64, formula fd.Formula) (*optimize.Result, error) {
 	step := 1e-5
 	if formula.Stencil[0].Loc == 0 { // forward: √ε-sized steps
 		step = 1e-7
 	}
 	prob := optimize.Problem{
-		Func: f,
-		Grad: func(g, th []float64) {
-			// The likelihood is a pure function, so the 2·len(th) calls run
-			// on all processors; with a two-point stencil the sum of each
-			// component does not depend on which call finishes first.
-			fd.Gradient(g, f, th, &fd.Settings{Formula: formula, Step: step, Concurrent: true})
-		},
+		Func: f.f,
+		Grad: func(g, th []float64) { f.gradient(g, th, formula, step) },
 	}
 	set := &optimize.Settings{
 		Converger:       &optimize.FunctionConverge{Absolute: 1e-9, Relative: rel, Iterations: 3},
