@@ -8,15 +8,17 @@ import (
 )
 
 // TestSelectRanks checks SelectRanks against a full sort (the standard
-// library's slices.Sort) on samples with and without ties, sorted, reversed
-// and constant ones included, and that SortedQuantile then reads the
-// sorted sample's quantiles.
+// library's slices.Sort) on samples with and without ties, sorted, reversed,
+// constant and two-valued ones included, that every selected rank splits
+// the sample, and that SortedQuantile then reads the sorted sample's
+// quantiles.
 func TestSelectRanks(t *testing.T) {
 	rng := rand.New(rand.NewPCG(9, 10))
 	gen := map[string]func(i int) float64{
 		"normal":   func(int) float64 { return rng.NormFloat64() },
 		"ties":     func(int) float64 { return math.Round(rng.NormFloat64() * 3) },
 		"constant": func(int) float64 { return 4 },
+		"two":      func(int) float64 { return float64(rng.IntN(2)) },
 		"sorted":   func(i int) float64 { return float64(i) },
 		"reversed": func(i int) float64 { return -float64(i) },
 	}
@@ -37,6 +39,12 @@ func TestSelectRanks(t *testing.T) {
 			for _, r := range ranks {
 				if x[r] != want[r] {
 					t.Fatalf("%s, n %d: rank %d holds %v, sorted %v", name, n, r, x[r], want[r])
+				}
+				// The set of the worst values (expected shortfall) reads
+				// whole sides: nothing larger before a rank, nothing
+				// smaller after it.
+				if slices.Max(x[:r+1]) > x[r] || slices.Min(x[r:]) < x[r] {
+					t.Fatalf("%s, n %d: values on the wrong side of rank %d", name, n, r)
 				}
 			}
 			for _, p := range probs {

@@ -158,8 +158,8 @@ func SummarizeWith(values []float64, highIsAdverse bool, thresholds []float64, p
 	} else {
 		// Every statistic below reads a few order statistics, or the set
 		// of the worst values, or none: select those instead of sorting
-		// (quickselect, evidence.SelectRanks), three to four times faster
-		// on a million paths and the same numbers.
+		// (quickselect, evidence.SelectRanks), several times faster on a
+		// million paths and the same order statistics.
 		evidence.SelectRanks(x, tailRanks(n, highIsAdverse, periods))
 	}
 	t := Tail{N: n}
