@@ -65,27 +65,37 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 			var rngs [4]rand.PCG
 			bufs, dbufs := pl.buffers()
 			year := make([]float64, n)
+			// Paths are gathered day by day in blocks of fanBlock and then
+			// written to the day rows a block at a time: a path written
+			// straight into the rows would touch a cache line of every row.
+			blk := newFanRows(n, pl.demand != nil)
 			for i := lo; i < hi; {
 				k := 1
 				if pl.fast1() && hi-i >= 4 {
 					k = 4
 				}
+				if blk.paths+k > fanBlock {
+					blk.flush(i-blk.paths, temps, demand, ranked)
+				}
 				pl.paths(&rngs, &bufs, &dbufs, cfg.Seed, i, k)
 				for j := range k {
-					for d := range n {
-						temps[d][i+j] = bufs[j][off+d]
+					c := blk.paths
+					for d, v := range bufs[j][off : off+n] {
+						blk.temps[d*fanBlock+c] = v
 					}
 					if dbuf := dbufs[j]; dbuf != nil {
 						copy(year, dbuf[off:off+n])
 						slices.Sort(year)
-						for d := range n {
-							demand[d][i+j] = dbuf[off+d]
-							ranked[d][i+j] = year[n-1-d]
+						for d, v := range dbuf[off : off+n] {
+							blk.demand[d*fanBlock+c] = v
+							blk.ranked[d*fanBlock+c] = year[n-1-d]
 						}
 					}
+					blk.paths++
 				}
 				i += k
 			}
+			blk.flush(hi-blk.paths, temps, demand, ranked)
 			return nil
 		})
 	}
@@ -104,6 +114,37 @@ func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, er
 		}
 	}
 	return f, nil
+}
+
+// fanBlock is the number of paths RunFan gathers before writing them out.
+const fanBlock = 32
+
+// fanRows holds up to fanBlock paths' days, day-major: value d·fanBlock + c
+// is day d of the block's path c.
+type fanRows struct {
+	paths                 int
+	temps, demand, ranked []float64
+}
+
+func newFanRows(days int, demand bool) *fanRows {
+	b := &fanRows{temps: make([]float64, days*fanBlock)}
+	if demand {
+		b.demand, b.ranked = make([]float64, days*fanBlock), make([]float64, days*fanBlock)
+	}
+	return b
+}
+
+// flush writes the block's paths, the first of which is path first, into
+// the day rows and empties the block.
+func (b *fanRows) flush(first int, temps, demand, ranked [][]float64) {
+	for d := range temps {
+		copy(temps[d][first:first+b.paths], b.temps[d*fanBlock:])
+		if b.demand != nil {
+			copy(demand[d][first:first+b.paths], b.demand[d*fanBlock:])
+			copy(ranked[d][first:first+b.paths], b.ranked[d*fanBlock:])
+		}
+	}
+	b.paths = 0
 }
 
 func matrix(rows, cols int) [][]float64 {
