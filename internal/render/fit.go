@@ -7,6 +7,7 @@ import (
 	"strings"
 	"time"
 
+	"wxstress/internal/numfmt"
 	"wxstress/model"
 	"wxstress/stress"
 )
@@ -87,7 +88,7 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 				{"fast AR alone", Num(c.LogLikWithout, 1), Num(c.BICWithout, 1), Mark(!c.Kept)},
 			})
 			e.printf("%s\n", Wrap(fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary); "+
-				"with the slow part the model's sd of 365-day means is %s wider", c.LR, PValue(c.P), Percent(c.AnnualSpreadGain)), "    "))
+				"with the slow part the model's sd of 365-day means is %s wider", c.LR, PValue(c.P), numfmt.Percent(c.AnnualSpreadGain)), "    "))
 		}
 	}
 	if dg != nil {

@@ -147,7 +147,8 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		sm.Notes = append(sm.Notes, line)
 	}
 	for _, c := range bindingCapacities(r.Capacities) {
-		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity for %s, %s: %s%s", c.Target, c.Period, numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s", capacityWords(c.Target), c.Period,
+			numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
 	}
 	if h := r.Hedge; h != nil {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges remove %s of its variance",
@@ -320,6 +321,27 @@ func planningPeriod(periods []string) string {
 		return periods[0]
 	}
 	return ""
+}
+
+// capacityWords says a capacity target (peak:1-in-T, days:x, any:p) in
+// words for the summary's line; the target as given when it does not parse.
+func capacityWords(target string) string {
+	t, err := stress.ParseCapacityTarget(target)
+	if err != nil {
+		return "for " + target
+	}
+	switch t.Kind {
+	case "peak":
+		return "for the 1-in-" + periodKey(t.Value) + " peak day"
+	case "days":
+		days := "days"
+		if t.Value == 1 {
+			days = "day"
+		}
+		return "with at most " + numfmt.Number(t.Value) + " " + days + " a year over it on average"
+	default:
+		return "with a " + numfmt.Percent(t.Value) + " chance a year of any day over it"
+	}
 }
 
 // bindingCapacities keeps, for each capacity target, the period that needs

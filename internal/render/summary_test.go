@@ -59,3 +59,20 @@ func TestOccurs(t *testing.T) {
 		}
 	}
 }
+
+// TestCapacityWords checks the summary's plain words for each kind of
+// capacity target (--capacity-target).
+func TestCapacityWords(t *testing.T) {
+	for in, want := range map[string]string{
+		"peak:1-in-20":  "for the 1-in-20 peak day",
+		"peak:1-in-2.5": "for the 1-in-2.5 peak day",
+		"days:1":        "with at most 1 day a year over it on average",
+		"days:0.5":      "with at most 0.5 days a year over it on average",
+		"any:0.05":      "with a 5.0% chance a year of any day over it",
+		"nonsense":      "for nonsense",
+	} {
+		if got := capacityWords(in); got != want {
+			t.Errorf("%s: %q, want %q", in, got, want)
+		}
+	}
+}

@@ -49,14 +49,6 @@ func Num(v float64, d int) string {
 	return numfmt.Fixed(v, d)
 }
 
-// Percent formats a fraction as a whole percentage ("22 %" for 0.22).
-func Percent(v float64) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	return Num(100*v, 0) + " %"
-}
-
 // PValue formats a p-value: "< 0.0001" below that.
 func PValue(p float64) string {
 	switch {

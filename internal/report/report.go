@@ -12,6 +12,7 @@ import (
 	"strings"
 	"time"
 
+	"wxstress/internal/numfmt"
 	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/stress"
@@ -446,7 +447,7 @@ func paramRows(m *model.File) [][2]string {
 		rows = append(rows, [2]string{"slow part: choice", fmt.Sprintf("%s (likelihood ratio %.2f, p-value %s against ½χ²₁ + ½χ²₂; "+
 			"BIC %s with, %s without; with it the model's sd of 365-day means is %s wider)", c.SlowChoice.Rule, c.SlowChoice.LR,
 			render.PValue(c.SlowChoice.P), render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1),
-			render.Percent(c.SlowChoice.AnnualSpreadGain))})
+			numfmt.Percent(c.SlowChoice.AnnualSpreadGain))})
 	}
 	var sig []string
 	for k, v := range m.Volatility.Monthly {
