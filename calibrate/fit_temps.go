@@ -257,6 +257,9 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		mean, sd := af.filtered.SlowState(prm)
 		f.Slow = &model.Slow{Phi: prm.PhiSlow, SD: prm.SDSlow, EFoldingDays: prm.EFolding(), State: mean, StateSD: sd,
 			PhiSE: finiteOr0(af.chosen.SE[p]), SDSE: finiteOr0(af.chosen.SE[p+1])}
+		if w := shortSlowAdvice(f.Slow, len(s.Temps), f.Data.Units); w != "" && d.SlowAdvice == "" {
+			d.SlowAdvice = w
+		}
 	}
 
 	// Monthly σ from the likelihood, standardized innovations from the
@@ -660,4 +663,26 @@ func fitCLS(s *Series, x []float64, set *Settings, f *model.File, d *model.Diagn
 		d.Spread = append(d.Spread, ws)
 	}
 	return nil
+}
+
+// Below SlowShortYears years, or SlowShortSpans e-folding times, of record a
+// kept slow part is poorly determined, and the fit says so.
+const (
+	SlowShortYears = 15
+	SlowShortSpans = 20
+)
+
+// shortSlowAdvice cautions about a slow part fitted to a record too short to
+// pin it down: its spread, and its state at the data end that a
+// conditional start carries forward, rest on a few of its own time spans.
+func shortSlowAdvice(sl *model.Slow, days int, units string) string {
+	years := float64(days) / calendar.DaysPerYear
+	spans := float64(days) / sl.EFoldingDays
+	if years >= SlowShortYears && spans >= SlowShortSpans {
+		return ""
+	}
+	return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd (%.2f ± %.2f °%s) "+
+		"and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward, are poorly "+
+		"determined; compare with --slow none, and prefer a climate start", years, spans, sl.EFoldingDays,
+		sl.SD, sl.SDSE, units, sl.State, sl.StateSD, units)
 }

@@ -281,3 +281,20 @@ func TestSlowRecoveryOverRecords(t *testing.T) {
 		t.Errorf("where kept, the mean fitted annual HDD sd is %+.1f %% off the generator's (±3 %% allowed)", 100*(m-1))
 	}
 }
+
+// TestShortSlowAdvice: a slow part kept on four years (New York 2012–2015
+// fits an e-folding time of 155 days) draws the caution; on the demo's 71
+// years with 71 days it does not; 15 years with a 300-day e-folding time
+// (12 spans) still does.
+func TestShortSlowAdvice(t *testing.T) {
+	for _, c := range []struct {
+		days  int
+		tau   float64
+		wants bool
+	}{{1461, 155, true}, {25933, 71, false}, {5479, 300, true}, {5479, 100, false}} {
+		got := shortSlowAdvice(&model.Slow{EFoldingDays: c.tau, SD: 1.5, SDSE: 0.5, State: 3.1, StateSD: 0.9}, c.days, "C")
+		if (got != "") != c.wants {
+			t.Errorf("%d days, e-folding %v days: advice %q", c.days, c.tau, got)
+		}
+	}
+}

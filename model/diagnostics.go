@@ -13,8 +13,10 @@ type Diagnostics struct {
 	// ARAdvice is non-empty when BIC prefers another AR order than the
 	// one fitted by a clear margin.
 	ARAdvice string `json:"ar_advice,omitempty"`
-	// SlowAdvice is non-empty when auto left the slow part out although
-	// it would widen the model's annual spread materially.
+	// SlowAdvice is non-empty when the slow part's choice deserves a second
+	// look: auto left it out although it would widen the model's annual
+	// spread materially, or it was kept on a record too short to pin it
+	// down.
 	SlowAdvice string `json:"slow_advice,omitempty"`
 	// SlowChoice records how the slow part was kept or left out.
 	SlowChoice *SlowChoice `json:"slow_choice,omitempty"`

@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"errors"
 	"fmt"
 	"os"
 	"sort"
@@ -53,6 +54,11 @@ func isBuiltin(name string) bool {
 	return false
 }
 
+// ErrUnknown is wrapped by Lookup's error for a name that is neither a
+// built-in scenario nor a file: a usage error, where a bad file is a data
+// error.
+var ErrUnknown = errors.New("scenarios: unknown scenario")
+
 // Lookup returns the built-in scenario of that name, or else the scenario in
 // the file at that path.
 func Lookup(nameOrFile string) (*Scenario, error) {
@@ -62,7 +68,7 @@ func Lookup(nameOrFile string) (*Scenario, error) {
 		}
 	}
 	if _, err := os.Stat(nameOrFile); err != nil {
-		return nil, fmt.Errorf("scenarios: %q is neither a built-in scenario (%s) nor a file", nameOrFile, strings.Join(Names(), ", "))
+		return nil, fmt.Errorf("%w: %q is neither a built-in scenario (%s) nor a file", ErrUnknown, nameOrFile, strings.Join(Names(), ", "))
 	}
 	return Load(nameOrFile)
 }

@@ -5,7 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"path/filepath"
 	"slices"
+	"strconv"
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
@@ -134,6 +136,10 @@ type Result struct {
 	Capacities []CapacityRow // with Job.CapacityTargets
 	Hedge      *hedge.Result // with Job.Hedge
 	HedgeFile  *hedge.File   // Job.Hedge
+	// Warnings are the run's own cautions, in words: a target year far from
+	// the record, demand growth applied backwards, a demand model fitted
+	// with another temperature file than the model.
+	Warnings []string
 }
 
 // ErrJob is wrapped by errors about a job's inputs (as opposed to its data).
@@ -205,6 +211,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	cfg := job.Config
 	cfg.Year = sim.TargetYear(res.Model, cfg.Year, cfg.Periods)
+	res.Warnings = append(res.Warnings, yearWarnings(res.Model, cfg.Year)...)
 	if len(job.Design) > 0 {
 		cfg.SnapDays = job.SnapDays
 		if cfg.SnapDays == 0 {
@@ -242,7 +249,18 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			if !(job.Growth > -50 && job.Growth < 100) {
 				return nil, fmt.Errorf("%w: demand growth %v %% a year: want −50 to 100", ErrJob, job.Growth)
 			}
-			cfg.Growth = math.Pow(1+job.Growth/100, float64(cfg.Year-res.Demand.Data.LastDate.Year()))
+			years := cfg.Year - res.Demand.Data.LastDate.Year()
+			cfg.Growth = math.Pow(1+job.Growth/100, float64(years))
+			if years < 0 {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("demand growth of %s %% a year runs backwards: the target year %d is "+
+					"%d years before the demand record's end (%d), so demand is scaled by %.3f",
+					strconv.FormatFloat(job.Growth, 'f', -1, 64), cfg.Year, -years, res.Demand.Data.LastDate.Year(), cfg.Growth))
+			}
+		}
+		if a, b := res.Demand.Data.TemperatureSHA256, res.Model.Data.SHA256; a != "" && b != "" && a != b {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model was fitted with another temperature file (%s) than "+
+				"the temperature model (%s): its change points and slopes hold for that file's station",
+				filepath.Base(res.Demand.Data.TemperatureFile), filepath.Base(res.Model.Data.File)))
 		}
 	}
 	if job.Observed {
@@ -418,4 +436,32 @@ func climateReference(ctx context.Context, m *model.File, mix []*model.File, set
 	}
 	return simulate(ctx, m, mix, sim.Config{Paths: c.Paths, Seed: c.Seed, Workers: c.Workers, Year: c.Year,
 		Start: sim.StartClimate, Periods: c.Periods, Bases: c.Bases, SnapDays: c.SnapDays, ReturnPeriods: c.ReturnPeriods}, nil, nil, 0)
+}
+
+// FarYears is how far, in years, a target year may lie beyond the record's
+// end (or before its start) before a run warns that the fitted trend and
+// climate are carried that far.
+const FarYears = 30
+
+// yearWarnings cautions about a target year far from the record.
+func yearWarnings(m *model.File, year int) []string {
+	first, last := m.Data.FirstDate.Year(), m.Data.LastDate.Year()
+	var gap int
+	var where string
+	switch {
+	case year > last+FarYears:
+		gap, where = year-last, "after the record's end"
+	case year < first:
+		gap, where = first-year, "before the record's start"
+	default:
+		return nil
+	}
+	w := fmt.Sprintf("the target year %d is %d years %s (%d–%d): ", year, gap, where, first, last)
+	if m.Trend.Kind == "linear" && m.Trend.SlopePerYear != 0 {
+		w += fmt.Sprintf("the fitted trend (%+.2f °%s a decade) is carried that far; treat its level as an extrapolation",
+			10*m.Trend.SlopePerYear, m.Data.Units)
+	} else {
+		w += "the model has no trend, so that year's climate is taken to be the record's"
+	}
+	return []string{w}
 }

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"context"
 	"math"
+	"slices"
+	"strings"
 	"testing"
 
 	"wxstress/calibrate"
@@ -170,4 +172,52 @@ func TestLoadDurationAgreesWithPeakDay(t *testing.T) {
 		return
 	}
 	t.Fatal("no peak-day demand row for the year")
+}
+
+// TestRunWarnings checks the run's own cautions: none for a target year
+// next to the record with forward growth; growth run backwards to a year
+// before the demand record's end; a target year more than FarYears past
+// the record; a demand model fitted with another temperature file.
+func TestRunWarnings(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo data")
+	}
+	t.Parallel()
+	run := func(job *Job) []string {
+		t.Helper()
+		res, err := Run(context.Background(), job)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res.Warnings
+	}
+	has := func(ws []string, part string) bool {
+		return slices.ContainsFunc(ws, func(w string) bool { return strings.Contains(w, part) })
+	}
+	job := demoDemandJob(t, 200)
+	job.Config.Year, job.Growth = 2027, 2
+	res, err := Run(context.Background(), job)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Warnings) > 0 {
+		t.Errorf("a plain run warns: %q", res.Warnings)
+	}
+	job = demoDemandJob(t, 200)
+	job.Config.Year, job.Growth = 2023, 2
+	if ws := run(job); !has(ws, "runs backwards: the target year 2023 is 2 years before the demand record's end (2025)") {
+		t.Errorf("growth back to 2023: %q", ws)
+	}
+	job = demoDemandJob(t, 200)
+	job.Config.Year = 2070
+	if ws := run(job); !has(ws, "the target year 2070 is 45 years after the record's end (1955–2025)") {
+		t.Errorf("target year 2070: %q", ws)
+	}
+	other := *res.Demand
+	other.Data.TemperatureSHA256, other.Data.TemperatureFile = "0123", "elsewhere.csv"
+	job = &Job{Model: res.Model, Demand: &other, Config: sim.Config{Paths: 200, Seed: 5, Year: 2026,
+		Periods: []string{"year"}, Bases: sim.BasesFor(model.Celsius)}}
+	if ws := run(job); !has(ws, "fitted with another temperature file (elsewhere.csv)") {
+		t.Errorf("demand model from another file: %q", ws)
+	}
 }

@@ -29,10 +29,12 @@ var demoUsage = helpText{
 ` + demo.StationName + ` and five years of ` + demo.Retailer + `'s daily gas send-out.
 It fits the temperature model, fits the demand model, simulates the year after
 the record under today's climate and four built-in scenarios (warm-1c,
-trend-2050, volatile-winter, cold-spell-10d) with demand, and prints the fit
-summaries, the tail tables, the planning tables, the scenario comparison and
-the weather-normalized history. Its outputs (model.json, demand.json,
-tails.json, tails.csv, paths.csv) go to a new directory (wxstress-demo, or
+trend-2050, volatile-winter, cold-spell-10d) with demand, design days and a
+capacity, and prints a one-page summary of the key figures, the planner's
+lines, the scenario comparison and the warnings (--detail: the fit summaries,
+every tail table, the planning tables and the weather-normalized history).
+Its outputs (model.json, demand.json, tails.json, tails.csv, paths.csv and
+the HTML report report.html) go to a new directory (wxstress-demo, or
 wxstress-demo-2, ... if that exists) or to --dir, which it never overwrites
 without --force. The data are invented for demonstration.`,
 	examples: `  wxstress demo
@@ -128,6 +130,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	rep.Manifest = manifest(m, modelPath, bytesSHA(modelJSON), out)
 	rep.Manifest.RunID = plan.runID()
 	rep.Manifest.Scenarios = demoScenarios
+	rep.Manifest.Warnings = res.Warnings
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, bytesSHA(demandJSON)
 	reportPath := filepath.Join(o.dir, "report.html")
 	meta := report.Meta{

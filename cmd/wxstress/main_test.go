@@ -269,8 +269,9 @@ func TestSimulateScenarioErrors(t *testing.T) {
 	if code == 0 || !strings.Contains(stderr, bad+":4: key shift.monthy: unknown key") {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
+	// An unknown name is a usage error (exit 2), a bad file a data error.
 	code, _, stderr = call(t, context.Background(), "simulate", "--model", m, "--paths", "10", "--scenario", "warm-9c")
-	if code == 0 || !strings.Contains(stderr, "warm-1c") {
+	if code != 2 || !strings.Contains(stderr, "warm-1c") {
 		t.Errorf("unknown scenario: exit %d, stderr %q", code, stderr)
 	}
 	code, out, _ := call(t, context.Background(), "scenarios")
@@ -597,6 +598,26 @@ func TestDemoSummary(t *testing.T) {
 	}
 	if checked != 2 {
 		t.Errorf("found %d of the 2 headline rows (HDD and demand energy, heating) in:\n%s", checked, out)
+	}
+	// The demo's capacity (--capacity 120000) and its days over it in the
+	// planning period, at the JSON's mean.
+	var over struct {
+		Indices []struct {
+			Key, Period string
+			Mean        float64
+			MeanSE      float64 `json:"mean_se"`
+		}
+	}
+	if err := json.Unmarshal(b, &over); err != nil {
+		t.Fatal(err)
+	}
+	for _, x := range over.Indices {
+		if x.Key == "over-capacity" && x.Period == "heating" {
+			want := "Days over the capacity of 120,000 GJ/day, heating: mean " + numfmt.Value(x.Mean, x.MeanSE) + ", "
+			if !strings.Contains(out, want) {
+				t.Errorf("no line %q in the summary:\n%s", want, out)
+			}
+		}
 	}
 }
 

@@ -257,7 +257,7 @@ func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Mani
 		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
 		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,
 		Shocks: m.Shocks.Family, Quantiles: render.QuantileConvention, Caution: render.Caution, Capacity: c.Capacity,
-		SnapDays: c.SnapDays,
+		SnapDays: c.SnapDays, DemandGrowth: c.Growth,
 	}
 }
 

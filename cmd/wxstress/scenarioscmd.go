@@ -2,8 +2,10 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
+	"strings"
 
 	"github.com/spf13/pflag"
 
@@ -63,7 +65,9 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		}
 	} else {
 		var err error
-		if list, err = scenarios.LookupAll(fs.Args()); err != nil {
+		if list, err = scenarios.LookupAll(fs.Args()); errors.Is(err, scenarios.ErrUnknown) {
+			return usagef("scenarios: %s", strings.TrimPrefix(err.Error(), scenarios.ErrUnknown.Error()+": "))
+		} else if err != nil {
 			return err
 		}
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -113,7 +114,8 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
-	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100 (default 2,5,10,20,50,100)")
+	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100")
+	fs.Lookup("return-periods").DefValue = "2,5,10,20,50,100" // nil means these; shown as the default
 	fs.StringSliceVar(&o.design, "design", nil, "planning standards of the design day, e.g. 1-in-20,1-in-50: the 1-in-T coldest day, k-day cold snap, peak-day demand and snap energy")
 	fs.Float64Var(&o.growth, "growth", 0, "with --demand: load growth in per cent a year from the demand record's end to the target year")
 	fs.IntVar(&o.snapDays, "snap-days", stress.DefaultSnapDays, "with --design: the length k of the design cold snap, in days")
@@ -229,6 +231,9 @@ func (o *simulateOptions) validate() error {
 		}
 	}
 	loaded, err := scenarios.LookupAll(o.scenarios)
+	if errors.Is(err, scenarios.ErrUnknown) {
+		return usagef("simulate: --scenario: %s", strings.TrimPrefix(err.Error(), scenarios.ErrUnknown.Error()+": "))
+	}
 	if err != nil {
 		return err // a bad file is a data error (exit 1), like a bad model file
 	}
@@ -404,6 +409,10 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		rep.Manifest.RunID = plan.runID() // names the set of files written together
 	}
 	rep.Manifest.Scenarios = o.scenarios
+	rep.Manifest.Warnings = out.Warnings
+	if o.growth != 0 {
+		rep.Manifest.DemandGrowthPerCent = o.growth
+	}
 	if o.demand != "" {
 		rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(o.demand), demandSum
 	}
@@ -434,9 +443,13 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		return err
 	}
 	switch o.format {
-	case "json":
-		return render.SimJSON(stdout, rep)
-	case "csv":
+	case "json", "csv":
+		for _, w := range out.Warnings { // in the manifest too; said where a person looks
+			fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+		}
+		if o.format == "json" {
+			return render.SimJSON(stdout, rep)
+		}
 		return render.SimCSV(stdout, rep)
 	}
 	print := render.SimTables

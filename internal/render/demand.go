@@ -241,15 +241,15 @@ func HolidayListText(d model.DemandData) string {
 	if d.HolidayListDates+len(d.HolidayRules) == 0 {
 		return ""
 	}
-	s := plural(d.HolidayListDates, "date")
+	s := Plural(d.HolidayListDates, "date")
 	if n := len(d.HolidayRules); n > 0 {
-		s += fmt.Sprintf(", %s (%s)", plural(n, "rule"), strings.Join(d.HolidayRules, ", "))
+		s += fmt.Sprintf(", %s (%s)", Plural(n, "rule"), strings.Join(d.HolidayRules, ", "))
 	}
 	return s
 }
 
-// plural writes a count and a noun, with an s unless the count is 1.
-func plural(n int, noun string) string {
+// Plural writes a count and a noun, with an s unless the count is 1.
+func Plural(n int, noun string) string {
 	if n == 1 {
 		return "1 " + noun
 	}

@@ -26,8 +26,8 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 	u := "°" + f.Data.Units
 	d := f.Data
 	e.printf("Station record  %s\n", d.File)
-	e.printf("%s\n", Wrap(fmt.Sprintf("  %s to %s: %d days, %d missing (longest gap %d days); daily mean = %s; units %s",
-		d.FirstDate, d.LastDate, d.Days, d.Missing, d.LongestGap, d.MeanFrom, u), "  "))
+	e.printf("%s\n", Wrap(fmt.Sprintf("  %s to %s: %d days, %d missing (longest gap %s); daily mean = %s; units %s",
+		d.FirstDate, d.LastDate, d.Days, d.Missing, Plural(d.LongestGap, "day"), d.MeanFrom, u), "  "))
 
 	e.printf("\nSeasonal mean  S(t) = a + b·t + Σ harmonics, period %.2f days, t in days since %s\n",
 		f.Seasonal.PeriodDays, f.Trend.Epoch)

@@ -81,10 +81,13 @@ type Summary struct {
 func NewSummary(r *SimReport, m *model.File) *Summary {
 	sm := &Summary{KeyTitle: "Key figures (adverse side: high for degree days and demand, low for the coldest day)"}
 	mf := r.Manifest
-	sm.Run = append(sm.Run, fmt.Sprintf("%s synthetic years of %d (%s start, seed %d), %d periods: %s",
-		numfmt.Number(float64(mf.Paths)), mf.Year, mf.Start, mf.Seed, len(mf.Periods), strings.Join(mf.Periods, ", ")))
+	sm.Run = append(sm.Run, fmt.Sprintf("%s synthetic years of %d (%s start, seed %d), %s: %s",
+		numfmt.Number(float64(mf.Paths)), mf.Year, mf.Start, mf.Seed, Plural(len(mf.Periods), "period"), strings.Join(mf.Periods, ", ")))
 	if m != nil {
 		sm.Run = append(sm.Run, "Model: "+ModelLine(m))
+	}
+	if g := GrowthLine(mf); g != "" {
+		sm.Run = append(sm.Run, g)
 	}
 	for _, o := range r.InSeason {
 		if o.Days > 0 {
@@ -146,6 +149,17 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		}
 		sm.Notes = append(sm.Notes, line)
 	}
+	if mf.Capacity > 0 {
+		for _, row := range r.Rows {
+			if row.Index != sim.OverCapacity || planning != "" && row.Period != planning {
+				continue
+			}
+			t := row.Tail
+			sm.Notes = append(sm.Notes, fmt.Sprintf("Days over the capacity of %s%s, %s: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
+				numfmt.Number(mf.Capacity), peakUnit, row.Period, numfmt.Value(t.Mean, t.MeanSE), numfmt.Number(t.Quantile(0.5)),
+				numfmt.Number(t.ReturnLevel(20)), numfmt.Number(t.ReturnLevel(50))))
+		}
+	}
 	for _, c := range bindingCapacities(r.Capacities) {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s", capacityWords(c.Target), c.Period,
 			numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
@@ -201,10 +215,11 @@ func scenarioKeys(rows []sim.Row) []int {
 }
 
 // summaryWarnings collects what should make a reader doubt the figures:
-// Monte Carlo error (in one line), the record's spread outside the model's
+// the run's own cautions (a far target year, growth run backwards, another
+// station's demand model), Monte Carlo error (in one line), the record's spread outside the model's
 // band, return levels outside the GEV interval, and the fit's spread check.
 func summaryWarnings(r *SimReport, m *model.File) []string {
-	var warns []string
+	warns := slices.Clone(r.Manifest.Warnings)
 	if w := mcSummary(r.Rows); w != "" {
 		warns = append(warns, w)
 	}
@@ -219,6 +234,9 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
+		if a := m.Diagnostics.SlowAdvice; a != "" {
+			warns = append(warns, "the model's fit: "+a)
+		}
 		for _, s := range m.Diagnostics.Spread {
 			if s.Verdict == "too narrow" || s.Verdict == "too wide" {
 				warns = append(warns, fmt.Sprintf("the record's %d-day spread lies outside the model's band (%s)", s.Days, s.Verdict))

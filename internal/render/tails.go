@@ -51,8 +51,15 @@ type Manifest struct {
 	DemandModel   string   `json:"demand_model,omitempty"`
 	DemandSHA256  string   `json:"demand_sha256,omitempty"`
 	Capacity      float64  `json:"capacity,omitempty"`
-	Quantiles     string   `json:"quantile_convention"`
-	Caution       string   `json:"caution"`
+	// DemandGrowth is the factor demand was scaled by, (1 + g/100)^years
+	// for a growth of g % a year (DemandGrowthPerCent) from the demand
+	// record's end to the target year; 0 without growth.
+	DemandGrowth        float64 `json:"demand_growth_factor,omitempty"`
+	DemandGrowthPerCent float64 `json:"demand_growth_per_cent_a_year,omitempty"`
+	Quantiles           string  `json:"quantile_convention"`
+	Caution             string  `json:"caution"`
+	// Warnings are the run's own cautions (stress.Result.Warnings).
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 // QuantileConvention describes how quantiles are computed, for manifests.
@@ -393,7 +400,22 @@ func csvManifest(w io.Writer, m Manifest) error {
 		"periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "quantile_convention", "caution"} {
 		e.printf("# %s: %v\n", k, kv[k])
 	}
+	if m.DemandGrowth != 0 {
+		e.printf("# demand_growth_per_cent_a_year: %v\n# demand_growth_factor: %v\n", m.DemandGrowthPerCent, m.DemandGrowth)
+	}
+	for _, w := range m.Warnings {
+		e.printf("# warning: %s\n", w)
+	}
 	return e.err
+}
+
+// GrowthLine words a run's demand growth; "" without growth.
+func GrowthLine(m Manifest) string {
+	if m.DemandGrowth == 0 {
+		return ""
+	}
+	return fmt.Sprintf("Demand grown by %s %% a year to %d: scaled by %s", numfmt.Number(m.DemandGrowthPerCent), m.Year,
+		numfmt.Fixed(m.DemandGrowth, 3))
 }
 
 // SimTables writes one terminal table per period: statistics down, indices
@@ -403,6 +425,12 @@ func SimTables(w io.Writer, r *SimReport) error {
 	m := r.Manifest
 	e.printf("%d synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
 		m.Paths, m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
+	if g := GrowthLine(m); g != "" {
+		e.printf("%s\n", g)
+	}
+	for _, w := range m.Warnings {
+		e.printf("%s\n", Wrap("Warning: "+w, "  "))
+	}
 	writeInSeason(e, r)
 	for _, group := range byPeriod(r.Rows) {
 		e.printf("\nPeriod: %s\n", group[0].Period)

@@ -228,8 +228,8 @@ func modelOneLine(m *model.File) string {
 	if sl := m.Slow; sl != nil {
 		slow = fmt.Sprintf("slow part φ_slow %.4f (e-folding %.0f days, sd %s %s)", sl.Phi, sl.EFoldingDays, render.Num(sl.SD, 2), u)
 	}
-	return fmt.Sprintf("%s, %d seasonal harmonic(s), fast AR(%d), %s, monthly σ %s–%s %s, %s shocks", trend,
-		len(m.Seasonal.Harmonics), len(m.AR.Phi), slow, render.Num(minOf(m.Volatility.Monthly[:]), 2),
+	return fmt.Sprintf("%s, %s, fast AR(%d), %s, monthly σ %s–%s %s, %s shocks", trend,
+		render.Plural(len(m.Seasonal.Harmonics), "seasonal harmonic"), len(m.AR.Phi), slow, render.Num(minOf(m.Volatility.Monthly[:]), 2),
 		render.Num(maxOf(m.Volatility.Monthly[:]), 2), u, familyName(m.Shocks.Family))
 }
 
@@ -378,7 +378,7 @@ func (b *builder) dataRows() [][2]string {
 			[2]string{"span", fmt.Sprintf("%s to %s (%.1f years)", d.FirstDate, d.LastDate, float64(d.Days)/365.25)},
 			[2]string{"days in the span", strconv.Itoa(d.Days)},
 			[2]string{"missing days", fmt.Sprintf("%d (%.2f %%)", d.Missing, share)},
-			[2]string{"longest gap", fmt.Sprintf("%d days", d.LongestGap)},
+			[2]string{"longest gap", render.Plural(d.LongestGap, "day")},
 			[2]string{"daily mean", d.MeanFrom},
 			[2]string{"units", degrees(d.Units)},
 		)
@@ -403,8 +403,8 @@ func (b *builder) dataRows() [][2]string {
 func paramRows(m *model.File) [][2]string {
 	u := degrees(m.Data.Units)
 	rows := [][2]string{
-		{"mean model S(t)", fmt.Sprintf("a + b·t + %d harmonic(s), period %.2f days, t in days since %s",
-			len(m.Seasonal.Harmonics), m.Seasonal.PeriodDays, m.Trend.Epoch)},
+		{"mean model S(t)", fmt.Sprintf("a + b·t + %s, period %.2f days, t in days since %s",
+			render.Plural(len(m.Seasonal.Harmonics), "harmonic"), m.Seasonal.PeriodDays, m.Trend.Epoch)},
 		{"level a", fmt.Sprintf("%.3f %s", m.Trend.Intercept, u)},
 	}
 	est := m.Trend.Estimate
