@@ -286,9 +286,9 @@ func (s *Scenario) Describe() []string {
 		}
 	}
 	for _, e := range s.Events {
-		kind, sign := "cold", "−"
+		kind, way := "cold", "colder"
 		if e.Kind == "hot" {
-			kind, sign = "hot", "+"
+			kind, way = "hot", "warmer"
 		}
 		when := "starting " + e.Start
 		if e.Window != "" {
@@ -298,7 +298,7 @@ func (s *Scenario) Describe() []string {
 		if e.Probability != nil && *e.Probability < 1 {
 			p = fmt.Sprintf("with probability %.2f a year", *e.Probability)
 		}
-		add("%s spell: %d days at %s%.1f %s, %s, %s", kind, e.Days, sign, e.Anomaly, u, when, p)
+		add("%s spell: %d days each %.1f %s %s than simulated, %s, %s", kind, e.Days, e.Anomaly, u, way, when, p)
 	}
 	if len(out) == 0 {
 		out = append(out, "no change (the baseline)")

@@ -131,6 +131,11 @@ func TestCommonRandomNumbersShrinkTheStandardError(t *testing.T) {
 	if ch.Mean >= 0 {
 		t.Errorf("warming by 1 °C changed mean HDD by %+.1f", ch.Mean)
 	}
+	// A uniform shift moves every path's coldest day by exactly 1 °C: the
+	// paired error is rounding noise, reported as 0.
+	if c := sim.Compare(base, scen, bRows, sRows)[sim.Coldest]; c.MeanSE != 0 || math.Abs(c.Mean-1) > 1e-9 {
+		t.Errorf("coldest day under a 1 °C shift: change %v ± %v, want exactly 1 ± 0", c.Mean, c.MeanSE)
+	}
 }
 
 func TestTrendChanges(t *testing.T) {

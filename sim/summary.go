@@ -173,6 +173,9 @@ func Compare(base, scen *Result, baseRows, scenRows []Row) []Change {
 		n := float64(len(d))
 		_, sd := stat.MeanStdDev(d, nil)
 		bt, st := baseRows[k].Tail, scenRows[k].Tail
+		if sd <= 1e-9*max(1, math.Abs(bt.Mean)) {
+			sd = 0 // rounding noise: an exact shift moves every path by the same amount
+		}
 		out[k] = Change{
 			Mean: st.Mean - bt.Mean, MeanSE: sd / math.Sqrt(n),
 			IndependentSE: math.Sqrt((bt.SD*bt.SD + st.SD*st.SD) / n),

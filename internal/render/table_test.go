@@ -33,3 +33,23 @@ func TestWrap(t *testing.T) {
 		t.Errorf("a long word must stand alone, got %q", got)
 	}
 }
+
+// TestChangeText checks the scenario change column: a paired change with its
+// error, an exact shift, and a change below the tables' one decimal.
+func TestChangeText(t *testing.T) {
+	for _, c := range []struct {
+		mean, se float64
+		want     string
+	}{
+		{12.34, 1.8, "+12 ± 1.8"},
+		{-56.2, 0.11, "-56.2 ± 0.11"},
+		{1, 0, "+1.0 (exact)"},
+		{-5e-7, 4e-7, "|change| < 0.05"},
+		{0, 3e-8, "|change| < 0.05"},
+		{0.03, 0.02, "+0.03 ± 0.020"},
+	} {
+		if got := ChangeText(c.mean, c.se); got != c.want {
+			t.Errorf("ChangeText(%v, %v) = %q, want %q", c.mean, c.se, got, c.want)
+		}
+	}
+}

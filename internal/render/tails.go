@@ -718,10 +718,18 @@ func writeInSeason(e *errWriter, r *SimReport) {
 
 // ChangeText writes a change of the mean with its paired Monte Carlo
 // standard error: "+12.3 ± 1.8", or "+1.0 (exact)" when the error is
-// rounding noise (a level shift moves the coldest day by exactly its size).
+// rounding noise (a level shift moves the coldest day by exactly its size),
+// or "|change| < 0.05" when change and error are both below the tables'
+// one decimal.
 func ChangeText(mean, se float64) string {
 	if se <= 1e-9*max(1, math.Abs(mean)) {
 		return fmt.Sprintf("%+.1f %s", mean, numfmt.Exact)
+	}
+	if math.Abs(mean)+2*se < 0.05 {
+		// Below the tables' one decimal, error included: a scenario that
+		// hardly reaches this period (a winter change seen in summer
+		// through the slow part's memory).
+		return "|change| < 0.05"
 	}
 	// Common random numbers can make the s.e. of a shift's change tiny; the
 	// change itself needs no more than four significant figures.
