@@ -50,7 +50,8 @@ func (e *PosError) Unwrap() error { return ErrBadInput }
 // errors, one a line, then "(and N more errors)". The readers keep at most
 // MaxErrors entries; when more rows are bad, the list ends with one more
 // entry, "… and N more bad rows" (its MoreRows is N), which the message
-// always shows last.
+// folds into its last line: "(and 90 more errors, then 752 more bad rows,
+// in FILE)".
 type ErrorList []*PosError
 
 // MaxShown is how many errors an ErrorList prints before summarising the rest.
@@ -69,7 +70,6 @@ func (l ErrorList) Error() string {
 	var b strings.Builder
 	for i, e := range l {
 		if i == MaxShown {
-			fmt.Fprintf(&b, "\n(and %d more errors)", len(l)-MaxShown)
 			break
 		}
 		if i > 0 {
@@ -77,7 +77,12 @@ func (l ErrorList) Error() string {
 		}
 		b.WriteString(e.Error())
 	}
-	if more != nil {
+	switch hidden := len(l) - MaxShown; {
+	case hidden > 0 && more != nil:
+		fmt.Fprintf(&b, "\n(and %d more errors, then %d more bad rows, in %s)", hidden, more.MoreRows, more.File)
+	case hidden > 0:
+		fmt.Fprintf(&b, "\n(and %d more errors)", hidden)
+	case more != nil:
 		b.WriteByte('\n')
 		b.WriteString(more.Error())
 	}

@@ -326,8 +326,12 @@ func (s *Scenario) DescribeFor(m *model.File, year int) []string {
 	for i, line := range out {
 		if strings.HasPrefix(line, "climate of ") {
 			u := model.Units(m.Data.Units).Symbol()
-			out[i] = fmt.Sprintf("%s: level %+.2f %s against %d (fitted trend %+.3f %s/decade)", line, moved-base,
-				u, year, 10*applied.Trend.SlopePerYear, u)
+			trend := fmt.Sprintf("fitted trend %+.3f %s/decade", 10*m.Trend.SlopePerYear, u)
+			if applied.Trend.SlopePerYear != m.Trend.SlopePerYear {
+				trend = fmt.Sprintf("trend %+.3f %s/decade in the scenario, fitted %+.3f", 10*applied.Trend.SlopePerYear, u,
+					10*m.Trend.SlopePerYear)
+			}
+			out[i] = fmt.Sprintf("%s: level %+.2f %s against %d (%s)", line, moved-base, u, year, trend)
 		}
 	}
 	return out

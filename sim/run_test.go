@@ -300,6 +300,24 @@ func TestSnapWithoutDemand(t *testing.T) {
 	}
 }
 
+// TestSnapLengthInNames: the design snap's length names its indices
+// ("coldest 3-day mean", "3-day demand energy"); "peak-day demand" keeps
+// its name.
+func TestSnapLengthInNames(t *testing.T) {
+	res := run(t, seasonalModel([]float64{0.7}), Config{Paths: 50, Seed: 5, Year: 2026, Periods: []string{"heating"},
+		SnapDays: 3, Demand: testDemand(), Bases: BasesFor(model.Celsius)})
+	names := map[Index]string{}
+	for _, r := range res.Summarize(model.Celsius, nil) {
+		names[r.Index] = r.Name
+	}
+	for x, want := range map[Index]string{ColdSnap: "coldest 3-day mean", SnapEnergy: "3-day demand energy",
+		PeakDemand: "peak-day demand", Coldest: "coldest day"} {
+		if names[x] != want {
+			t.Errorf("%s: named %q, want %q", x.Info().Key, names[x], want)
+		}
+	}
+}
+
 // TestFourPathsMatchOne checks that the four-path kernel gives every path
 // exactly the temperatures the one-path kernel gives it, with and without
 // the slow part, for climate and conditional starts.

@@ -3,6 +3,7 @@ package sim
 import (
 	"fmt"
 	"math"
+	"regexp"
 	"slices"
 	"strconv"
 	"strings"
@@ -110,6 +111,10 @@ func IndexKeys() []string {
 	return keys
 }
 
+// kDay is the "k-day" of the snap indices' names (not the "k-day" inside
+// "peak-day").
+var kDay = regexp.MustCompile(`\bk-day\b`)
+
 // Summarize computes the tail table of every aggregate, in the order of
 // r.Aggregates, sorting the columns in parallel on r.Config.Workers
 // goroutines; units are the model's temperature units.
@@ -123,6 +128,9 @@ func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 	}
 	for i, a := range r.Aggregates {
 		in := a.Index.Info()
+		if r.Config.SnapDays > 0 { // the design snap's length in its name: "coldest 3-day mean"
+			in.Name = kDay.ReplaceAllString(in.Name, strconv.Itoa(r.Config.SnapDays)+"-day")
+		}
 		var ths []float64
 		for _, th := range thresholds {
 			if th.Index == a.Index && (th.Period == "" || th.Period == a.Period.Name) {

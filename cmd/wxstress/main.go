@@ -59,8 +59,11 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 		return exitUsage
 	}
 	name := args[0]
-	if name == "-h" || name == "--help" {
+	switch name {
+	case "-h", "--help":
 		name = "help"
+	case "--version":
+		name = "version"
 	}
 	for _, c := range commands() {
 		if c.name == name {

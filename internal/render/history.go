@@ -24,8 +24,8 @@ func historyShown(r stress.HistoryRow) bool {
 // the model's probability of the record's three worst seasons. The terminal
 // and the HTML report show the same cells.
 func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, header []string, rows [][]string, notes []string) {
-	title = fmt.Sprintf("The record's own seasons beside the model (each moved along the fitted trend to %d: %+.3f °%s per year)",
-		h.TargetYear, h.ShiftPerYear, units)
+	title = fmt.Sprintf("The record's own seasons beside the model (each moved along the fitted trend to %d: %+.2f °%s a decade)",
+		h.TargetYear, 10*h.ShiftPerYear, units)
 	if h.ClimateRun {
 		title += "; the model side from a climate-start run, as the record's seasons are draws from the climate"
 	}

@@ -118,15 +118,17 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	sm.KeyHead = []string{"index, period", "unit", "P50", "1-in-20", "1-in-50", "ES 95%"}
 	if bandCol {
 		sm.KeyHead = append(sm.KeyHead, "1-in-20, 90% band")
+		sm.Notes = append(sm.Notes, fmt.Sprintf("90%% band: the 1-in-20 level's range over %d refits of the model to "+
+			"synthetic records like the station's (parameter uncertainty, not Monte Carlo error)", r.Refits))
 	}
 	for _, row := range r.Rows {
 		for _, x := range row.Tail.Exceedances {
 			if !occurs(row) && x.Prob == 0 {
 				continue // "the coldest day of summer below −15: 0 ± 0" says nothing
 			}
-			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s %s) = %s %s", row.Name, row.Period,
+			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s %s) = %s", row.Name, row.Period,
 				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold), row.Unit,
-				numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE)))
+				ExceedText(x, row.Tail.N)))
 		}
 	}
 

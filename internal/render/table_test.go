@@ -4,6 +4,8 @@ import (
 	"strings"
 	"testing"
 	"unicode/utf8"
+
+	"wxstress/sim"
 )
 
 // TestWrap checks that wrapping keeps every word in order, breaks only at
@@ -50,6 +52,23 @@ func TestChangeText(t *testing.T) {
 	} {
 		if got := ChangeText(c.mean, c.se); got != c.want {
 			t.Errorf("ChangeText(%v, %v) = %q, want %q", c.mean, c.se, got, c.want)
+		}
+	}
+}
+
+// TestExceedText: an exceedance with its error, and the none/all cases
+// that say how many years they rest on instead of "0 ± 0".
+func TestExceedText(t *testing.T) {
+	for _, c := range []struct {
+		x    sim.Exceedance
+		want string
+	}{
+		{sim.Exceedance{Threshold: 3300, Prob: 0.11, SE: 0.0031}, "0.110 ± 0.0031"},
+		{sim.Exceedance{Threshold: 5000}, "0 (none of 10,000 years)"},
+		{sim.Exceedance{Threshold: 10, Prob: 1}, "1 (all 10,000 years)"},
+	} {
+		if got := ExceedText(c.x, 10000); got != c.want {
+			t.Errorf("%+v: %q, want %q", c.x, got, c.want)
 		}
 	}
 }

@@ -396,9 +396,12 @@ func csvManifest(w io.Writer, m Manifest) error {
 	if m.RunID != "" {
 		e.printf("# run_id: %s\n", m.RunID)
 	}
-	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "seed", "paths", "year", "start",
-		"periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "quantile_convention", "caution"} {
-		e.printf("# %s: %v\n", k, kv[k])
+	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "data_sha256", "seed", "paths", "year",
+		"start", "periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "scenarios", "demand_model",
+		"demand_sha256", "capacity", "quantile_convention", "caution"} {
+		if v, ok := kv[k]; ok { // absent: omitted from the JSON as not applying
+			e.printf("# %s: %v\n", k, v)
+		}
 	}
 	if m.DemandGrowth != 0 {
 		e.printf("# demand_growth_per_cent_a_year: %v\n# demand_growth_factor: %v\n", m.DemandGrowthPerCent, m.DemandGrowth)
@@ -451,8 +454,8 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 		for _, row := range group {
 			for _, x := range row.Tail.Exceedances {
-				e.printf("  P(%s %s %s) = %s %s\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
-					numfmt.Number(x.Threshold), numfmt.Value(x.Prob, x.SE), numfmt.SE(x.SE))
+				e.printf("  P(%s %s %s) = %s\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
+					numfmt.Number(x.Threshold), ExceedText(x, row.Tail.N))
 			}
 		}
 	}
@@ -714,6 +717,20 @@ func writeInSeason(e *errWriter, r *SimReport) {
 		rows = append(rows, []string{o.Period, fmt.Sprint(o.Days), numfmt.Fixed(o.Values[sim.HDD], 1), numfmt.Fixed(o.Values[sim.CDD], 1), energy})
 	}
 	e.table([]string{"period", "days observed", "HDD so far", "CDD so far", "energy so far"}, rows)
+}
+
+// ExceedText writes an exceedance probability with its Monte Carlo s.e.,
+// or, when no path or every path passed the threshold (where the s.e. is 0
+// and says nothing), how many paths that rests on: "0 (none of 10,000
+// years)".
+func ExceedText(x sim.Exceedance, paths int) string {
+	switch x.Prob {
+	case 0:
+		return "0 (none of " + numfmt.Number(float64(paths)) + " years)"
+	case 1:
+		return "1 (all " + numfmt.Number(float64(paths)) + " years)"
+	}
+	return numfmt.Value(x.Prob, x.SE) + " " + numfmt.SE(x.SE)
 }
 
 // ChangeText writes a change of the mean with its paired Monte Carlo
