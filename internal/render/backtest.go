@@ -26,7 +26,7 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 			row.Index.Info().Name, row.Period, fmt.Sprint(len(row.Origins)),
 			fmt.Sprintf("%d/%d (p %s)", ev.Central50.Inside, ev.Cases, PValue(ev.Central50.P)),
 			fmt.Sprintf("%d/%d (p %s)", ev.Central90.Inside, ev.Cases, PValue(ev.Central90.P)),
-			PValue(ev.KS.P), Num(ev.ProbitSD, 2), numfmt.Fixed(ev.MeanCRPS, 1), numfmt.Fixed(ev.MeanRefCRPS, 1),
+			PValue(ev.KS.P), Num(ev.ProbitSD, 2), TableNum(ev.MeanCRPS), TableNum(ev.MeanRefCRPS),
 		})
 	}
 	e.table([]string{"index", "period", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",
@@ -37,7 +37,7 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e.printf("\nA calibrated model puts about half the realised values inside its central 50 %% band and nine in ten\n" +
 		"inside its 90 %% band; the sd of probit(PIT) is then about 1 (above 1: too narrow). CRPS (Gneiting & Raftery\n" +
 		"2007) is lower for the better forecast; the climatology is the distribution of the earlier seasons.\n")
-	e.printf("\n%s\n", Caution)
+	e.printf("\n%s\n", Wrap(Caution, ""))
 	return e.err
 }
 

@@ -140,7 +140,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 			e.printf("  - %s\n", w)
 		}
 	}
-	e.printf("\n%s\n", Caution)
+	e.printf("\n%s\n", Wrap(Caution, ""))
 	return e.err
 }
 

@@ -39,7 +39,7 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 		e.printf(", %.3f from %d annual means", est.SEAnnual, est.Years)
 	}
 	e.printf("\n")
-	e.printf("  %s\n", f.Trend.Rule)
+	e.printf("%s\n", Wrap("  "+f.Trend.Rule, "    "))
 	rows := [][]string{}
 	for _, h := range f.Seasonal.Harmonics {
 		rows = append(rows, []string{fmt.Sprint(h.K), Num(h.Amplitude, 3), Num(h.Phase, 4),
@@ -81,7 +81,7 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 	e.table([]string{"coefficient", "estimate", "s.e."}, rows)
 	if dg != nil && dg.SlowChoice != nil {
 		c := dg.SlowChoice
-		e.printf("Slow part: %s\n", c.Rule)
+		e.printf("%s\n", Wrap("Slow part: "+c.Rule, "  "))
 		if c.Setting != "none" {
 			e.table([]string{"model", "log-lik", "BIC", ""}, [][]string{
 				{"with the slow part", Num(c.LogLikWith, 1), Num(c.BICWith, 1), Mark(c.Kept)},

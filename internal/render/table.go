@@ -49,6 +49,15 @@ func Num(v float64, d int) string {
 	return numfmt.Fixed(v, d)
 }
 
+// TableNum formats a value of a tail table: one decimal, none from 10 000
+// on (a season's energy in GJ needs no tenths).
+func TableNum(v float64) string {
+	if math.Abs(v) >= 1e4 {
+		return Num(v, 0)
+	}
+	return Num(v, 1)
+}
+
 // PValue formats a p-value: "< 0.0001" below that.
 func PValue(p float64) string {
 	switch {

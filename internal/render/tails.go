@@ -484,7 +484,7 @@ func writeTailTable(e *errWriter, group []sim.Row) {
 	for _, s := range StatisticsFor(rowPeriods(group)) {
 		line := []string{s.Label}
 		for _, row := range group {
-			line = append(line, Num(s.Value(row.Tail), 1))
+			line = append(line, TableNum(s.Value(row.Tail)))
 		}
 		rows = append(rows, line)
 	}
@@ -779,7 +779,7 @@ func writeComparison(e *errWriter, r *SimReport) {
 }
 
 func compRow(name string, t sim.Tail, change string) []string {
-	return []string{name, Num(t.Mean, 1), Num(t.Quantile(0.50), 1), Num(t.VaR95, 1), Num(t.VaR99, 1), Num(t.ES95, 1), change}
+	return []string{name, TableNum(t.Mean), TableNum(t.Quantile(0.50)), TableNum(t.VaR95), TableNum(t.VaR99), TableNum(t.ES95), change}
 }
 
 // NewSimReport lays out a stress run's simulation for the renderers: the
