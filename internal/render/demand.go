@@ -34,15 +34,15 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	u := "°" + m.TemperatureUnits
 	d := m.Data
 	dec := LoadDecimals(m.Fit.MeanLoad)
-	e.printf("Demand record  %s, with temperatures from %s (%s)\n", d.DemandFile, d.TemperatureFile, u)
-	e.printf("  %s to %s: %d rows, %d days fitted; %d without a load, %d without a temperature; %d holidays",
+	e.printf("%s\n", Wrap(fmt.Sprintf("Demand record  %s, with temperatures from %s (%s)", d.DemandFile, d.TemperatureFile, u), "  "))
+	line := fmt.Sprintf("  %s to %s: %d rows, %d days fitted; %d without a load, %d without a temperature; %d holidays",
 		d.FirstDate, d.LastDate, d.Rows, d.Days, d.MissingLoad, d.MissingTemperature, d.Holidays)
 	if d.HolidaysFile != "" {
-		e.printf(" (column and %s)", d.HolidaysFile)
+		line += fmt.Sprintf(" (column and %s)", d.HolidaysFile)
 	}
-	e.printf("; loads in %s\n", m.Unit)
+	e.printf("%s\n", Wrap(line+"; loads in "+m.Unit, "    "))
 	if list := HolidayListText(d); list != "" {
-		e.printf("  holidays from %s: %s\n", d.HolidaysFile, list)
+		e.printf("%s\n", Wrap(fmt.Sprintf("  holidays from %s: %s", d.HolidaysFile, list), "    "))
 	}
 
 	writeDemandForms(e, m, u)
@@ -64,8 +64,8 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	e.table([]string{"term", "estimate", "s.e.", "t"}, rows)
 	e.printf("  balance points: %s\n", demandBalanceText(m, u))
 	if dg := m.Diagnostics; dg != nil {
-		e.printf("  the standard errors assume independent residuals; the residuals' lag-1 autocorrelation is %.2f, "+
-			"so they understate the uncertainty\n", dg.ACF1)
+		e.printf("%s\n", Wrap(fmt.Sprintf("  the standard errors assume independent residuals; the residuals' lag-1 "+
+			"autocorrelation is %.2f, so they understate the uncertainty", dg.ACF1), "  "))
 	}
 
 	f := m.Fit
@@ -73,33 +73,41 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		f.R2, Num(f.RMSE, dec), m.Unit, f.N, f.Parameters, Num(f.MeanLoad, dec), m.Unit)
 	e.printf("CV(RMSE) and NMBE beside the calibration levels of ASHRAE Guideline 14-2014\n")
 	rows = rows[:0]
+	var heldOut string
 	for _, c := range f.Checks {
-		result := "meets the level"
+		result := "meets"
 		if !c.Pass {
-			result = "FAILS the level"
+			result = "FAILS"
 		}
-		rows = append(rows, []string{c.Data, fmt.Sprint(c.N), fmt.Sprint(c.P), Num(c.CVRMSE, 2), DemandPercent(c.NMBE),
+		data := c.Data
+		if d, span, ok := strings.Cut(data, ": "); ok { // "daily, held out: 2025-01-01 to 2025-12-31"
+			data, heldOut = d, span
+		}
+		rows = append(rows, []string{data, fmt.Sprint(c.N), fmt.Sprint(c.P), Num(c.CVRMSE, 2), DemandPercent(c.NMBE),
 			fmt.Sprintf("%s: ≤ %.0f %%, ±%.0f %%", c.Level, c.CVRMSEMax, c.NMBEMax), result})
 	}
-	e.table([]string{"compared", "n", "p", "CV(RMSE) %", "NMBE %", "guideline level", ""}, rows)
-	e.printf("  CV(RMSE) = 100·√(Σ(y − ŷ)²/(n − p))/ȳ and NMBE = 100·Σ(y − ŷ)/((n − p)·ȳ), p the model's parameters\n")
-	e.printf("  (coefficients and balance points). The guideline's levels are for monthly (CV(RMSE) ≤ 15 %%, |NMBE| ≤ 5 %%)\n")
-	e.printf("  and hourly (≤ 30 %%, ±10 %%) data; daily values are held to the hourly levels, the daily fit's\n")
-	e.printf("  sums over the calendar months it covers fully to the monthly ones. In sample, NMBE of a least-squares\n")
-	e.printf("  fit is 0 by construction; the held-out last year, predicted by a refit (grid search included) to the\n")
-	e.printf("  days before it, is the informative check (p = 0 where the model was not fitted to the values).\n")
+	e.table([]string{"compared", "n", "p", "CV(RMSE) %", "NMBE %", "guideline level", "level"}, rows)
+	if heldOut != "" {
+		e.printf("  held out: %s\n", heldOut)
+	}
+	e.printf("%s\n", Wrap("  CV(RMSE) = 100·√(Σ(y − ŷ)²/(n − p))/ȳ and NMBE = 100·Σ(y − ŷ)/((n − p)·ȳ), p the model's "+
+		"parameters (coefficients and balance points). The guideline's levels are for monthly (CV(RMSE) ≤ 15 %, "+
+		"|NMBE| ≤ 5 %) and hourly (≤ 30 %, ±10 %) data; daily values are held to the hourly levels, the daily fit's "+
+		"sums over the calendar months it covers fully to the monthly ones. In sample, NMBE of a least-squares fit is 0 "+
+		"by construction; the held-out last year, predicted by a refit (grid search included) to the days before it, "+
+		"is the informative check (p = 0 where the model was not fitted to the values).", "  "))
 
 	n := m.Noise
 	if n.Scale == "bands" {
-		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ(T)·z(t): φ = %.3f (s.e. %.3f), σ by temperature band (%s), from %d pairs of consecutive days\n",
-			n.Phi, n.PhiSE, bandText(n, u, dec, m.Unit), n.Pairs)
+		e.printf("\n%s\n", Wrap(fmt.Sprintf("Residual noise u(t) = φ·u(t−1) + σ(T)·z(t): φ = %.3f (s.e. %.3f), σ by temperature "+
+			"band (%s), from %d pairs of consecutive days", n.Phi, n.PhiSE, bandText(n, u, dec, m.Unit), n.Pairs), "  "))
 	} else if n.Scale == "load" {
 		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·E(t)/Ē·z(t): φ = %.3f (s.e. %.3f), σ = %s %s at the mean expected load Ē = %s,\n"+
 			"  in proportion to the day's expected load E(t); from %d pairs of consecutive days\n",
 			n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, numfmt.Fixed(n.MeanLoad, 0), n.Pairs)
 	} else {
-		e.printf("\nResidual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d pairs of consecutive days\n",
-			n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, n.Pairs)
+		e.printf("\n%s\n", Wrap(fmt.Sprintf("Residual noise u(t) = φ·u(t−1) + σ·z(t): φ = %.3f (s.e. %.3f), σ = %s %s, from %d "+
+			"pairs of consecutive days", n.Phi, n.PhiSE, Num(n.Sigma, dec), m.Unit, n.Pairs), "  "))
 	}
 	if len(n.Choice) > 1 {
 		rows = [][]string{}
@@ -110,13 +118,14 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		e.table([]string{"noise scale", "log-likelihood", "parameters", "AIC", ""}, rows)
 	}
 	if c := n.Cold; c != nil {
-		e.printf("  On the coldest 5%% of days (%d, mean below %s %s) the innovations' sd is %s against %s from the noise model",
+		line := fmt.Sprintf("  On the coldest 5%% of days (%d, mean below %s %s) the innovations' sd is %s against %s from the noise model",
 			c.Days, Num(c.Below, 1), u, numfmt.Fixed(c.Observed, 0), numfmt.Fixed(c.Model, 0))
 		if r := c.Model / c.Observed; r < 0.9 {
-			e.printf(": the model's peak-day spread is too narrow (%.0f %%)\n", 100*r)
+			line += fmt.Sprintf(": the model's peak-day spread is too narrow (%.0f %%)", 100*r)
 		} else {
-			e.printf(" (%.0f %%)\n", 100*c.Model/c.Observed)
+			line += fmt.Sprintf(" (%.0f %%)", 100*c.Model/c.Observed)
 		}
+		e.printf("%s\n", Wrap(line, "  "))
 	}
 	if dg := m.Diagnostics; dg != nil {
 		rows = [][]string{
@@ -137,7 +146,7 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 	if len(m.Warnings) > 0 {
 		e.printf("\nWarnings\n")
 		for _, w := range m.Warnings {
-			e.printf("  - %s\n", w)
+			e.printf("%s\n", Wrap("  - "+w, "    "))
 		}
 	}
 	e.printf("\n%s\n", Wrap(Caution, ""))
@@ -152,12 +161,13 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 	if len(m.Forms) == 0 {
 		return
 	}
-	e.printf("\nChange-point form: %s\n  %s\n", m.Form, m.FormRule)
+	e.printf("\nChange-point form: %s\n%s\n", m.Form, Wrap("  "+m.FormRule, "  "))
+	search := "  "
 	if dg := m.Diagnostics; dg != nil {
-		e.printf("  balance points searched from %.1f to %.1f %s (5th to 95th percentile of temperature) in %.1f° steps;\n",
+		search = fmt.Sprintf("  balance points searched from %.1f to %.1f %s (5th to 95th percentile of temperature) in %.1f° steps; ",
 			dg.SearchRange[0], dg.SearchRange[1], u, dg.SearchStep)
 	}
-	e.printf("  each form at its best grid point; BIC counts each balance point as a parameter (lower is better)\n")
+	e.printf("%s\n", Wrap(search+"each form at its best grid point; BIC counts each balance point as a parameter (lower is better)", "  "))
 	best := math.Inf(1)
 	for _, s := range m.Forms {
 		if s.BIC < best && s.RSS > 0 {
@@ -165,6 +175,7 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 		}
 	}
 	var rows [][]string
+	var notes []string // a form's remark under the table, not in a column
 	for _, s := range m.Forms {
 		bp := make([]string, len(s.BalancePoints))
 		for i, v := range s.BalancePoints {
@@ -178,11 +189,8 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 		if s.Chosen {
 			note = append(note, "chosen")
 		}
-		if s.BIC == best {
-			note = append(note, "lowest")
-		}
 		if s.Note != "" {
-			note = append(note, s.Note)
+			notes = append(notes, Wrap("  "+s.Form+": "+s.Note, "    "))
 		}
 		bic, delta := "—", "—"
 		if s.RSS > 0 {
@@ -191,7 +199,11 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 		rows = append(rows, []string{s.Form, strings.Join(bp, ", "), strings.Join(sl, ", "), fmt.Sprint(s.Parameters),
 			bic, delta, strings.Join(note, "; ")})
 	}
-	e.table([]string{"form", "balance points " + u, "slopes " + m.Unit + " per " + u, "parameters", "BIC", "ΔBIC", ""}, rows)
+	e.printf("  slopes in %s per %s; p the parameters\n", m.Unit, u)
+	e.table([]string{"form", "balance points " + u, "slopes", "p", "BIC", "ΔBIC", ""}, rows)
+	for _, n := range notes {
+		e.printf("%s\n", n)
+	}
 }
 
 func demandBalanceText(m *model.Demand, u string) string {
