@@ -15,6 +15,7 @@ import (
 
 	"wxstress/calibrate"
 	"wxstress/demo"
+	"wxstress/internal/numfmt"
 	"wxstress/internal/render"
 	"wxstress/internal/report"
 	"wxstress/model"
@@ -134,7 +135,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, bytesSHA(demandJSON)
 	reportPath := filepath.Join(o.dir, "report.html")
 	meta := report.Meta{
-		Title:   fmt.Sprintf("%s and %s: %d synthetic years of %d (invented data)", demo.StationName, demo.Retailer, o.paths, year),
+		Title:   fmt.Sprintf("%s and %s: %s synthetic years of %d (invented data)", demo.StationName, demo.Retailer, numfmt.Number(float64(o.paths)), year),
 		Created: time.Now(), RunTime: time.Since(start),
 		Inputs: []report.InputFile{
 			{Role: "temperatures", Name: demo.StationFile, SHA256: series.SHA256},
@@ -178,7 +179,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			return err
 		}
 		fmt.Fprintf(stdout, "\nDemand model written to %s\n", demandPath)
-		fmt.Fprintf(stdout, "\n== 3. Simulation: %d synthetic years of %d, baseline and scenarios, with demand ==\n\n", o.paths, year)
+		fmt.Fprintf(stdout, "\n== 3. Simulation: %s synthetic years of %d, baseline and scenarios, with demand ==\n\n", numfmt.Number(float64(o.paths)), year)
 		if err := render.SimTables(stdout, rep); err != nil {
 			return err
 		}

@@ -24,7 +24,7 @@ func money(v float64) string {
 func HedgeTables(h *hedge.Result, f *hedge.File) (contracts, position [][]string, contractHead, positionHead []string) {
 	cur := f.Currency
 	contractHead = []string{"contract", "reads", "mean payout (" + cur + ")", "sd", "P5 / P50 / P95 / P99",
-		"P(payout)", fmt.Sprintf("loaded (λ = %g)", h.Options.Loading), fmt.Sprintf("%g quantile", h.Options.Level), "burn (seasons)"}
+		"P(payout > 0)", fmt.Sprintf("loaded (λ = %g)", h.Options.Loading), fmt.Sprintf("%g quantile", h.Options.Level), "burn (seasons)"}
 	for _, c := range h.Contracts {
 		burn := "—"
 		if c.Seasons > 0 {

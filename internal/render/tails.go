@@ -11,13 +11,12 @@ import (
 	"strconv"
 	"strings"
 
-	"wxstress/calendar"
-	"wxstress/evidence"
-	"wxstress/internal/numfmt"
-
 	"golang.org/x/sync/errgroup"
 
+	"wxstress/calendar"
+	"wxstress/evidence"
 	"wxstress/hedge"
+	"wxstress/internal/numfmt"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -426,8 +425,8 @@ func GrowthLine(m Manifest) string {
 func SimTables(w io.Writer, r *SimReport) error {
 	e := &errWriter{w: w}
 	m := r.Manifest
-	e.printf("%d synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
-		m.Paths, m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
+	e.printf("%s synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
+		numfmt.Number(float64(m.Paths)), m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
 	if g := GrowthLine(m); g != "" {
 		e.printf("%s\n", g)
 	}

@@ -6,6 +6,7 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 
+	"wxstress/internal/numfmt"
 	"wxstress/internal/render"
 	"wxstress/sim"
 )
@@ -49,7 +50,7 @@ func capacityLine(p *plot.Plot, capacity, x0, x1 float64, unit string) (keyItem,
 		return keyItem{}, err
 	}
 	p.Add(l)
-	return keyItem{fmt.Sprintf("capacity %g %s", capacity, unit), okVermillion, "dash"}, nil
+	return keyItem{fmt.Sprintf("capacity %s %s", numfmt.Number(capacity), unit), okVermillion, "dash"}, nil
 }
 
 // demandFanFigure plots the daily quantiles of simulated demand over the

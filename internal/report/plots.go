@@ -20,6 +20,7 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"wxstress/calendar"
+	"wxstress/internal/numfmt"
 	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/shocks"
@@ -746,7 +747,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 		top = max(top, b.Weight)
 	}
 	h := &plotter.Histogram{Bins: bins, Width: width, FillColor: withAlpha(okSkyBlue, 170), LineStyle: draw.LineStyle{}}
-	p := newPlot(fmt.Sprintf("%s, %s: distribution over %d synthetic years", r.Name, r.Period, len(values)),
+	p := newPlot(fmt.Sprintf("%s, %s: distribution over %s synthetic years", r.Name, r.Period, numfmt.Number(float64(len(values)))),
 		fmt.Sprintf("%s (%s)", r.Name, r.Unit), "share of years (probability)", true)
 	p.Add(h)
 	var key []keyItem

@@ -169,7 +169,7 @@ func (b *builder) subtitle() string {
 		parts = append(parts, fmt.Sprintf("record %s to %s", m.Data.FirstDate, m.Data.LastDate))
 	}
 	if in.Sim != nil {
-		parts = append(parts, fmt.Sprintf("%d synthetic years for %d", in.Sim.Manifest.Paths, in.Sim.Manifest.Year))
+		parts = append(parts, fmt.Sprintf("%s synthetic years for %d", numfmt.Number(float64(in.Sim.Manifest.Paths)), in.Sim.Manifest.Year))
 	}
 	if !in.Created.IsZero() {
 		parts = append(parts, "created "+createdText(in.Created))
@@ -201,7 +201,7 @@ func (b *builder) facts() [][2]string {
 	}
 	if s := in.Sim; s != nil {
 		mf := s.Manifest
-		fact("Simulation", fmt.Sprintf("%d synthetic years for %d (%s start), seed %d; periods %s", mf.Paths, mf.Year,
+		fact("Simulation", fmt.Sprintf("%s synthetic years for %d (%s start), seed %d; periods %s", numfmt.Number(float64(mf.Paths)), mf.Year,
 			mf.Start, mf.Seed, strings.Join(mf.Periods, ", ")))
 		if len(s.Scenarios) > 0 {
 			var names []string
@@ -789,9 +789,10 @@ func (b *builder) cautions() []string {
 	out := []string{render.Caution}
 	if s := b.in.Sim; s != nil && s.Manifest.Paths > 0 {
 		n := s.Manifest.Paths
-		out = append(out, fmt.Sprintf("Tail numbers are Monte Carlo estimates from %d synthetic years: the 1-in-100 "+
-			"level rests on about %d years beyond it and the 99 %% expected shortfall on the worst %d, so they carry "+
-			"sampling error; more paths narrow it.", n, n/100, max(1, int(math.Ceil(0.01*float64(n))))))
+		out = append(out, fmt.Sprintf("Tail numbers are Monte Carlo estimates from %s synthetic years: the 1-in-100 "+
+			"level rests on about %s years beyond it and the 99 %% expected shortfall on the worst %s, so they carry "+
+			"sampling error; more paths narrow it.", numfmt.Number(float64(n)), numfmt.Number(float64(n/100)),
+			numfmt.Number(math.Ceil(0.01*float64(n)))))
 	}
 	if s := b.in.Sim; s != nil && len(s.Scenarios) > 0 {
 		out = append(out, "Scenarios are what-if changes to the fitted model (level, trend, volatility, persistence, "+
