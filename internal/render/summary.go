@@ -303,9 +303,9 @@ func mcSummary(rows []sim.Row) string {
 	if paths > 0 {
 		need = "about " + numfmt.RoundUp(paths) + " paths would settle them all (--paths)"
 	}
-	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s %s %s); %s",
-		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se), numfmt.SE(worst.se),
-		worst.row.Unit, need)
+	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s"+Glue+"%s"+Glue+"%s); %s",
+		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se),
+		strings.ReplaceAll(numfmt.SE(worst.se), " ", Glue), worst.row.Unit, need)
 }
 
 // DemandLine describes a demand model in one line for people: its form and

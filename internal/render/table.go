@@ -94,12 +94,17 @@ const wrapWidth = 100
 // wrap breaks text at spaces into lines of at most width columns (a word
 // longer than width stands alone), starting every line after the first with
 // indent.
+// Glue joins words that wrap must keep on one line (a value and its unit);
+// it prints as a space.
+const Glue = "\u00a0"
+
 func wrap(text string, width int, indent string) string {
 	var b strings.Builder
 	lead := text[:len(text)-len(strings.TrimLeft(text, " "))]
 	b.WriteString(lead)
 	col := len(lead)
-	for i, word := range strings.Fields(text) {
+	for i, word := range strings.FieldsFunc(text, func(r rune) bool { return r == ' ' || r == '\t' || r == '\n' }) {
+		word = strings.ReplaceAll(word, Glue, " ")
 		n := utf8.RuneCountInString(word)
 		switch {
 		case i == 0:

@@ -72,3 +72,13 @@ func TestExceedText(t *testing.T) {
 		}
 	}
 }
+
+// TestWrapKeepsGluedWords: words joined by Glue (a value and its unit) move
+// to the next line together and print with a plain space.
+func TestWrapKeepsGluedWords(t *testing.T) {
+	got := wrap("worst the ES 99% of coldest day (-20.6"+Glue+"±"+Glue+"0.36"+Glue+"°C); more", 40, "  ")
+	want := "worst the ES 99% of coldest day\n  (-20.6 ± 0.36 °C); more"
+	if got != want {
+		t.Errorf("got %q, want %q", got, want)
+	}
+}
