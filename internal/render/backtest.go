@@ -15,10 +15,9 @@ import (
 func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e := &errWriter{w: w}
 	o := r.Options
-	e.printf("Backtest of %s: the last %d complete periods of each kind, each fitted on the data to the day before it\n",
-		file, o.Origins)
-	e.printf("and simulated %s times from that day (conditional start); bases HDD %s, CDD %s °%s\n",
-		numfmt.Number(float64(o.Paths)), numfmt.Number(o.Bases.HDD), numfmt.Number(o.Bases.CDD), units)
+	e.printf("%s\n", Wrap(fmt.Sprintf("Backtest of %s: the last %d complete periods of each kind, each fitted on the data "+
+		"to the day before it and simulated %s times from that day (conditional start); bases HDD %s, CDD %s °%s",
+		file, o.Origins, numfmt.Number(float64(o.Paths)), numfmt.Number(o.Bases.HDD), numfmt.Number(o.Bases.CDD), units), "  "))
 	rows := [][]string{}
 	for _, row := range r.Rows {
 		ev := row.Evidence
@@ -32,7 +31,7 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e.table([]string{"index", "period", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",
 		"CRPS model", "CRPS climatology"}, rows)
 	for _, row := range r.Rows {
-		e.printf("  %s, %s: %s\n", row.Index.Info().Name, row.Period, row.Evidence.Verdict)
+		e.printf("%s\n", Wrap(fmt.Sprintf("  %s, %s: %s", row.Index.Info().Name, row.Period, row.Evidence.Verdict), "    "))
 	}
 	e.printf("\nA calibrated model puts about half the realised values inside its central 50 %% band and nine in ten\n" +
 		"inside its 90 %% band; the sd of probit(PIT) is then about 1 (above 1: too narrow). CRPS (Gneiting & Raftery\n" +
