@@ -388,7 +388,7 @@ func (f *File) check() error {
 		return fmt.Sprintf("%q: want one of %s", v, strings.Join(Indices(), ", "))
 	}
 	period := func(v string) string {
-		if _, err := sim.ParsePeriod(v, 2001); err != nil {
+		if _, err := sim.ParsePeriod(v, 2000); err != nil {
 			return strings.TrimPrefix(err.Error(), "sim: ")
 		}
 		return ""

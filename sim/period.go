@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 	"time"
@@ -73,9 +74,16 @@ func ParsePeriod(name string, y int) (Period, error) {
 		if td == 29 && tm == 2 && calendar.DaysIn(y) == 365 {
 			p.To = d(y, 2, 28)
 		}
+		if p.To < p.From {
+			return p, fmt.Errorf("%w %q has no days in %d: 29 February is not in that year", ErrPeriod, name, y)
+		}
 	}
 	return p, nil
 }
+
+// ErrPeriod is wrapped by the error for a window that has no days in the
+// target year (02-29:02-29 outside a leap year): a usage error.
+var ErrPeriod = errors.New("sim: window")
 
 // monthDay parses MM-DD, allowing 02-29.
 func monthDay(s string) (time.Month, int, error) {

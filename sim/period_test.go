@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"errors"
 	"slices"
 	"strings"
 	"testing"
@@ -124,5 +125,53 @@ func TestBasesImplausible(t *testing.T) {
 	w = Bases{HDD: 18, CDD: 65, ColdBelow: 0}.Implausible(model.Fahrenheit)
 	if len(w) != 1 || !strings.Contains(w[0], "HDD base 18 °F") || !strings.Contains(w[0], "18 °C = 64.4 °F") {
 		t.Errorf("°C values for a °F model: %q", w)
+	}
+}
+
+// TestLeapDayWindow: a window of 29 February alone has no days outside a
+// leap year, an error (ErrPeriod, a usage error for the command) rather
+// than an empty period that the run cannot simulate; in a leap year it is
+// one day.
+func TestLeapDayWindow(t *testing.T) {
+	if _, err := ParsePeriod("02-29:02-29", 2026); !errors.Is(err, ErrPeriod) {
+		t.Errorf("2026: %v, want ErrPeriod", err)
+	}
+	p, err := ParsePeriod("02-29:02-29", 2028)
+	if err != nil || p.Days() != 1 || p.From.String() != "2028-02-29" {
+		t.Errorf("2028: %+v, %v", p, err)
+	}
+}
+
+// TestTargetYear: the default target year is the season under way at the
+// data end — with the heating season among the periods, the winter under
+// way or coming (a record ending mid-December targets the winter that
+// began in November, not the year with its whole last winter on record);
+// without it, the first year with a period still running.
+func TestTargetYear(t *testing.T) {
+	m := seasonalModel([]float64{0.7})
+	for _, c := range []struct {
+		end     string
+		periods []string
+		want    int
+	}{
+		{"2025-12-31", nil, 2026},
+		{"2025-12-15", nil, 2026},
+		{"2026-01-15", nil, 2026},
+		{"2025-06-30", nil, 2026},
+		{"2025-06-30", []string{"cooling"}, 2025},
+		{"2025-06-30", []string{"year", "jul"}, 2025},
+		{"2025-10-31", []string{"heating"}, 2026},
+	} {
+		d, err := calendar.Parse(c.end)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m.Data.LastDate = d
+		if got := TargetYear(m, 0, c.periods); got != c.want {
+			t.Errorf("data end %s, periods %v: target %d, want %d", c.end, c.periods, got, c.want)
+		}
+	}
+	if got := TargetYear(m, 2031, nil); got != 2031 {
+		t.Errorf("an explicit year %d came back as %d", 2031, got)
 	}
 }

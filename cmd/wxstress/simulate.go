@@ -226,7 +226,7 @@ func (o *simulateOptions) validate() error {
 		return usagef("simulate: --format %q: want table, csv or json", o.format)
 	}
 	for _, p := range o.periods {
-		if _, err := sim.ParsePeriod(p, 2001); err != nil {
+		if _, err := sim.ParsePeriod(p, 2000); err != nil {
 			return usagef("simulate: --period: %v", strings.TrimPrefix(err.Error(), "sim: "))
 		}
 	}
@@ -400,6 +400,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	stop := attachProgress(&job.Config, stderr, 1+len(o.loaded))
 	out, err := runPipeline(ctx, job)
 	stop()
+	if errors.Is(err, sim.ErrPeriod) {
+		return usagef("simulate: %v", err)
+	}
 	if err != nil {
 		return err
 	}
