@@ -36,17 +36,28 @@ type Fan struct {
 }
 
 // RunFan simulates paths whole years (the first paths of a run with cfg's
-// seed, so they are the same years as a Run's) and returns their daily
-// quantiles. It keeps paths × days values, so it is for a few thousand
+// seed and periods, so they are the same years as that Run's) and returns
+// their daily quantiles of the target year. It keeps paths × days values, so it is for a few thousand
 // paths, not millions. Paths and rows are shared out among cfg.Workers
 // goroutines.
 func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, error) {
-	cfg.Paths, cfg.Periods = paths, []string{"year"}
-	pl, periods, err := prepare(m, &cfg)
+	// The run's own periods, with the year: the same span from the same
+	// first day, so the same random numbers day by day and the same years
+	// as the run's first paths (a year-only span starts later when the run
+	// has the heating season, and a climate start then draws other paths).
+	periods := slices.Clone(cfg.Periods)
+	if len(periods) == 0 {
+		periods = DefaultPeriods()
+	}
+	if !slices.Contains(periods, "year") {
+		periods = append(periods, "year")
+	}
+	cfg.Paths, cfg.Periods = paths, periods
+	pl, resolved, err := prepare(m, &cfg)
 	if err != nil {
 		return nil, err
 	}
-	y := periods[0]
+	y := resolved[slices.Index(periods, "year")]
 	n := y.Days()
 	off := int(y.From - pl.first)
 	temps := matrix(n, paths) // temps[d][path]

@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -55,12 +56,13 @@ func TestFanDaysArePathDays(t *testing.T) {
 		t.Fatal(err)
 	}
 	c := cfg
-	c.Paths, c.Periods = paths, []string{"year"}
+	c.Paths, c.Periods = paths, DefaultPeriods() // the fan's own: the run's, the year among them
 	pl, periods, err := prepare(m, &c)
 	if err != nil {
 		t.Fatal(err)
 	}
-	n, off := periods[0].Days(), int(periods[0].From-pl.first)
+	y := periods[slices.Index(c.Periods, "year")]
+	n, off := y.Days(), int(y.From-pl.first)
 	temps, demand := matrix(n, paths), matrix(n, paths)
 	var rng rand.PCG
 	buf, dbuf := make([]float64, pl.n), make([]float64, pl.n)
