@@ -719,3 +719,27 @@ func TestMessagesHaveNoPackagePrefixes(t *testing.T) {
 		t.Errorf("cleanMessage = %q", got)
 	}
 }
+
+// TestCSVHasPlanningFigures: the CSV carries the design figures and the
+// solved capacities with their standard errors, as the JSON does, and a
+// manifest without Go formatting.
+func TestCSVHasPlanningFigures(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"),
+		"--demand", filepath.Join(dir, "demand.json"), "--paths", "300", "--period", "heating", "--design", "1-in-20",
+		"--capacity-target", "days:1", "--format", "csv")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"\nbaseline,design,heating,°C,low,design-day:1-in-20,", "\nbaseline,design,heating,°C,low,design-day:1-in-20:se,",
+		"\nbaseline,design,heating,GJ/day,high,demand:1-in-20,", "\nbaseline,capacity,heating,GJ/day,high,days:1,",
+		"\nbaseline,capacity,heating,GJ/day,high,days:1:se,", "\n# scenarios: none\n", "\n# periods: heating\n"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("the CSV lacks %q", strings.TrimSpace(want))
+		}
+	}
+	if strings.Contains(out, "<nil>") || strings.Contains(out, "[heating]") {
+		t.Errorf("Go formatting in the CSV manifest:\n%s", out[:min(len(out), 1500)])
+	}
+}

@@ -327,7 +327,11 @@ func StatisticsFor(periods []float64) []Statistic {
 // fitted model), after "# key: value" manifest lines. A scenario's changes
 // against the baseline are the statistics named "change_*".
 func SimCSV(w io.Writer, r *SimReport) error {
-	if err := csvManifest(w, r.Manifest); err != nil {
+	mf := r.Manifest
+	if mf.Scenarios == nil {
+		mf.Scenarios = []string{} // "none", not left out
+	}
+	if err := csvManifest(w, mf); err != nil {
 		return err
 	}
 	cw := csv.NewWriter(w)
@@ -362,8 +366,35 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	for _, sc := range r.Scenarios {
 		write(sc.Name, sc.Rows, sc.Changes)
 	}
+	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	units := "°" + r.Manifest.Units
+	demandUnit := demandUnitOf(r)
+	for _, d := range r.Design { // the planner's design figures, each with its Monte Carlo s.e.
+		T := "1-in-" + periodKey(d.T)
+		for _, x := range []struct {
+			what, unit string
+			v, se      float64
+		}{{"design-day", units, d.Coldest, d.ColdestSE}, {"cold-snap", units, d.Snap, d.SnapSE},
+			{"demand", demandUnit, d.Peak, d.PeakSE}, {"snap-energy", EnergyUnit(demandUnit), d.SnapEnergy, d.SnapEnerSE}} {
+			if math.IsNaN(x.v) || demandUnit == "" && x.unit != units {
+				continue
+			}
+			adverse := "high"
+			if x.unit == units {
+				adverse = "low"
+			}
+			stat := x.what + ":" + T
+			cw.Write([]string{"baseline", "design", d.Period, x.unit, adverse, stat, g(x.v)})
+			cw.Write([]string{"baseline", "design", d.Period, x.unit, adverse, stat + ":se", g(x.se)})
+		}
+	}
+	for _, c := range r.Capacities {
+		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target, g(c.Capacity)})
+		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
+		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":achieved", g(c.Achieved)})
+	}
 	if p := r.Planning; p != nil {
-		f := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+		f := g
 		for rank := 1; p.LoadDuration != nil && rank <= len(p.LoadDuration[0]); rank++ {
 			for k, q := range sim.FanQuantileProbs() {
 				cw.Write([]string{"baseline", "load-duration", "year", p.Unit, "high",
@@ -398,7 +429,18 @@ func csvManifest(w io.Writer, m Manifest) error {
 	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "data_sha256", "seed", "paths", "year",
 		"start", "periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "scenarios", "demand_model",
 		"demand_sha256", "capacity", "quantile_convention", "caution"} {
-		if v, ok := kv[k]; ok { // absent: omitted from the JSON as not applying
+		switch v := kv[k].(type) {
+		case nil: // absent or null: not applying
+		case []any:
+			parts := make([]string, len(v))
+			for i, x := range v {
+				parts[i] = fmt.Sprint(x)
+			}
+			if len(parts) == 0 {
+				parts = []string{"none"}
+			}
+			e.printf("# %s: %s\n", k, strings.Join(parts, ", "))
+		default:
 			e.printf("# %s: %v\n", k, v)
 		}
 	}
