@@ -131,6 +131,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	rep.Manifest = manifest(m, modelPath, bytesSHA(modelJSON), out)
 	rep.Manifest.RunID = plan.runID()
 	rep.Manifest.Scenarios = demoScenarios
+	rep.Manifest.ParameterUncertainty = rep.Uncertainty
 	rep.Manifest.Warnings = res.Warnings
 	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, bytesSHA(demandJSON)
 	reportPath := filepath.Join(o.dir, "report.html")

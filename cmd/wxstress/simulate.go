@@ -321,7 +321,8 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		return err
 	}
 	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds, MaxMemory: o.memoryLimit}
-	for _, w := range job.Config.Bases.Implausible(model.Units(m.Data.Units)) {
+	baseWarnings := job.Config.Bases.Implausible(model.Units(m.Data.Units))
+	for _, w := range baseWarnings {
 		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
 	}
 	var demandSum string
@@ -412,7 +413,8 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		rep.Manifest.RunID = plan.runID() // names the set of files written together
 	}
 	rep.Manifest.Scenarios = o.scenarios
-	rep.Manifest.Warnings = out.Warnings
+	rep.Manifest.ParameterUncertainty = rep.Uncertainty
+	rep.Manifest.Warnings = append(slices.Clone(baseWarnings), out.Warnings...) // the bases' already on stderr
 	if o.growth != 0 {
 		rep.Manifest.DemandGrowthPerCent = o.growth
 	}

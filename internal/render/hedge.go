@@ -61,7 +61,7 @@ func writeHedge(e *errWriter, r *SimReport) {
 	}
 	e.table(ph, position)
 	if !math.IsNaN(r.Hedge.VarianceReduction) {
-		e.printf("  The hedges in the file remove %s of the net cost's variance.\n", numfmt.Percent(r.Hedge.VarianceReduction))
+		e.printf("  The hedges in the file %s.\n", VarianceChange(r.Hedge.VarianceReduction, "the net cost's variance"))
 	}
 }
 
@@ -123,4 +123,13 @@ func toJSONHedge(r *SimReport) *jsonHedge {
 		j.Contracts = append(j.Contracts, jc)
 	}
 	return j
+}
+
+// VarianceChange words a hedge's variance reduction v (0.2 is 20 %): "remove
+// 20.0% of what", or, when the hedges add variance, "add 62.0% to what".
+func VarianceChange(v float64, what string) string {
+	if v < 0 {
+		return "add " + numfmt.Percent(-v) + " to " + what
+	}
+	return "remove " + numfmt.Percent(v) + " of " + what
 }

@@ -89,6 +89,9 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	if g := GrowthLine(mf); g != "" {
 		sm.Run = append(sm.Run, g)
 	}
+	if r.Mixed {
+		sm.Run = append(sm.Run, "Parameter uncertainty: "+r.Uncertainty)
+	}
 	for _, o := range r.InSeason {
 		if o.Days > 0 {
 			sm.Run = append(sm.Run, fmt.Sprintf("Season under way: %s, %d days observed, HDD so far %s", o.Period, o.Days,
@@ -167,8 +170,8 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 			numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
 	}
 	if h := r.Hedge; h != nil {
-		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges remove %s of its variance",
-			r.HedgeFile.Currency, numfmt.Fixed(h.Unhedged.ES95, 0), numfmt.Fixed(h.Hedged.ES95, 0), numfmt.Percent(h.VarianceReduction)))
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges %s",
+			r.HedgeFile.Currency, numfmt.Fixed(h.Unhedged.ES95, 0), numfmt.Fixed(h.Hedged.ES95, 0), VarianceChange(h.VarianceReduction, "its variance")))
 	}
 
 	// Scenarios: the change of the mean of the first few key figures.
@@ -299,13 +302,17 @@ func mcSummary(rows []sim.Row) string {
 			paths = max(paths, f.paths)
 		}
 	}
-	need := "more paths than any run would settle them"
+	need := "more paths (--paths) would settle them"
 	if paths > 0 {
 		need = "about " + numfmt.RoundUp(paths) + " paths would settle them all (--paths)"
 	}
-	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s"+Glue+"%s"+Glue+"%s); %s",
-		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, numfmt.Value(worst.value, worst.se),
-		strings.ReplaceAll(numfmt.SE(worst.se), " ", Glue), worst.row.Unit, need)
+	figure := numfmt.Value(worst.value, worst.se) + Glue + strings.ReplaceAll(numfmt.SE(worst.se), " ", Glue) + Glue + worst.row.Unit
+	if math.IsInf(worst.se, 0) || math.IsNaN(worst.se) {
+		// Too few paths beyond the level for its error to be estimated.
+		figure = numfmt.Number(worst.value) + Glue + worst.row.Unit + ", too few paths beyond it to estimate its error"
+	}
+	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s); %s",
+		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, figure, need)
 }
 
 // DemandLine describes a demand model in one line for people: its form and

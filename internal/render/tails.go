@@ -59,6 +59,9 @@ type Manifest struct {
 	Caution             string  `json:"caution"`
 	// Warnings are the run's own cautions (stress.Result.Warnings).
 	Warnings []string `json:"warnings,omitempty"`
+	// ParameterUncertainty says how the run used refitted models
+	// (--uncertainty): bands beside the tables, or paths spread over them.
+	ParameterUncertainty string `json:"parameter_uncertainty,omitempty"`
 }
 
 // QuantileConvention describes how quantiles are computed, for manifests.
@@ -81,6 +84,9 @@ type SimReport struct {
 	Bands  []stress.RowBands
 	Refits int
 	Mixed  bool
+	// Uncertainty words Refits and Mixed for the manifest and the summary
+	// ("" without refits).
+	Uncertainty string
 	// Design and Capacities are the planner's design figures and solved
 	// capacities.
 	Design     []stress.DesignRow
@@ -590,12 +596,16 @@ func monteCarloFlags(group []sim.Row) []mcFlag {
 func monteCarloWarnings(group []sim.Row) []string {
 	var out []string
 	for _, f := range monteCarloFlags(group) {
-		need := "more paths than any run"
+		need := "more paths (--paths)"
 		if f.paths > 0 {
 			need = "about " + numfmt.RoundUp(f.paths) + " paths"
 		}
-		out = append(out, fmt.Sprintf("Monte Carlo error: the %s of %s is %s %s from %s paths, more than a twentieth of its sd; %s would bring it to %s",
-			f.stat, f.row.Name, numfmt.Value(f.value, f.se), numfmt.SE(f.se), numfmt.Number(float64(f.row.Tail.N)), need, numfmt.SE(f.target)))
+		value := numfmt.Value(f.value, f.se) + " " + numfmt.SE(f.se)
+		if math.IsInf(f.se, 0) {
+			value = numfmt.Number(f.value) + ", with too few paths beyond it to estimate its error,"
+		}
+		out = append(out, fmt.Sprintf("Monte Carlo error: the %s of %s is %s from %s paths, more than a twentieth of its sd; %s would bring it to %s",
+			f.stat, f.row.Name, value, numfmt.Number(float64(f.row.Tail.N)), need, numfmt.SE(f.target)))
 	}
 	return out
 }
@@ -757,7 +767,12 @@ func writeInSeason(e *errWriter, r *SimReport) {
 		}
 		rows = append(rows, []string{o.Period, fmt.Sprint(o.Days), numfmt.Fixed(o.Values[sim.HDD], 1), numfmt.Fixed(o.Values[sim.CDD], 1), energy})
 	}
-	e.table([]string{"period", "days observed", "HDD so far", "CDD so far", "energy so far"}, rows)
+	deg := "°" + r.Manifest.Units + "·day"
+	energyHead := "energy so far"
+	if u := demandUnitOf(r); u != "" {
+		energyHead += " (" + EnergyUnit(u) + ")"
+	}
+	e.table([]string{"period", "days observed", "HDD so far (" + deg + ")", "CDD so far (" + deg + ")", energyHead}, rows)
 }
 
 // ExceedText writes an exceedance probability with its Monte Carlo s.e.,
@@ -837,6 +852,12 @@ func NewSimReport(res *stress.Result) *SimReport {
 		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason, Extremes: res.Extremes,
 		Design: res.Design, Capacities: res.Capacities}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
+	switch {
+	case r.Mixed:
+		r.Uncertainty = fmt.Sprintf("the paths are spread over %d models refitted to synthetic records (predictive tables)", r.Refits)
+	case r.Refits > 0:
+		r.Uncertainty = fmt.Sprintf("90%% bands from %d models refitted to synthetic records", r.Refits)
+	}
 	for _, run := range s.Scenarios {
 		sc := run.Scenario
 		r.Scenarios = append(r.Scenarios, ScenarioReport{Name: sc.Name, Description: sc.Description, What: run.What,

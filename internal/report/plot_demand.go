@@ -104,6 +104,6 @@ func loadDurationFigure(pl *render.Planning, unit string, capacity float64, year
 	}
 	svg, err := toSVG(p, smallW, smallH, fmt.Sprintf("Load-duration curve of %d", year))
 	return figure{ID: "fig-load-duration", SVG: svg, Key: key, Caption: fmt.Sprintf("Each synthetic year's days "+
-		"sorted from the highest demand down; the bands are across %d synthetic years. Where the curve crosses "+
-		"the capacity is how many days a year exceed it.", pl.LoadDurationPaths)}, err
+		"sorted from the highest demand down; the bands are across %s synthetic years. Where the curve crosses "+
+		"the capacity is how many days a year exceed it.", numfmt.Number(float64(pl.LoadDurationPaths)))}, err
 }

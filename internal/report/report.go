@@ -757,7 +757,7 @@ func (b *builder) manifestSection() (any, error) {
 			rows = append(rows, [2]string{"demand model", mf.DemandModel}, [2]string{"demand model SHA-256", mf.DemandSHA256})
 		}
 		if mf.Capacity > 0 {
-			rows = append(rows, [2]string{"capacity", strings.TrimSpace(fmt.Sprintf("%g %s", mf.Capacity, b.demandUnit()))})
+			rows = append(rows, [2]string{"capacity", strings.TrimSpace(numfmt.Number(mf.Capacity) + " " + b.demandUnit())})
 		}
 		rows = append(rows, [2]string{"quantile convention", mf.Quantiles})
 	}

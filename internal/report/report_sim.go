@@ -100,7 +100,7 @@ func (b *builder) periodText(name string) string {
 	if b.in.Base != nil {
 		for _, p := range b.in.Base.Periods {
 			if p.Name == name {
-				return fmt.Sprintf("%s: %s to %s, %d days", name, p.From, p.To, p.Days())
+				return fmt.Sprintf("%s: %s to %s, %s", name, p.From, p.To, render.Plural(p.Days(), "day"))
 			}
 		}
 	}

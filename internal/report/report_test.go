@@ -598,7 +598,7 @@ func TestManifestShowsTheRun(t *testing.T) {
 	for _, want := range []string{"wxstress 1.2.3", "2026-12-01 09:30:00 UTC", "2.345s", in.Sim.Manifest.ModelSHA256,
 		in.Inputs[1].SHA256, "cold_spell.toml", "10000", "2026", "year, heating, cooling", "HDD 18 °C",
 		"warm-1c, cold_spell.toml", render.QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
-		in.Sim.Manifest.DemandSHA256, "120000"} {
+		in.Sim.Manifest.DemandSHA256, "120,000"} {
 		if !strings.Contains(txt, want) {
 			t.Errorf("manifest lacks %q", want)
 		}
