@@ -65,7 +65,7 @@ func TestBadHedgeFiles(t *testing.T) {
 			"bad.toml:15: key contract.strik: unknown key; valid keys are name, index, period, kind, strike,"},
 		// The decoder itself would name line 14, the tick of the last contract.
 		{"wrong type in the first contract", withLine(7, `tick = "4000"`),
-			"bad.toml:7: key contract.tick: incompatible types"},
+			"bad.toml:7: key contract.tick: wrong kind of value: want a number, found a string"},
 		{"missing strike", withLine(13, "# no strike"),
 			`bad.toml:8: key contract.strike (contract "b"): missing; a put needs a strike`},
 		{"duplicate names", withLine(9, `name = "a"`),

@@ -240,19 +240,25 @@ func (s *Scenario) Describe() []string {
 	if s.Units == "" {
 		u = "° (model units)"
 	}
+	return s.describe(1, u)
+}
+
+// describe is Describe with every temperature difference multiplied by f
+// and given in the unit u.
+func (s *Scenario) describe(f float64, u string) []string {
 	var out []string
 	add := func(format string, a ...any) { out = append(out, fmt.Sprintf(format, a...)) }
 	if sh := s.Shift; sh != nil {
 		if sh.Uniform != nil {
-			add("level %+.2f %s every day", *sh.Uniform, u)
+			add("level %+.2f %s every day", f**sh.Uniform, u)
 		}
 		if sh.Monthly != nil {
-			add("level by month %s %s", monthList(sh.Monthly, "%+.1f"), u)
+			add("level by month %s %s", monthList(times(sh.Monthly, f), "%+.1f"), u)
 		}
 	}
 	if t := s.Trend; t != nil {
 		if t.SlopePerDecade != nil {
-			add("trend %+.2f %s per decade from the end of the data", *t.SlopePerDecade, u)
+			add("trend %+.2f %s per decade from the end of the data", f**t.SlopePerDecade, u)
 		}
 		if t.TargetYear != nil {
 			add("climate of %d along the trend", *t.TargetYear)
@@ -298,7 +304,7 @@ func (s *Scenario) Describe() []string {
 		if e.Probability != nil && *e.Probability < 1 {
 			p = fmt.Sprintf("with probability %.2f a year", *e.Probability)
 		}
-		add("%s spell: %d days each %.1f %s %s than simulated, %s, %s", kind, e.Days, e.Anomaly, u, way, when, p)
+		add("%s spell: %d days each %.1f %s %s than simulated, %s, %s", kind, e.Days, f*e.Anomaly, u, way, when, p)
 	}
 	if len(out) == 0 {
 		out = append(out, "no change (the baseline)")
@@ -309,7 +315,11 @@ func (s *Scenario) Describe() []string {
 // DescribeFor is Describe with the model-dependent changes worked out for m
 // and target year year: the level change a move along the trend brings.
 func (s *Scenario) DescribeFor(m *model.File, year int) []string {
+	units := model.Units(m.Data.Units)
 	out := s.Describe()
+	if units.Valid() {
+		out = s.describe(s.factor(units), units.Symbol()) // the model's degrees
+	}
 	t := s.Trend
 	if t == nil || t.TargetYear == nil {
 		return out
@@ -343,4 +353,13 @@ func monthList(v []float64, format string) string {
 		parts[i] = time.Month(i + 1).String()[:3] + " " + fmt.Sprintf(format, x)
 	}
 	return strings.Join(parts, ", ")
+}
+
+// times returns x with every value multiplied by f.
+func times(x []float64, f float64) []float64 {
+	out := make([]float64, len(x))
+	for i, v := range x {
+		out[i] = f * v
+	}
+	return out
 }

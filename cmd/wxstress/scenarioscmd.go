@@ -86,7 +86,11 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		describe = func(s *scenarios.Scenario) []string { return s.DescribeFor(m, year) }
 	}
 	for _, s := range list {
-		fmt.Fprintf(stdout, "\n%s — %s\n", s.Name, s.Description)
+		if s.Description != "" {
+			fmt.Fprintf(stdout, "\n%s — %s\n", s.Name, s.Description)
+		} else {
+			fmt.Fprintf(stdout, "\n%s\n", s.Name)
+		}
 		for _, line := range describe(s) {
 			fmt.Fprintf(stdout, "  • %s\n", line)
 		}

@@ -104,7 +104,37 @@ func Split(err error) (line int, key, msg string, ok bool) {
 	}
 	if m := typeErr.FindStringSubmatch(err.Error()); m != nil {
 		line, _ = strconv.Atoi(m[1])
-		return line, m[2], m[3], true
+		return line, m[2], plainTypes(m[3]), true
 	}
 	return 0, "", "", false
+}
+
+// mismatch matches the decoder's words for a value of the wrong kind:
+// "type mismatch for scenarios.Shift: expected table but found int64", "incompatible types: TOML value has type string; destination has type
+// float".
+var mismatch = regexp.MustCompile(`^(?:type mismatch for [^:]+: expected (\w+) but found (\w+)|` +
+	`incompatible types: TOML value has type (\w+); destination has type (\w+))$`)
+
+// kinds names the decoder's types for people.
+var kinds = map[string]string{"table": "a table ([name] or {…})", "int64": "an integer", "float64": "a number",
+	"string": "a string", "bool": "true or false", "slice": "a list", "array": "a list", "map": "a table",
+	"struct": "a table", "int": "an integer", "integer": "an integer", "float": "a number"}
+
+// plainTypes rewords a type mismatch without the program's type names.
+func plainTypes(msg string) string {
+	m := mismatch.FindStringSubmatch(msg)
+	if m == nil {
+		return msg
+	}
+	word := func(k string) string {
+		if w, ok := kinds[k]; ok {
+			return w
+		}
+		return k
+	}
+	want, found := m[1], m[2]
+	if want == "" {
+		want, found = m[4], m[3]
+	}
+	return "wrong kind of value: want " + word(want) + ", found " + word(found)
 }

@@ -65,12 +65,26 @@ func TestSplit(t *testing.T) {
 	_, err := toml.Decode("[[a]]\nb = 1\n[[a]]\nb = \"two\"\n", &v)
 	line, key, msg, ok := Split(err)
 	// The decoder names the key of the last element; Line finds the element.
-	if !ok || line != 4 || key != "a.b" || !strings.Contains(msg, "incompatible types") {
+	if !ok || line != 4 || key != "a.b" || msg != "wrong kind of value: want a number, found a string" {
 		t.Errorf("type error split into %d %q %q %v (from %v)", line, key, msg, ok, err)
 	}
 	_, err = toml.Decode("x = 1\n[a\n", &v)
 	line, key, msg, ok = Split(err)
 	if !ok || line < 2 || key != "" || !strings.HasPrefix(msg, "TOML syntax: ") {
 		t.Errorf("syntax error split into %d %q %q %v (from %v)", line, key, msg, ok, err)
+	}
+}
+
+// TestPlainTypes: the decoder's type names are reworded for people.
+func TestPlainTypes(t *testing.T) {
+	for in, want := range map[string]string{
+		"type mismatch for scenarios.Shift: expected table but found int64":             "wrong kind of value: want a table ([name] or {…}), found an integer",
+		"incompatible types: TOML value has type string; destination has type float":    "wrong kind of value: want a number, found a string",
+		"incompatible types: TOML value has type float64; destination has type integer": "wrong kind of value: want an integer, found a number",
+		"value out of range": "value out of range",
+	} {
+		if got := plainTypes(in); got != want {
+			t.Errorf("%q: %q, want %q", in, got, want)
+		}
 	}
 }
