@@ -440,6 +440,13 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				meta.Inputs = append(meta.Inputs, report.InputFile{Role: "scenario", Name: f, SHA256: sum})
 			}
 		}
+		for _, in := range []struct{ role, file string }{{"station record (history)", o.history},
+			{"station record (season under way)", o.observed}, {"loads (season under way)", o.obsLoad},
+			{"hedges", o.hedgeFile}} {
+			if in.file != "" {
+				meta.Inputs = append(meta.Inputs, report.InputFile{Role: in.role, Name: in.file, SHA256: fileSHA(in.file)})
+			}
+		}
 		if err := addReport(plan, o.report, out, meta); err != nil {
 			return err
 		}

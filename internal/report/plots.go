@@ -761,7 +761,7 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 			return figure{}, err
 		}
 		p.Add(l)
-		key = append(key, keyItem{fmt.Sprintf("%s = %s", mk.label, render.Num(mk.value, 1)), mk.color, mk.style})
+		key = append(key, keyItem{fmt.Sprintf("%s = %s %s", mk.label, render.TableNum(mk.value), r.Unit), mk.color, mk.style})
 	}
 	p.Y.Min = 0
 	below, above := 0, 0
@@ -774,8 +774,8 @@ func indexHistFigure(id string, r sim.Row, values []float64) (figure, error) {
 	}
 	caption := ""
 	if below+above > 0 {
-		caption = fmt.Sprintf("Beyond the axis: %d years below %s and %d above %s (see the exceedance curve).",
-			below, render.Num(lo, 1), above, render.Num(hi, 1))
+		caption = fmt.Sprintf("Beyond the axis: %s below %s %s and %d above %s %s (see the exceedance curve).",
+			render.Plural(below, "year"), render.TableNum(lo), r.Unit, above, render.TableNum(hi), r.Unit)
 	}
 	svg, err := toSVG(p, smallW, smallH, fmt.Sprintf("Histogram of %s, %s", r.Name, r.Period))
 	return figure{ID: id, SVG: svg, Key: key, Caption: caption}, err
