@@ -104,6 +104,9 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 		return nil, err
 	}
 	fail := func(key, format string, a ...any) error {
+		if s.file != "" { // a file's scenario: where it is, for the reader to fix
+			return fmt.Errorf("%s: scenario %s: key %s: %s", s.file, s.Name, key, fmt.Sprintf(format, a...))
+		}
 		return fmt.Errorf("scenario %s: %s: %s", s.Name, key, fmt.Sprintf(format, a...))
 	}
 	k := s.factor(model.Units(m.Data.Units)) // converts the scenario's degrees to the model's
