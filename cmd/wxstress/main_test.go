@@ -743,3 +743,15 @@ func TestCSVHasPlanningFigures(t *testing.T) {
 		t.Errorf("Go formatting in the CSV manifest:\n%s", out[:min(len(out), 1500)])
 	}
 }
+
+// TestHedgeNeedingDemandIsUsage: a hedge file that reads demand, run
+// without --demand, is a usage error (exit 2) naming the flag.
+func TestHedgeNeedingDemandIsUsage(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"),
+		"--hedge", "../../hedge/example.toml", "--paths", "50")
+	if code != exitUsage || !strings.Contains(stderr, "needs --demand") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}

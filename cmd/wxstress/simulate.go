@@ -393,6 +393,11 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		if job.Hedge, err = hedge.Load(o.hedgeFile); err != nil {
 			return err
 		}
+		for _, k := range job.Hedge.Needs() {
+			if k.NeedsDemand() && o.demand == "" {
+				return usagef("simulate: the hedge file %s reads %s, which needs --demand", o.hedgeFile, k)
+			}
+		}
 		opt := hedge.DefaultOptions()
 		opt.Loading = o.loading
 		job.HedgeOptions = &opt
