@@ -420,6 +420,18 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	rep.Manifest.Scenarios = o.scenarios
 	rep.Manifest.ParameterUncertainty = rep.Uncertainty
 	rep.Manifest.Warnings = append(slices.Clone(baseWarnings), out.Warnings...) // the bases' already on stderr
+	for _, in := range []struct{ role, file string }{{"station record (history)", o.history},
+		{"station record (season under way)", o.observed}, {"loads (season under way)", o.obsLoad},
+		{"hedges", o.hedgeFile}} {
+		if in.file != "" {
+			rep.Manifest.Inputs = append(rep.Manifest.Inputs, render.ManifestInput{Role: in.role, File: filepath.Base(in.file), SHA256: fileSHA(in.file)})
+		}
+	}
+	for _, f := range o.scenarios {
+		if sum := fileSHA(f); sum != "" { // a file, not a built-in name
+			rep.Manifest.Inputs = append(rep.Manifest.Inputs, render.ManifestInput{Role: "scenario", File: filepath.Base(f), SHA256: sum})
+		}
+	}
 	if o.growth != 0 {
 		rep.Manifest.DemandGrowthPerCent = o.growth
 	}
@@ -445,11 +457,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				meta.Inputs = append(meta.Inputs, report.InputFile{Role: "scenario", Name: f, SHA256: sum})
 			}
 		}
-		for _, in := range []struct{ role, file string }{{"station record (history)", o.history},
-			{"station record (season under way)", o.observed}, {"loads (season under way)", o.obsLoad},
-			{"hedges", o.hedgeFile}} {
-			if in.file != "" {
-				meta.Inputs = append(meta.Inputs, report.InputFile{Role: in.role, Name: in.file, SHA256: fileSHA(in.file)})
+		for _, in := range rep.Manifest.Inputs {
+			if in.Role != "scenario" { // listed above
+				meta.Inputs = append(meta.Inputs, report.InputFile{Role: in.Role, Name: in.File, SHA256: in.SHA256})
 			}
 		}
 		if err := addReport(plan, o.report, out, meta); err != nil {

@@ -62,6 +62,17 @@ type Manifest struct {
 	// ParameterUncertainty says how the run used refitted models
 	// (--uncertainty): bands beside the tables, or paths spread over them.
 	ParameterUncertainty string `json:"parameter_uncertainty,omitempty"`
+	// Inputs are the run's other input files (history, season under way,
+	// loads, hedges, scenario files) with their hashes.
+	Inputs []ManifestInput `json:"inputs,omitempty"`
+}
+
+// ManifestInput is an input file of a run: what it is, its name and its
+// SHA-256.
+type ManifestInput struct {
+	Role   string `json:"role"`
+	File   string `json:"file"`
+	SHA256 string `json:"sha256,omitempty"`
 }
 
 // QuantileConvention describes how quantiles are computed, for manifests.
@@ -452,6 +463,9 @@ func csvManifest(w io.Writer, m Manifest) error {
 	}
 	if m.DemandGrowth != 0 {
 		e.printf("# demand_growth_per_cent_a_year: %v\n# demand_growth_factor: %v\n", m.DemandGrowthPerCent, m.DemandGrowth)
+	}
+	for _, in := range m.Inputs {
+		e.printf("# input: %s: %s %s\n", in.Role, in.File, in.SHA256)
 	}
 	for _, w := range m.Warnings {
 		e.printf("# warning: %s\n", w)
