@@ -160,7 +160,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 				continue
 			}
 			t := row.Tail
-			sm.Notes = append(sm.Notes, fmt.Sprintf("Days over the capacity of %s%s, %s: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
+			sm.Notes = append(sm.Notes, fmt.Sprintf("Days a year over the %s%s capacity, %s: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
 				numfmt.Number(mf.Capacity), peakUnit, row.Period, numfmt.Value(t.Mean, t.MeanSE), numfmt.Number(t.Quantile(0.5)),
 				numfmt.Number(t.ReturnLevel(20)), numfmt.Number(t.ReturnLevel(50))))
 		}
