@@ -293,8 +293,16 @@ func Run(ctx context.Context, s *calibrate.Series, opt Options) (*Result, error)
 			r.Rows = append(r.Rows, row)
 		}
 	}
+	if len(r.Rows) == 0 {
+		return nil, fmt.Errorf("%w: no period has 3 complete seasons to test before the record's end, each with the "+
+			"years of data before it that a fit needs: give a longer record", ErrTooShort)
+	}
 	return r, nil
 }
+
+// ErrTooShort is wrapped by the error for a record with too few seasons to
+// backtest.
+var ErrTooShort = errors.New("backtest: record too short")
 
 // climate holds a period's index values in every complete season of the
 // record without missing days, by the year the season ends in.

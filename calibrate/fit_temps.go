@@ -137,6 +137,9 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	if len(obs) < 2*365 {
 		return nil, fmt.Errorf("%s: %w: %d days with values, at least 730 needed", s.Name, ErrFit, len(obs))
 	}
+	if lo, hi := minMaxObserved(s.Temps); lo == hi {
+		return nil, fmt.Errorf("%s: %w: every value is %v: a record without day-to-day variation has no climate to fit", s.Name, ErrFit, lo)
+	}
 	years := float64(len(s.Temps)) / calendar.DaysPerYear
 	trendKind, rule := chooseTrend(set.Trend, years)
 
@@ -685,4 +688,16 @@ func shortSlowAdvice(sl *model.Slow, days int, units string) string {
 		"and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward, are poorly "+
 		"determined; compare with --slow none, and prefer a climate start", years, spans, sl.EFoldingDays,
 		sl.SD, sl.SDSE, units, sl.State, sl.StateSD, units)
+}
+
+// minMaxObserved returns the smallest and largest values of x, missing days
+// (NaN) aside.
+func minMaxObserved(x []float64) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, v := range x {
+		if !math.IsNaN(v) {
+			lo, hi = min(lo, v), max(hi, v)
+		}
+	}
+	return lo, hi
 }

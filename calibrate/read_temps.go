@@ -117,6 +117,11 @@ const celsiusHintF = 40.0
 // a gap of more than a year usually means a mistyped date.
 const longGap = 365
 
+// monthGap is the longest run of missing days that passes without any
+// warning; a longer one is named, as it drops the seasons it falls in from
+// the record's own seasons.
+const monthGap = 31
+
 // ReadFile opens path and reads it with ReadCSV, using path as the name.
 func ReadFile(path string, opt ReadOptions) (*Series, error) {
 	return readPath(path, func(r io.Reader) (*Series, error) { return ReadCSV(r, path, opt) })
@@ -298,10 +303,20 @@ func (p *tempParser) series() (*Series, error) {
 		MeanFrom: p.meanFrom,
 		Warnings: p.warnings,
 	}
-	if from, n := longestGap(temps); n > longGap {
+	switch from, n := longestGap(temps); {
+	case n > longGap:
 		s.Warnings = append(s.Warnings, fmt.Sprintf(
 			"%d days without values from %v to %v; check the dates on either side",
 			n, s.Date(from), s.Date(from+n-1)))
+	case n > monthGap:
+		s.Warnings = append(s.Warnings, fmt.Sprintf(
+			"%d days without values from %v to %v: the fit skips them, and the seasons they fall in are left out of "+
+				"the record's own seasons (--history, backtest)", n, s.Date(from), s.Date(from+n-1)))
+	}
+	if k := len(p.dates) - 1 - last; k > 0 {
+		s.Warnings = append(s.Warnings, fmt.Sprintf(
+			"the last %d rows (%v to %v) have no value: the record ends on %v, the day a conditional start takes its state from",
+			k, p.dates[last+1], p.dates[len(p.dates)-1], p.dates[last]))
 	}
 	warm, ok := warmestMonthMean(s)
 	switch {

@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
+	"fmt"
 	"io"
 	"io/fs"
 	"math"
@@ -262,8 +263,12 @@ func TestReadGaps(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(s.Warnings) != 0 {
-		t.Errorf("unexpected warnings %q", s.Warnings)
+	// Trailing rows without values move the data end, which a conditional
+	// start depends on: that, and only that, is said.
+	want := fmt.Sprintf("the last %d rows (%v to %v) have no value: the record ends on %v, the day a conditional start takes its state from",
+		trail, days[len(days)-trail].date, days[len(days)-1].date, days[len(days)-trail-1].date)
+	if len(s.Warnings) != 1 || s.Warnings[0] != want {
+		t.Errorf("warnings %q, want only %q", s.Warnings, want)
 	}
 	if s.Start != days[lead].date || s.End() != days[len(days)-trail-1].date {
 		t.Fatalf("span %v..%v, want %v..%v", s.Start, s.End(), days[lead].date, days[len(days)-trail-1].date)
@@ -651,5 +656,35 @@ func TestUnitsLookWrong(t *testing.T) {
 	}
 	if s := read(f.String(), Fahrenheit); warned(s, "look like °") {
 		t.Errorf("°F read as °F: %q", s.Warnings)
+	}
+}
+
+// TestReadMonthGapWarned: a gap of more than a month (here 40 days) is
+// named, since the seasons it falls in drop out of the record's own seasons;
+// a gap of a month is not.
+func TestReadMonthGapWarned(t *testing.T) {
+	for _, c := range []struct {
+		gap  int
+		want bool
+	}{{40, true}, {31, false}} {
+		var b strings.Builder
+		b.WriteString("date,tavg\n")
+		d := calendar.FromYMD(2018, time.January, 1)
+		for i := range 3 * 365 {
+			if i >= 400 && i < 400+c.gap {
+				continue
+			}
+			fmt.Fprintf(&b, "%s,%.1f\n", d+calendar.Date(i), 10+float64(i%7))
+		}
+		s, err := ReadCSV(strings.NewReader(b.String()), "g.csv", ReadOptions{Units: Celsius})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := slices.ContainsFunc(s.Warnings, func(w string) bool {
+			return strings.HasPrefix(w, fmt.Sprintf("%d days without values from", c.gap))
+		})
+		if got != c.want {
+			t.Errorf("%d-day gap: warnings %q", c.gap, s.Warnings)
+		}
 	}
 }

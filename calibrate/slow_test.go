@@ -3,11 +3,13 @@ package calibrate
 import (
 	"bytes"
 	"context"
+	"errors"
 	"math"
 	"math/rand/v2"
 	"os"
 	"regexp"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -296,5 +298,19 @@ func TestShortSlowAdvice(t *testing.T) {
 		if (got != "") != c.wants {
 			t.Errorf("%d days, e-folding %v days: advice %q", c.days, c.tau, got)
 		}
+	}
+}
+
+// TestConstantRecordRefused: a record whose every value is the same has no
+// climate to fit; the fit says so rather than write a model with σ = 0.
+func TestConstantRecordRefused(t *testing.T) {
+	s := &Series{Name: "flat.csv", Start: calendar.FromYMD(2020, time.January, 1), Units: Celsius}
+	for range 5 * 365 {
+		s.Temps = append(s.Temps, 10)
+	}
+	s.Temps[100] = math.NaN() // a gap does not change it
+	_, err := Fit(s, nil)
+	if !errors.Is(err, ErrFit) || !strings.Contains(err.Error(), "every value is 10") {
+		t.Errorf("constant record: %v", err)
 	}
 }

@@ -15,6 +15,10 @@ import (
 // path count is a mistake, not a request.
 const MaxPaths = 1_000_000_000
 
+// MinPaths is the fewest paths a run's tail tables mean anything with (and
+// have Monte Carlo errors for); the commands refuse fewer.
+const MinPaths = 10
+
 // ErrMemory is wrapped by the refusal of a run whose estimated memory
 // exceeds the limit.
 var ErrMemory = errors.New("stress: run too large for the memory limit")

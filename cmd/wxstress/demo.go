@@ -69,8 +69,8 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	if err := parseFlags(newDemoFlags(&o), demoUsage, args, stdout); err != nil {
 		return err
 	}
-	if o.paths <= 0 || o.paths > stress.MaxPaths {
-		return usagef("demo: --paths must be a number from 1 to %d, got %d", stress.MaxPaths, o.paths)
+	if o.paths < stress.MinPaths || o.paths > stress.MaxPaths {
+		return usagef("demo: --paths must be a number from %d to %d, got %d", stress.MinPaths, stress.MaxPaths, o.paths)
 	}
 	if o.dir == "" {
 		o.dir = freeDir("wxstress-demo")

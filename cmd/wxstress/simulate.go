@@ -155,8 +155,8 @@ func (o *simulateOptions) validate() error {
 		}
 		o.memoryLimit = v
 	}
-	if o.paths <= 0 || o.paths > stress.MaxPaths {
-		return usagef("simulate: --paths must be a number from 1 to %d, got %d", stress.MaxPaths, o.paths)
+	if o.paths < stress.MinPaths || o.paths > stress.MaxPaths {
+		return usagef("simulate: --paths must be a number from %d to %d, got %d", stress.MinPaths, stress.MaxPaths, o.paths)
 	}
 	if o.workers < 0 {
 		return usagef("simulate: --workers must be positive, got %d", o.workers)
@@ -164,8 +164,10 @@ func (o *simulateOptions) validate() error {
 	if o.capacity < 0 || o.capacity > 0 && o.demand == "" {
 		return usagef("simulate: --capacity needs --demand and a positive value")
 	}
-	if o.refits != 0 && (o.refits < 2 || o.refits > 1000) {
-		return usagef("simulate: --uncertainty %d: want 2..1000 refits (20 or more for a 90%% band)", o.refits)
+	if o.refits != 0 && (o.refits < 20 || o.refits > 1000) {
+		// Fewer refits give a "90 % band" that is mostly noise: at 2 to 5
+		// most bands missed the point estimate itself.
+		return usagef("simulate: --uncertainty %d: want 20..1000 refits (a 90%% band needs 20 or more)", o.refits)
 	}
 	if o.refits > 0 && o.history == "" {
 		return usagef("simulate: --uncertainty refits synthetic copies of the record: give it with --history")
@@ -322,9 +324,10 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds, MaxMemory: o.memoryLimit}
 	baseWarnings := job.Config.Bases.Implausible(model.Units(m.Data.Units))
-	for _, w := range baseWarnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+	if dg := m.Diagnostics; dg != nil && dg.SlowAdvice != "" {
+		baseWarnings = append(baseWarnings, "the model's fit: "+dg.SlowAdvice)
 	}
+
 	var demandSum string
 	if o.demand != "" {
 		if job.Demand, demandSum, err = readDemandModel(o.demand); err != nil {
@@ -353,8 +356,14 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 			return err
 		}
 		if m.Data.SHA256 != "" && job.Temps.SHA256 != m.Data.SHA256 {
-			fmt.Fprintf(stderr, "wxstress: warning: %s is not the record the model was fitted to (%s); its seasons are compared all the same\n",
-				o.history, m.Data.File)
+			if o.refits > 0 {
+				// The refits take the record's length and gaps: another
+				// record's would band the model with the wrong sampling error.
+				return usagef("simulate: --uncertainty refits records like the model's own: %s is not the record the model was fitted to (%s)",
+					o.history, filepath.Base(m.Data.File))
+			}
+			baseWarnings = append(baseWarnings, fmt.Sprintf("%s is not the record the model was fitted to (%s); its seasons are "+
+				"compared all the same", filepath.Base(o.history), filepath.Base(m.Data.File)))
 		}
 		job.History = true
 	}
@@ -419,7 +428,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	rep.Manifest.Scenarios = o.scenarios
 	rep.Manifest.ParameterUncertainty = rep.Uncertainty
-	rep.Manifest.Warnings = append(slices.Clone(baseWarnings), out.Warnings...) // the bases' already on stderr
+	rep.Manifest.Warnings = append(slices.Clone(baseWarnings), out.Warnings...)
 	for _, in := range []struct{ role, file string }{{"station record (history)", o.history},
 		{"station record (season under way)", o.observed}, {"loads (season under way)", o.obsLoad},
 		{"hedges", o.hedgeFile}} {
@@ -471,7 +480,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	switch o.format {
 	case "json", "csv":
-		for _, w := range out.Warnings { // in the manifest too; said where a person looks
+		for _, w := range rep.Manifest.Warnings { // in the manifest too; said where a person looks
 			fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
 		}
 		if o.format == "json" {

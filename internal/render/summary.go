@@ -220,8 +220,9 @@ func scenarioKeys(rows []sim.Row) []int {
 }
 
 // summaryWarnings collects what should make a reader doubt the figures:
-// the run's own cautions (a far target year, growth run backwards, another
-// station's demand model), Monte Carlo error (in one line), the record's spread outside the model's
+// the run's own cautions (the manifest's: a far target year, growth run
+// backwards, another station's demand model, the model's slow-part
+// caution), Monte Carlo error (in one line), the record's spread outside the model's
 // band, return levels outside the GEV interval, and the fit's spread check.
 func summaryWarnings(r *SimReport, m *model.File) []string {
 	warns := slices.Clone(r.Manifest.Warnings)
@@ -239,9 +240,6 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
-		if a := m.Diagnostics.SlowAdvice; a != "" {
-			warns = append(warns, "the model's fit: "+a)
-		}
 		for _, s := range m.Diagnostics.Spread {
 			if s.Verdict == "too narrow" || s.Verdict == "too wide" {
 				warns = append(warns, fmt.Sprintf("the record's %d-day spread lies outside the model's band (%s)", s.Days, s.Verdict))
