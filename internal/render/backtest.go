@@ -7,6 +7,7 @@ import (
 
 	"wxstress/backtest"
 	"wxstress/internal/numfmt"
+	"wxstress/sim"
 )
 
 // BacktestTables writes a backtest's summary: per index and period the
@@ -33,9 +34,18 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	for _, row := range r.Rows {
 		e.printf("%s\n", Wrap(fmt.Sprintf("  %s, %s: %s", row.Index.Info().Name, row.Period, row.Evidence.Verdict), "    "))
 	}
-	e.printf("\nA calibrated model puts about half the realised values inside its central 50 %% band and nine in ten\n" +
-		"inside its 90 %% band; the sd of probit(PIT) is then about 1 (above 1: too narrow). CRPS (Gneiting & Raftery\n" +
-		"2007) is lower for the better forecast; the climatology is the distribution of the earlier seasons.\n")
+	e.printf("\n%s\n", Wrap("A calibrated model puts about half the realised values inside its central 50 % band and nine in "+
+		"ten inside its 90 % band; the sd of probit(PIT), taken about its own mean, is then about 1 (above 1: too "+
+		"narrow; a bias shows in the verdict instead). CRPS (Gneiting & Raftery 2007) is lower for the better forecast; "+
+		"the climatology is the distribution of the earlier seasons, or of all the other tested seasons when fewer than "+
+		"two came before (it then sees later years).", ""))
+	for _, row := range r.Rows {
+		if row.Index >= sim.Energy {
+			e.printf("%s\n", Wrap("The demand model is fitted once, on the whole load record: the demand rows' held-out "+
+				"seasons were in its fit, so they are not fully out of sample.", ""))
+			break
+		}
+	}
 	e.printf("\n%s\n", Wrap(Caution, ""))
 	return e.err
 }
