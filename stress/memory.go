@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"runtime"
 	"strconv"
 	"strings"
 
@@ -25,14 +26,21 @@ var ErrMemory = errors.New("stress: run too large for the memory limit")
 
 // MemoryEstimate returns the bytes a job's simulation holds at its peak:
 // every run's per-path aggregates (8 bytes a path for each index of each
-// period; the baseline and each scenario are kept together for the
-// comparisons), a sorted copy of one column while it is summarised, the
-// detail paths kept whole, and the bands' runs (one at a time).
+// period; the baseline, each scenario and a climate reference run are kept
+// together for the comparisons), a working copy of a column for each
+// worker summarising at once, the detail paths kept whole, and the bands'
+// runs (one at a time). The commands also hand the limit to the Go runtime
+// (debug.SetMemoryLimit), so that its garbage collector keeps the process
+// near what is live rather than at twice it.
 func MemoryEstimate(job *Job, periods, indices int) int64 {
 	paths := int64(job.Config.Paths)
-	runs := int64(1 + len(job.Scenarios))
+	runs := int64(estimatedRuns(job))
 	perRun := paths * int64(periods*indices) * 8
-	total := runs*perRun + paths*8
+	workers := int64(job.Config.Workers)
+	if workers <= 0 {
+		workers = int64(runtime.GOMAXPROCS(0))
+	}
+	total := runs*perRun + workers*paths*8 // the columns summarised at once
 	if job.Detail > 0 {
 		total += int64(min(job.Detail, job.Config.Paths)) * 400 * 8 * 2
 	}
@@ -43,6 +51,17 @@ func MemoryEstimate(job *Job, periods, indices int) int64 {
 		total += min(paths, bandPaths) * int64(periods*indices) * 8
 	}
 	return total
+}
+
+// estimatedRuns counts the runs a job keeps at once: the baseline, each
+// scenario and, for the record's own seasons beside a run from the data
+// end, the climate-start run they are compared with.
+func estimatedRuns(job *Job) int {
+	n := 1 + len(job.Scenarios)
+	if job.History && (job.Config.Start == sim.StartConditional || job.Observed) {
+		n++
+	}
+	return n
 }
 
 // checkMemory refuses a job whose estimate exceeds limit (0: no limit).
@@ -64,7 +83,7 @@ func checkMemory(job *Job, limit int64) error {
 	if est := MemoryEstimate(job, periods, indices); est > limit {
 		return fmt.Errorf("%w: %s paths × %d periods × %d indices × %d runs needs about %s, above the limit of %s; "+
 			"run fewer paths or raise the limit with --max-memory", ErrMemory, strconv.Itoa(job.Config.Paths), periods, indices,
-			1+len(job.Scenarios), FormatBytes(est), FormatBytes(limit))
+			estimatedRuns(job), FormatBytes(est), FormatBytes(limit))
 	}
 	return nil
 }

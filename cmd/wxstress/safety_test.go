@@ -166,14 +166,15 @@ func between(s, a, b string) string {
 // TestMemoryLimitRefuses10MillionPaths asks for 10⁷ paths of the default
 // job under a 1 GiB limit: refused before any allocation, with the estimate
 // and the flag that lifts the limit. (The default job at 10⁷ paths needs
-// about 1.4 GiB: three periods × six indices × 8 bytes × 10⁷, and a sorted
-// copy of one column.)
+// about 1.5 GiB: three periods × six indices × 8 bytes × 10⁷, and a working
+// copy of a column for each of two workers.)
 func TestMemoryLimitRefuses10MillionPaths(t *testing.T) {
 	t.Parallel()
 	m := demoModel(t)
 	start := time.Now()
-	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "10000000", "--max-memory", "1G")
-	if code != exitFailure || !strings.Contains(stderr, "--max-memory") || !strings.Contains(stderr, "1.4 GiB") {
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "10000000", "--max-memory", "1G",
+		"--workers", "2")
+	if code != exitFailure || !strings.Contains(stderr, "--max-memory") || !strings.Contains(stderr, "1.5 GiB") {
 		t.Errorf("exit %d: %s", code, stderr)
 	}
 	if time.Since(start) > 2*time.Second {

@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"runtime/debug"
 	"slices"
 	"strings"
 	"time"
@@ -323,6 +324,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		return err
 	}
 	job := &stress.Job{Model: m, Config: o.config(m), Scenarios: o.loaded, Thresholds: o.thresholds, MaxMemory: o.memoryLimit}
+	if o.memoryLimit > 0 {
+		debug.SetMemoryLimit(o.memoryLimit) // the collector works harder near the limit the estimate is held to
+	}
 	baseWarnings := job.Config.Bases.Implausible(model.Units(m.Data.Units))
 	if dg := m.Diagnostics; dg != nil && dg.SlowAdvice != "" {
 		baseWarnings = append(baseWarnings, "the model's fit: "+dg.SlowAdvice)
