@@ -30,7 +30,7 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		title += "; the model side from a climate-start run, as the record's seasons are draws from the climate"
 	}
 	header = []string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
-		"model mean", "model sd", "sd band", "record sd"}
+		"model mean", "model sd", "sd band", "record sd vs band"}
 	for _, r := range h.Rows {
 		if !historyShown(r) {
 			continue

@@ -107,8 +107,9 @@ func writeNormals(e *errWriter, normals []sim.YearNormal, unit string) {
 	}
 	e.table([]string{"year", "days", "actual", "model, actual weather", "model, normal weather", "weather-normalized",
 		"weather effect"}, rows)
-	e.printf("  weather-normalized = actual − model at the actual weather + model at normal weather (the mean over\n" +
-		"  climatological simulations of that year, with the trend at that year and the same calendar)\n")
+	e.printf("%s\n", Wrap("  weather-normalized = actual − model at the actual weather + model at normal weather (the mean "+
+		"over climatological simulations of that year, with the trend at that year and the same calendar); weather effect "+
+		"= actual / weather-normalized − 1, the share of the year's demand its weather added (+) or saved (−)", "  "))
 }
 
 // EnergyUnit is the unit of a period's energy for daily loads in unit
