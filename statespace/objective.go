@@ -59,7 +59,8 @@ func nllOf(x []float64, month []uint8, p int, slow bool) objective {
 // gradient sets g to the finite-difference gradient of o at th: gonum's
 // fd.Gradient with {formula, step, Concurrent}, whose points and sums it
 // repeats exactly (each component is the stencil's weighted sum of its
-// points' values, times 1/step), so the result is the same to the bit.
+// points' values, over the step as gonum takes it), so the result is the
+// same to the bit on any number of processors.
 // With o.many the points are shared out among the processors in groups
 // of four.
 func (o objective) gradient(g, th []float64, formula fd.Formula, step float64) {
@@ -95,12 +96,18 @@ func (o objective) gradient(g, th []float64, formula fd.Formula, step float64) {
 		wg.Go(func() { o.many(pts[lo:hi], vals[lo:hi]) })
 	}
 	wg.Wait()
+	// gonum runs one worker on one processor, and then divides by the
+	// step; with more it multiplies by its reciprocal.
 	alpha := 1 / step
 	for i := range g {
 		d := 0.0
 		for k, st := range formula.Stencil {
 			d += st.Coeff * vals[idx[i][k]]
 		}
-		g[i] = d * alpha
+		if workers == 1 {
+			g[i] = d / step
+		} else {
+			g[i] = d * alpha
+		}
 	}
 }
