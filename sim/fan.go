@@ -36,15 +36,17 @@ type Fan struct {
 }
 
 // RunFan simulates paths whole years (the first paths of a run with cfg's
-// seed and periods, so they are the same years as that Run's) and returns
-// their daily quantiles of the target year. It keeps paths × days values, so it is for a few thousand
+// seed and periods: the same years as that Run's when its periods start by
+// 1 January) and returns their daily quantiles of the target year. It keeps paths × days values, so it is for a few thousand
 // paths, not millions. Paths and rows are shared out among cfg.Workers
 // goroutines.
 func RunFan(ctx context.Context, m *model.File, cfg Config, paths int) (*Fan, error) {
-	// The run's own periods, with the year: the same span from the same
-	// first day, so the same random numbers day by day and the same years
-	// as the run's first paths (a year-only span starts later when the run
-	// has the heating season, and a climate start then draws other paths).
+	// The run's own periods, with the year: the same first day as the run
+	// whenever its periods start by 1 January of the target year (the
+	// default ones do), so the same random numbers day by day and the same
+	// years as the run's first paths. A run of later periods alone (the
+	// cooling season) starts later than the year, and its fan then comes
+	// from other draws of the same model.
 	periods := slices.Clone(cfg.Periods)
 	if len(periods) == 0 {
 		periods = DefaultPeriods()

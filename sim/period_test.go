@@ -161,6 +161,7 @@ func TestTargetYear(t *testing.T) {
 		{"2025-06-30", []string{"cooling"}, 2025},
 		{"2025-06-30", []string{"year", "jul"}, 2025},
 		{"2025-10-31", []string{"heating"}, 2026},
+		{"2025-06-30", []string{"year", " Heating"}, 2026}, // names as ParsePeriod reads them
 	} {
 		d, err := calendar.Parse(c.end)
 		if err != nil {

@@ -2,6 +2,7 @@ package sim
 
 import (
 	"slices"
+	"strings"
 
 	"wxstress/model"
 )
@@ -23,8 +24,8 @@ func TargetYear(m *model.File, year int, periods []string) int {
 	if len(periods) == 0 {
 		periods = DefaultPeriods()
 	}
-	if slices.Contains(periods, "heating") {
-		periods = []string{"heating"} // the season a winter run is about
+	if slices.ContainsFunc(periods, func(p string) bool { return strings.EqualFold(strings.TrimSpace(p), "heating") }) {
+		periods = []string{"heating"} // the season a winter run is about (names as ParsePeriod reads them)
 	}
 	end := m.Data.LastDate
 	for y := end.Year(); y <= end.Year()+1; y++ {

@@ -115,7 +115,7 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	b, c := 0.0, prm.SDSlow*prm.SDSlow
 	y, f := 0.0, 0.0
 	phi2, phiS2, cross := phi*phi, phiS*phiS, phi*phiS
-	quad, prod := 0.0, 1.0
+	quad, prod, lowest := 0.0, 1.0, math.Inf(1)
 	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
@@ -130,6 +130,7 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		}
 		ab, bc := a+b, b+c
 		fv := ab + bc
+		lowest = min(lowest, fv)
 		v := xt - y - f
 		inv := 1 / fv
 		quad += v * v * inv
@@ -146,6 +147,9 @@ func sums1(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		a -= ab * ab * inv
 		b -= ab * bc * inv
 		c -= bc * bc * inv
+	}
+	if !(lowest > 0) {
+		return n, math.Inf(1), quad // degenerate parameters (a variance at or below 0), as run reports them
 	}
 	return n, logOf(prod, exp), quad
 }

@@ -2,6 +2,8 @@
 
 package statespace
 
+import "math"
+
 // sumsAR returns sums(x, month, p) for a fast AR of order 2..5 from the
 // written-out filters below, and ok = false for other orders.
 func sumsAR(x []float64, month []uint8, p Params) (n int, logs, quad float64, ok bool) {
@@ -46,7 +48,7 @@ func sumsAR2(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	p11 = g[0]
 	p22 = prm.SDSlow * prm.SDSlow
 	var a0, a1, a2 float64
-	quad, prod := 0.0, 1.0
+	quad, prod, lowest := 0.0, 1.0, math.Inf(1)
 	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
@@ -72,6 +74,7 @@ func sumsAR2(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		z1 := p01 + p12
 		z2 := p02 + p22
 		f := z0 + z2
+		lowest = min(lowest, f)
 		v := xt - a0 - a2
 		inv := 1 / f
 		quad += v * v * inv
@@ -95,6 +98,9 @@ func sumsAR2(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		p12 -= k1 * z2
 		k2 := z2 * inv
 		p22 -= k2 * z2
+	}
+	if !(lowest > 0) {
+		return n, math.Inf(1), quad // degenerate parameters, as run reports them
 	}
 	return n, logOf(prod, exp), quad
 }
@@ -126,7 +132,7 @@ func sumsAR3(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	p22 = g[0]
 	p33 = prm.SDSlow * prm.SDSlow
 	var a0, a1, a2, a3 float64
-	quad, prod := 0.0, 1.0
+	quad, prod, lowest := 0.0, 1.0, math.Inf(1)
 	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
@@ -159,6 +165,7 @@ func sumsAR3(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		z2 := p02 + p23
 		z3 := p03 + p33
 		f := z0 + z3
+		lowest = min(lowest, f)
 		v := xt - a0 - a3
 		inv := 1 / f
 		quad += v * v * inv
@@ -188,6 +195,9 @@ func sumsAR3(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		p23 -= k2 * z3
 		k3 := z3 * inv
 		p33 -= k3 * z3
+	}
+	if !(lowest > 0) {
+		return n, math.Inf(1), quad // degenerate parameters, as run reports them
 	}
 	return n, logOf(prod, exp), quad
 }
@@ -223,7 +233,7 @@ func sumsAR4(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	p33 = g[0]
 	p44 = prm.SDSlow * prm.SDSlow
 	var a0, a1, a2, a3, a4 float64
-	quad, prod := 0.0, 1.0
+	quad, prod, lowest := 0.0, 1.0, math.Inf(1)
 	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
@@ -264,6 +274,7 @@ func sumsAR4(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		z3 := p03 + p34
 		z4 := p04 + p44
 		f := z0 + z4
+		lowest = min(lowest, f)
 		v := xt - a0 - a4
 		inv := 1 / f
 		quad += v * v * inv
@@ -300,6 +311,9 @@ func sumsAR4(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		p34 -= k3 * z4
 		k4 := z4 * inv
 		p44 -= k4 * z4
+	}
+	if !(lowest > 0) {
+		return n, math.Inf(1), quad // degenerate parameters, as run reports them
 	}
 	return n, logOf(prod, exp), quad
 }
@@ -340,7 +354,7 @@ func sumsAR5(x []float64, month []uint8, prm Params) (int, float64, float64) {
 	p44 = g[0]
 	p55 = prm.SDSlow * prm.SDSlow
 	var a0, a1, a2, a3, a4, a5 float64
-	quad, prod := 0.0, 1.0
+	quad, prod, lowest := 0.0, 1.0, math.Inf(1)
 	n, inBlock, exp := 0, 0, 0
 	for t, xt := range x {
 		if t > 0 {
@@ -390,6 +404,7 @@ func sumsAR5(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		z4 := p04 + p45
 		z5 := p05 + p55
 		f := z0 + z5
+		lowest = min(lowest, f)
 		v := xt - a0 - a5
 		inv := 1 / f
 		quad += v * v * inv
@@ -435,6 +450,9 @@ func sumsAR5(x []float64, month []uint8, prm Params) (int, float64, float64) {
 		k5 := z5 * inv
 		p55 -= k5 * z5
 	}
+	if !(lowest > 0) {
+		return n, math.Inf(1), quad // degenerate parameters, as run reports them
+	}
 	return n, logOf(prod, exp), quad
 }
 
@@ -457,28 +475,28 @@ func sums1x4(x []float64, month []uint8, prm *[4]Params) (n int, logs, quad [4]f
 	b0, c0 := 0.0, prm[0].SDSlow*prm[0].SDSlow
 	y0, f0 := 0.0, 0.0
 	phi20, phiS20, cross0 := phi0*phi0, phiS0*phiS0, phi0*phiS0
-	quad0, exp0, prod0 := 0.0, 0, 1.0
+	quad0, exp0, prod0, lowest0 := 0.0, 0, 1.0, math.Inf(1)
 	phi1, phiS1 := prm[1].Phi[0], prm[1].PhiSlow
 	q1 := prm[1].SDSlow * prm[1].SDSlow * (1 - phiS1*phiS1)
 	a1 := sig2[1][month[0]] / (1 - phi1*phi1)
 	b1, c1 := 0.0, prm[1].SDSlow*prm[1].SDSlow
 	y1, f1 := 0.0, 0.0
 	phi21, phiS21, cross1 := phi1*phi1, phiS1*phiS1, phi1*phiS1
-	quad1, exp1, prod1 := 0.0, 0, 1.0
+	quad1, exp1, prod1, lowest1 := 0.0, 0, 1.0, math.Inf(1)
 	phi2, phiS2 := prm[2].Phi[0], prm[2].PhiSlow
 	q2 := prm[2].SDSlow * prm[2].SDSlow * (1 - phiS2*phiS2)
 	a2 := sig2[2][month[0]] / (1 - phi2*phi2)
 	b2, c2 := 0.0, prm[2].SDSlow*prm[2].SDSlow
 	y2, f2 := 0.0, 0.0
 	phi22, phiS22, cross2 := phi2*phi2, phiS2*phiS2, phi2*phiS2
-	quad2, exp2, prod2 := 0.0, 0, 1.0
+	quad2, exp2, prod2, lowest2 := 0.0, 0, 1.0, math.Inf(1)
 	phi3, phiS3 := prm[3].Phi[0], prm[3].PhiSlow
 	q3 := prm[3].SDSlow * prm[3].SDSlow * (1 - phiS3*phiS3)
 	a3 := sig2[3][month[0]] / (1 - phi3*phi3)
 	b3, c3 := 0.0, prm[3].SDSlow*prm[3].SDSlow
 	y3, f3 := 0.0, 0.0
 	phi23, phiS23, cross3 := phi3*phi3, phiS3*phiS3, phi3*phiS3
-	quad3, exp3, prod3 := 0.0, 0, 1.0
+	quad3, exp3, prod3, lowest3 := 0.0, 0, 1.0, math.Inf(1)
 	s0, s1, s2, s3 := &sig2[0], &sig2[1], &sig2[2], &sig2[3]
 	inBlock := 0
 	for t, xt := range x {
@@ -510,24 +528,28 @@ func sums1x4(x []float64, month []uint8, prm *[4]Params) (n int, logs, quad [4]f
 		}
 		ab0, bc0 := a0+b0, b0+c0
 		fv0 := ab0 + bc0
+		lowest0 = min(lowest0, fv0)
 		v0 := xt - y0 - f0
 		inv0 := 1 / fv0
 		quad0 += v0 * v0 * inv0
 		prod0 *= fv0
 		ab1, bc1 := a1+b1, b1+c1
 		fv1 := ab1 + bc1
+		lowest1 = min(lowest1, fv1)
 		v1 := xt - y1 - f1
 		inv1 := 1 / fv1
 		quad1 += v1 * v1 * inv1
 		prod1 *= fv1
 		ab2, bc2 := a2+b2, b2+c2
 		fv2 := ab2 + bc2
+		lowest2 = min(lowest2, fv2)
 		v2 := xt - y2 - f2
 		inv2 := 1 / fv2
 		quad2 += v2 * v2 * inv2
 		prod2 *= fv2
 		ab3, bc3 := a3+b3, b3+c3
 		fv3 := ab3 + bc3
+		lowest3 = min(lowest3, fv3)
 		v3 := xt - y3 - f3
 		inv3 := 1 / fv3
 		quad3 += v3 * v3 * inv3
@@ -574,5 +596,17 @@ func sums1x4(x []float64, month []uint8, prm *[4]Params) (n int, logs, quad [4]f
 		c3 -= bc3 * bc3 * inv3
 	}
 	logs = [4]float64{logOf(prod0, exp0), logOf(prod1, exp1), logOf(prod2, exp2), logOf(prod3, exp3)}
+	if !(lowest0 > 0) {
+		logs[0] = math.Inf(1) // degenerate parameters, as sums1 reports them
+	}
+	if !(lowest1 > 0) {
+		logs[1] = math.Inf(1) // degenerate parameters, as sums1 reports them
+	}
+	if !(lowest2 > 0) {
+		logs[2] = math.Inf(1) // degenerate parameters, as sums1 reports them
+	}
+	if !(lowest3 > 0) {
+		logs[3] = math.Inf(1) // degenerate parameters, as sums1 reports them
+	}
 	return n, logs, [4]float64{quad0, quad1, quad2, quad3}
 }

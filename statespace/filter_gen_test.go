@@ -44,3 +44,25 @@ func BenchmarkSumsAR3(b *testing.B) {
 		sumsAR(x, month, prm)
 	}
 }
+
+// TestDegenerateVariances: with every σ zero and no slow part the
+// prediction variance is 0; each filter reports a log-likelihood of −∞, as
+// the general filter run does. (The filters also refuse a negative
+// variance, which only rounding in an extreme line-search step could make:
+// a product of variances would otherwise hide two of them.)
+func TestDegenerateVariances(t *testing.T) {
+	x, month := simulate(Params{Phi: []float64{0.7}, Sigma: monthly(2.4)}, 400, 5)
+	for _, phi := range [][]float64{{0.7}, {0.7, 0.1}, {0.6, 0.1, 0.05}} {
+		prm := Params{Phi: phi} // σ all zero
+		if ll := LogLik(x, month, prm); !math.IsInf(ll, -1) {
+			t.Errorf("AR(%d): log-likelihood %v, want −Inf", len(phi), ll)
+		}
+	}
+	four := [4]Params{{Phi: []float64{0.7}}, {Phi: []float64{0.7}, Sigma: monthly(2)}, {Phi: []float64{0.5}}, {Phi: []float64{0.7}, Sigma: monthly(1)}}
+	_, logs, _ := sums1x4(x, month, &four)
+	for k, want := range []bool{true, false, true, false} {
+		if math.IsInf(logs[k], 1) != want {
+			t.Errorf("sums1x4 set %d: Σ log f = %v", k, logs[k])
+		}
+	}
+}

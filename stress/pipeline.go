@@ -439,8 +439,8 @@ func climateReference(ctx context.Context, m *model.File, mix []*model.File, set
 }
 
 // FarYears is how far, in years, a target year may lie beyond the record's
-// end (or before its start) before a run warns that the fitted trend and
-// climate are carried that far.
+// end before a run warns that the fitted trend and climate are carried that
+// far; any target year before the record's start draws the warning.
 const FarYears = 30
 
 // yearWarnings cautions about a target year far from the record.

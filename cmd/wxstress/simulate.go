@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime/debug"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -420,6 +421,14 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	out, err := runPipeline(ctx, job)
 	stop()
 	if errors.Is(err, sim.ErrPeriod) {
+		for _, p := range o.periods {
+			if strings.Contains(err.Error(), strconv.Quote(p)) {
+				return usagef("simulate: %v", err) // a --period of the command line
+			}
+		}
+		if o.hedgeFile != "" {
+			return fmt.Errorf("%s: %w", o.hedgeFile, err) // a contract's period: the file's data
+		}
 		return usagef("simulate: %v", err)
 	}
 	if err != nil {

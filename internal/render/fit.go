@@ -87,8 +87,11 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 				{"with the slow part", Num(c.LogLikWith, 1), Num(c.BICWith, 1), Mark(c.Kept)},
 				{"fast AR alone", Num(c.LogLikWithout, 1), Num(c.BICWithout, 1), Mark(!c.Kept)},
 			})
-			e.printf("%s\n", Wrap(fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary); "+
-				"with the slow part the model's sd of 365-day means is %s wider", c.LR, PValue(c.P), numfmt.Percent(c.AnnualSpreadGain)), "    "))
+			line := fmt.Sprintf("  likelihood ratio %.2f, p-value %s (from ½χ²₁ + ½χ²₂: s_F = 0 lies on the boundary)", c.LR, PValue(c.P))
+			if c.AnnualSpreadGain != 0 { // 0: not computed (no 365-day windows, or an older model file)
+				line += "; with the slow part the model's sd of 365-day means is " + numfmt.Percent(c.AnnualSpreadGain) + " wider"
+			}
+			e.printf("%s\n", Wrap(line, "    "))
 		}
 	}
 	if dg != nil {

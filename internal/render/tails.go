@@ -1,6 +1,7 @@
 package render
 
 import (
+	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -438,7 +439,9 @@ func csvManifest(w io.Writer, m Manifest) error {
 		return err
 	}
 	var kv map[string]any
-	json.Unmarshal(b, &kv)
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber() // numbers as written (a seed of 20240101, not 2.0240101e+07)
+	dec.Decode(&kv)
 	e := &errWriter{w: w}
 	if m.RunID != "" {
 		e.printf("# run_id: %s\n", m.RunID)

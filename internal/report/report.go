@@ -444,10 +444,13 @@ func paramRows(m *model.File) [][2]string {
 		rows = append(rows, [2]string{"slow part F", "none"})
 	}
 	if c := m.Diagnostics; c != nil && c.SlowChoice != nil {
+		gain := ""
+		if g := c.SlowChoice.AnnualSpreadGain; g != 0 { // 0: not computed
+			gain = "; with it the model's sd of 365-day means is " + numfmt.Percent(g) + " wider"
+		}
 		rows = append(rows, [2]string{"slow part: choice", fmt.Sprintf("%s (likelihood ratio %.2f, p-value %s against ½χ²₁ + ½χ²₂; "+
-			"BIC %s with, %s without; with it the model's sd of 365-day means is %s wider)", c.SlowChoice.Rule, c.SlowChoice.LR,
-			render.PValue(c.SlowChoice.P), render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1),
-			numfmt.Percent(c.SlowChoice.AnnualSpreadGain))})
+			"BIC %s with, %s without%s)", c.SlowChoice.Rule, c.SlowChoice.LR,
+			render.PValue(c.SlowChoice.P), render.Num(c.SlowChoice.BICWith, 1), render.Num(c.SlowChoice.BICWithout, 1), gain)})
 	}
 	var sig []string
 	for k, v := range m.Volatility.Monthly {

@@ -41,6 +41,8 @@ func generate() ([]byte, error) {
 
 package statespace
 
+import "math"
+
 // sumsAR returns sums(x, month, p) for a fast AR of order 2..5 from the
 // written-out filters below, and ok = false for other orders.
 func sumsAR(x []float64, month []uint8, p Params) (n int, logs, quad float64, ok bool) {
@@ -116,7 +118,7 @@ func writeFilter(b *bytes.Buffer, q int) {
 		as = append(as, fmt.Sprintf("a%d", i))
 	}
 	w("\tvar %s float64", strings.Join(as, ", "))
-	w("\tquad, prod := 0.0, 1.0")
+	w("\tquad, prod, lowest := 0.0, 1.0, math.Inf(1)")
 	w("\tn, inBlock, exp := 0, 0, 0")
 	w("\tfor t, xt := range x {")
 	w("\t\tif t > 0 {")
@@ -166,6 +168,7 @@ func writeFilter(b *bytes.Buffer, q int) {
 		w("\t\tz%d := %s + %s", i, P(i, 0), P(i, s))
 	}
 	w("\t\tf := z0 + z%d", s)
+	w("\t\tlowest = min(lowest, f)")
 	w("\t\tv := xt - a0 - a%d", s)
 	w("\t\tinv := 1 / f")
 	w("\t\tquad += v * v * inv")
@@ -183,6 +186,7 @@ func writeFilter(b *bytes.Buffer, q int) {
 		}
 	}
 	w("\t}")
+	w("\tif !(lowest > 0) {\n\t\treturn n, math.Inf(1), quad // degenerate parameters, as run reports them\n\t}")
 	w("\treturn n, logOf(prod, exp), quad")
 	w("}")
 }
@@ -217,7 +221,7 @@ func writeSums1x(b *bytes.Buffer, k int) {
 	b%[1]d, c%[1]d := 0.0, prm[%[1]d].SDSlow*prm[%[1]d].SDSlow
 	y%[1]d, f%[1]d := 0.0, 0.0
 	phi2%[1]d, phiS2%[1]d, cross%[1]d := phi%[1]d*phi%[1]d, phiS%[1]d*phiS%[1]d, phi%[1]d*phiS%[1]d
-	quad%[1]d, exp%[1]d, prod%[1]d := 0.0, 0, 1.0`)
+	quad%[1]d, exp%[1]d, prod%[1]d, lowest%[1]d := 0.0, 0, 1.0, math.Inf(1)`)
 	w("\t%s := %s", list("s%d"), list("&sig2[%d]"))
 	w("\tinBlock := 0")
 	w("\tfor t, xt := range x {")
@@ -232,6 +236,7 @@ func writeSums1x(b *bytes.Buffer, k int) {
 	w("\t\tif xt != xt { // NaN: missing\n\t\t\tcontinue\n\t\t}")
 	each(`		ab%[1]d, bc%[1]d := a%[1]d+b%[1]d, b%[1]d+c%[1]d
 		fv%[1]d := ab%[1]d + bc%[1]d
+		lowest%[1]d = min(lowest%[1]d, fv%[1]d)
 		v%[1]d := xt - y%[1]d - f%[1]d
 		inv%[1]d := 1 / fv%[1]d
 		quad%[1]d += v%[1]d * v%[1]d * inv%[1]d
@@ -250,6 +255,9 @@ func writeSums1x(b *bytes.Buffer, k int) {
 		c%[1]d -= bc%[1]d * bc%[1]d * inv%[1]d`)
 	w("\t}")
 	w("\tlogs = [%d]float64{%s}", k, list("logOf(prod%[1]d, exp%[1]d)"))
+	each(`	if !(lowest%[1]d > 0) {
+		logs[%[1]d] = math.Inf(1) // degenerate parameters, as sums1 reports them
+	}`)
 	w("\treturn n, logs, [%d]float64{%s}", k, list("quad%d"))
 	w("}")
 }
