@@ -314,3 +314,28 @@ func TestConstantRecordRefused(t *testing.T) {
 		t.Errorf("constant record: %v", err)
 	}
 }
+
+// TestShortRealRecordsCautioned fits the two real 4-year records (NOAA,
+// New York and Seattle 2012–2015, testdata/noaa): with the default choices
+// each keeps a slow part (e-folding times of months, from 4 winters), and
+// the fit must say that it rests on too short a record.
+func TestShortRealRecordsCautioned(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits two records")
+	}
+	t.Parallel()
+	for _, city := range []string{"new_york", "seattle"} {
+		s, err := ReadFile("../testdata/noaa/"+city+".csv", ReadOptions{Units: Celsius})
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := Fit(s, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		a := res.Model.Diagnostics.SlowAdvice
+		if res.Model.Slow == nil || !strings.Contains(a, "the slow part rests on 4.0 years") {
+			t.Errorf("%s: slow part %+v, advice %q", city, res.Model.Slow, a)
+		}
+	}
+}
