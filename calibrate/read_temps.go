@@ -313,7 +313,12 @@ func (p *tempParser) series() (*Series, error) {
 			"%d days without values from %v to %v: the fit skips them, and the seasons they fall in are left out of "+
 				"the record's own seasons (--history, backtest)", n, s.Date(from), s.Date(from+n-1)))
 	}
-	if k := len(p.dates) - 1 - last; k > 0 {
+	switch k := len(p.dates) - 1 - last; {
+	case k == 1:
+		s.Warnings = append(s.Warnings, fmt.Sprintf(
+			"the last row (%v) has no value: the record ends on %v, the day a conditional start takes its state from",
+			p.dates[last+1], p.dates[last]))
+	case k > 1:
 		s.Warnings = append(s.Warnings, fmt.Sprintf(
 			"the last %d rows (%v to %v) have no value: the record ends on %v, the day a conditional start takes its state from",
 			k, p.dates[last+1], p.dates[len(p.dates)-1], p.dates[last]))

@@ -12,6 +12,7 @@ import (
 	"wxstress/calendar"
 	"wxstress/calibrate"
 	"wxstress/hedge"
+	"wxstress/internal/numfmt"
 	"wxstress/model"
 	"wxstress/scenarios"
 	"wxstress/sim"
@@ -245,6 +246,11 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		if err := job.holidays(res, &cfg); err != nil {
 			return nil, err
 		}
+		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
+				"has no holidays (--holidays FILE gives them): its years are simulated without any",
+				numfmt.Number(res.Demand.Holiday), res.Demand.Unit))
+		}
 		if job.Growth != 0 {
 			if !(job.Growth > -50 && job.Growth < 100) {
 				return nil, fmt.Errorf("%w: demand growth %v %% a year: want −50 to 100", ErrJob, job.Growth)
@@ -456,7 +462,11 @@ func yearWarnings(m *model.File, year int) []string {
 	default:
 		return nil
 	}
-	w := fmt.Sprintf("the target year %d is %d years %s (%d–%d): ", year, gap, where, first, last)
+	years := "years"
+	if gap == 1 {
+		years = "year"
+	}
+	w := fmt.Sprintf("the target year %d is %d %s %s (%d–%d): ", year, gap, years, where, first, last)
 	if m.Trend.Kind == "linear" && m.Trend.SlopePerYear != 0 {
 		w += fmt.Sprintf("the fitted trend (%+.2f °%s a decade) is carried that far; treat its level as an extrapolation",
 			10*m.Trend.SlopePerYear, m.Data.Units)

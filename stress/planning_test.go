@@ -213,6 +213,12 @@ func TestRunWarnings(t *testing.T) {
 	if ws := run(job); !has(ws, "the target year 2070 is 45 years after the record's end (1955–2025)") {
 		t.Errorf("target year 2070: %q", ws)
 	}
+	// A demand model with a holiday effect, run without holidays.
+	job = &Job{Model: res.Model, Demand: res.Demand, Config: sim.Config{Paths: 200, Seed: 5, Year: 2026,
+		Periods: []string{"year"}, Bases: sim.BasesFor(model.Celsius)}}
+	if ws := run(job); res.Demand.Holiday != 0 && !has(ws, "but this run has no holidays") {
+		t.Errorf("demand model with a holiday effect run without holidays: %q", ws)
+	}
 	other := *res.Demand
 	other.Data.TemperatureSHA256, other.Data.TemperatureFile = "0123", "elsewhere.csv"
 	job = &Job{Model: res.Model, Demand: &other, Config: sim.Config{Paths: 200, Seed: 5, Year: 2026,

@@ -75,8 +75,11 @@ func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
 // oneIn writes a probability as a return period in years: "137", or
 // "more than N" when no simulated year was as bad.
 func oneIn(p float64) string {
-	if p <= 0 {
+	switch {
+	case p <= 0:
 		return "more than the paths run"
+	case p >= 0.5:
+		return "2 or less: not rare"
 	}
 	return numfmt.Number(float64(int(1/p + 0.5)))
 }

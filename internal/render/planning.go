@@ -82,6 +82,10 @@ func writePlanning(e *errWriter, r *SimReport) {
 			header = append(header, fmt.Sprintf("P%.0f", 100*q))
 		}
 		e.table(header, rows)
+		if !slices.Contains(r.Manifest.Periods, "year") {
+			e.printf("%s\n", Wrap("  The curve is the calendar year's, simulated for it over the run's periods and the year: "+
+				"its busiest day is the year's peak, not the peak of the periods above, and its paths start from another day.", "  "))
+		}
 	}
 	writeNormals(e, p.Normals, p.Unit)
 }

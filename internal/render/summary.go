@@ -94,8 +94,8 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	}
 	for _, o := range r.InSeason {
 		if o.Days > 0 {
-			sm.Run = append(sm.Run, fmt.Sprintf("Season under way: %s, %d days observed, HDD so far %s", o.Period, o.Days,
-				numfmt.Fixed(o.Values[sim.HDD], 0)))
+			sm.Run = append(sm.Run, fmt.Sprintf("Season under way: %s, %d days observed, HDD so far %s °%s·day", o.Period, o.Days,
+				numfmt.Fixed(o.Values[sim.HDD], 0), mf.Units))
 		}
 	}
 
@@ -167,7 +167,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	}
 	for _, c := range bindingCapacities(r.Capacities) {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s", capacityWords(c.Target), c.Period,
-			numfmt.ValueSE(c.Capacity, c.SE), peakUnit))
+			cell2(c.Capacity, c.SE), peakUnit))
 	}
 	if h := r.Hedge; h != nil {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges %s",

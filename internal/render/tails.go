@@ -481,8 +481,8 @@ func GrowthLine(m Manifest) string {
 	if m.DemandGrowth == 0 {
 		return ""
 	}
-	return fmt.Sprintf("Demand grown by %s %% a year to %d: scaled by %s", numfmt.Number(m.DemandGrowthPerCent), m.Year,
-		numfmt.Fixed(m.DemandGrowth, 3))
+	return fmt.Sprintf("Demand growth of %s %% a year, applied to %d: demand scaled by %s", numfmt.Number(m.DemandGrowthPerCent),
+		m.Year, numfmt.Fixed(m.DemandGrowth, 3))
 }
 
 // SimTables writes one terminal table per period: statistics down, indices
