@@ -81,17 +81,7 @@ func writeFilter(b *bytes.Buffer, q int) {
 	w("// (absent when its variance is 0: its entries then stay 0), sums only.")
 	w("func sumsAR%d(x []float64, month []uint8, prm Params) (int, float64, float64) {", q)
 	w("\tif len(x) == 0 {\n\t\treturn 0, 0, 0\n\t}")
-	var phis []string
-	for k := range q {
-		phis = append(phis, fmt.Sprintf("f%d", k))
-	}
-	w("\t%s := %s", strings.Join(phis, ", "), strings.Join(func() []string {
-		var o []string
-		for k := range q {
-			o = append(o, fmt.Sprintf("prm.Phi[%d]", k))
-		}
-		return o
-	}(), ", "))
+	w("\t%s := %s", joined(q, "f%d", ", "), joined(q, "prm.Phi[%d]", ", "))
 	w("\tvar sig2 [12]float64")
 	w("\tfor i, sg := range prm.Sigma {\n\t\tsig2[i] = sg * sg\n\t}")
 	w("\tphiS := 0.0\n\tif prm.HasSlow() {\n\t\tphiS = prm.PhiSlow\n\t}")
@@ -113,21 +103,13 @@ func writeFilter(b *bytes.Buffer, q int) {
 		}
 	}
 	w("\t%s = prm.SDSlow * prm.SDSlow", P(s, s))
-	var as []string
-	for i := range m {
-		as = append(as, fmt.Sprintf("a%d", i))
-	}
-	w("\tvar %s float64", strings.Join(as, ", "))
+	w("\tvar %s float64", joined(m, "a%d", ", "))
 	w("\tquad, prod, lowest := 0.0, 1.0, math.Inf(1)")
 	w("\tn, inBlock, exp := 0, 0, 0")
 	w("\tfor t, xt := range x {")
 	w("\t\tif t > 0 {")
 	// State prediction.
-	var terms []string
-	for k := range q {
-		terms = append(terms, fmt.Sprintf("f%d*a%d", k, k))
-	}
-	w("\t\t\ty := %s", strings.Join(terms, " + "))
+	w("\t\t\ty := %s", joined(q, "f%[1]d*a%[1]d", " + "))
 	for i := q - 1; i > 0; i-- {
 		w("\t\t\ta%d = a%d", i, i-1)
 	}
@@ -135,17 +117,13 @@ func writeFilter(b *bytes.Buffer, q int) {
 	w("\t\t\ta%d *= phiS", s)
 	// r_j = Σ_k φ_k P[k][j], j = 0..q.
 	for j := range m {
-		terms = terms[:0]
+		var terms []string
 		for k := range q {
 			terms = append(terms, fmt.Sprintf("f%d*%s", k, P(k, j)))
 		}
 		w("\t\t\tr%d := %s", j, strings.Join(terms, " + "))
 	}
-	terms = terms[:0]
-	for k := range q {
-		terms = append(terms, fmt.Sprintf("f%d*r%d", k, k))
-	}
-	w("\t\t\tcorner := %s", strings.Join(terms, " + "))
+	w("\t\t\tcorner := %s", joined(q, "f%[1]d*r%[1]d", " + "))
 	// Shift the lag block down the diagonal (from the bottom right, so
 	// that every source is read before it is overwritten).
 	for i := q - 1; i > 0; i-- {
@@ -201,13 +179,7 @@ func writeSums1x(b *bytes.Buffer, k int) {
 			w(format, j)
 		}
 	}
-	list := func(format string) string {
-		var o []string
-		for j := range k {
-			o = append(o, fmt.Sprintf(format, j))
-		}
-		return strings.Join(o, ", ")
-	}
+	list := func(format string) string { return joined(k, format, ", ") }
 	w("")
 	w("// sums1x%d is sums1 for %d parameter sets at once, with the same arithmetic", k, k)
 	w("// per set in the same order, so that each result is sums1's to the bit.")
@@ -260,4 +232,14 @@ func writeSums1x(b *bytes.Buffer, k int) {
 	}`)
 	w("\treturn n, logs, [%d]float64{%s}", k, list("quad%d"))
 	w("}")
+}
+
+// joined formats 0..n−1 with format (which may use %[1]d more than once)
+// and joins the results with sep.
+func joined(n int, format, sep string) string {
+	o := make([]string, n)
+	for i := range o {
+		o[i] = fmt.Sprintf(format, i)
+	}
+	return strings.Join(o, sep)
 }
