@@ -686,7 +686,7 @@ func shortSlowAdvice(sl *model.Slow, days int, units string) string {
 	}
 	return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd (%.2f ± %.2f °%s) "+
 		"and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward, are poorly "+
-		"determined; compare with --slow none, and prefer a climate start", years, spans, sl.EFoldingDays,
+		"determined; compare with --slow none (a climate start, --start climate, does not use that state)", years, spans, sl.EFoldingDays,
 		sl.SD, sl.SDSE, units, sl.State, sl.StateSD, units)
 }
 

@@ -12,6 +12,8 @@ import (
 	"os/signal"
 	"strings"
 	"syscall"
+
+	"wxstress/stress"
 )
 
 // version is the tool version written into every output's manifest.
@@ -119,6 +121,10 @@ func exitCode(err error, ctx context.Context, stderr io.Writer) int {
 		return exitInterrupted
 	case errors.As(err, &ue):
 		fmt.Fprintf(stderr, "wxstress: %s\n(run 'wxstress help' for usage)\n", cleanMessage(err.Error()))
+		return exitUsage
+	case errors.Is(err, stress.ErrJob): // inputs that do not go together: how the tool was called
+		msg := strings.Replace(cleanMessage(err.Error()), strings.TrimPrefix(stress.ErrJob.Error(), "stress: ")+": ", "", 1)
+		fmt.Fprintf(stderr, "wxstress: %s\n(run 'wxstress help' for usage)\n", msg)
 		return exitUsage
 	}
 	fmt.Fprintf(stderr, "wxstress: %s\n", cleanMessage(err.Error()))

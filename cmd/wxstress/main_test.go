@@ -111,6 +111,28 @@ func TestExitCodes(t *testing.T) {
 	}
 }
 
+// TestJobErrorsAreUsage checks that inputs which do not go together, found
+// only once the pipeline has read them (stress.ErrJob), exit 2 like the
+// other usage errors: here an observed record that ends before the model's
+// data.
+func TestJobErrorsAreUsage(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	src, err := os.ReadFile("../../demo/kestrel_bay_daily.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(string(src), "\n")
+	short := filepath.Join(t.TempDir(), "short.csv")
+	os.WriteFile(short, []byte(strings.Join(lines[:20000], "")), 0o644)
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--observed", short,
+		"--start", "conditional", "--period", "heating", "--paths", "100")
+	if code != exitUsage || !strings.Contains(stderr, "wxstress: the observed record ends on 2009-10-02, before the model's data end") ||
+		strings.Contains(stderr, "bad job") {
+		t.Errorf("exit %d, stderr %q: want exit 2 and the reason without the error's kind", code, stderr)
+	}
+}
+
 func TestFitReportsPositionedErrors(t *testing.T) {
 	t.Parallel()
 	p := filepath.Join(t.TempDir(), "bad.csv")
