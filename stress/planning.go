@@ -9,6 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/stat"
 
+	"wxstress/evidence"
 	"wxstress/sim"
 )
 
@@ -148,8 +149,12 @@ func ParseCapacityTarget(s string) (CapacityTarget, error) {
 
 // CapacityRow is a solved capacity: the least capacity that meets the
 // target over the simulated years, the target's value achieved at it, and
-// the capacity's Monte Carlo standard error (the spread of the solutions
-// of capacityBatches batches of paths, over √batches).
+// the capacity's Monte Carlo standard error. A peak or any target's
+// capacity is a quantile of the paths' peak days, and its error is the
+// tail tables' order-statistic one (so a peak:1-in-T capacity has the
+// design-day demand's error as well as its value); a days target's is the
+// spread of the solutions of capacityBatches batches of paths, over
+// √batches.
 type CapacityRow struct {
 	Target   string
 	Period   string
@@ -177,7 +182,9 @@ func solveCapacities(res *sim.Result, targets []CapacityTarget) []CapacityRow {
 			c := solveOne(top, k, 0, n, t)
 			row := CapacityRow{Target: t.Text, Period: period.Name, Capacity: c}
 			row.Achieved, row.Saturated = achieved(top, k, 0, n, t, c)
-			if n >= 10*capacityBatches {
+			if p, ok := t.peakQuantile(); ok {
+				row.SE = evidence.QuantileSorted(sortedPeaks(top, k, 0, n), p).SE
+			} else if n >= 10*capacityBatches {
 				var sols []float64
 				for b := range capacityBatches {
 					lo, hi := b*n/capacityBatches, (b+1)*n/capacityBatches
@@ -193,19 +200,34 @@ func solveCapacities(res *sim.Result, targets []CapacityTarget) []CapacityRow {
 	return out
 }
 
-// solveOne solves target t on paths lo..hi.
-func solveOne(top []float32, k, lo, hi int, t CapacityTarget) float64 {
-	n := hi - lo
-	peaks := make([]float64, n)
-	for i := range n {
+// peakQuantile returns the quantile of the paths' peak days that solves a
+// peak or any target, and false for a days target.
+func (t CapacityTarget) peakQuantile() (float64, bool) {
+	switch t.Kind {
+	case "peak":
+		return 1 - 1/t.Value, true
+	case "any":
+		return 1 - t.Value, true
+	}
+	return 0, false
+}
+
+// sortedPeaks returns the peak days of paths lo..hi, ascending.
+func sortedPeaks(top []float32, k, lo, hi int) []float64 {
+	peaks := make([]float64, hi-lo)
+	for i := range peaks {
 		peaks[i] = float64(top[(lo+i)*k])
 	}
 	slices.Sort(peaks)
-	switch t.Kind {
-	case "peak":
-		return stat.Quantile(1-1/t.Value, stat.LinInterp, peaks, nil)
-	case "any":
-		return stat.Quantile(1-t.Value, stat.LinInterp, peaks, nil)
+	return peaks
+}
+
+// solveOne solves target t on paths lo..hi.
+func solveOne(top []float32, k, lo, hi int, t CapacityTarget) float64 {
+	n := hi - lo
+	peaks := sortedPeaks(top, k, lo, hi)
+	if p, ok := t.peakQuantile(); ok {
+		return stat.Quantile(p, stat.LinInterp, peaks, nil)
 	}
 	// days: the mean count over C falls as C rises; bisect for the least C
 	// with a mean of at most x.

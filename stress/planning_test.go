@@ -54,10 +54,10 @@ func TestCapacityTargets(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var peak20 float64
+	var peak20, peak20SE float64
 	for _, r := range res.Set.Rows {
 		if r.Index == sim.PeakDemand {
-			peak20 = r.Tail.ReturnLevel(20)
+			peak20, peak20SE = r.Tail.ReturnLevel(20), r.Tail.ReturnLevelError(20)
 		}
 	}
 	caps := map[string]CapacityRow{}
@@ -67,6 +67,14 @@ func TestCapacityTargets(t *testing.T) {
 	}
 	if c := caps["peak:1-in-20"]; math.Abs(c.Capacity-peak20) > 1e-5*peak20 {
 		t.Errorf("peak:1-in-20 capacity %.2f, the 1-in-20 peak-day demand is %.2f", c.Capacity, peak20)
+	}
+	// The same quantity carries the same Monte Carlo error in the design
+	// table and the capacity table (up to the float32 of the kept days).
+	if c := caps["peak:1-in-20"]; !(math.Abs(c.SE-peak20SE) <= 1e-4*peak20SE) {
+		t.Errorf("peak:1-in-20 capacity ± %.2f, the 1-in-20 peak-day demand ± %.2f", c.SE, peak20SE)
+	}
+	if c := caps["days:1"]; !(c.SE > 0) {
+		t.Errorf("days:1 capacity without a batch error: %v", c.SE)
 	}
 	if c := caps["any:0.1"]; math.Abs(c.Achieved-0.1) > 0.002 {
 		t.Errorf("any:0.1 achieves %.4f", c.Achieved)
