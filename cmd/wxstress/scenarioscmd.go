@@ -9,6 +9,7 @@ import (
 
 	"github.com/spf13/pflag"
 
+	"wxstress/internal/render"
 	"wxstress/scenarios"
 	"wxstress/sim"
 )
@@ -87,12 +88,12 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 	}
 	for _, s := range list {
 		if s.Description != "" {
-			fmt.Fprintf(stdout, "\n%s — %s\n", s.Name, s.Description)
+			fmt.Fprintf(stdout, "\n%s\n", render.Wrap(s.Name+" — "+s.Description, "  "))
 		} else {
 			fmt.Fprintf(stdout, "\n%s\n", s.Name)
 		}
 		for _, line := range describe(s) {
-			fmt.Fprintf(stdout, "  • %s\n", line)
+			fmt.Fprintf(stdout, "%s\n", render.Wrap("  • "+line, "    "))
 		}
 	}
 	return nil

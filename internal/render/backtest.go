@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"strings"
 
 	"wxstress/backtest"
 	"wxstress/internal/numfmt"
@@ -32,7 +33,7 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e.table([]string{"index", "period", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",
 		"CRPS model", "CRPS climatology"}, rows)
 	for _, row := range r.Rows {
-		e.printf("%s\n", Wrap(fmt.Sprintf("  %s, %s: %s", row.Index.Info().Name, row.Period, row.Evidence.Verdict), "    "))
+		e.printf("%s\n", Wrap(fmt.Sprintf("  %s, %s: %s", row.Index.Info().Name, row.Period, strings.ReplaceAll(row.Evidence.Verdict, "(expected ", "(expected"+Glue)), "    "))
 	}
 	e.printf("\n%s\n", Wrap("A calibrated model puts about half the realised values inside its central 50 % band and nine in "+
 		"ten inside its 90 % band; the sd of probit(PIT), taken about its own mean, is then about 1 (above 1: too "+

@@ -41,7 +41,7 @@ func HedgeTables(h *hedge.Result, f *hedge.File) (contracts, position [][]string
 	position = append(position, row("unhedged", h.Unhedged), row("hedged as in the file", h.Hedged))
 	for _, c := range h.Contracts {
 		if q := c.MinVar.Quantity; !math.IsNaN(q) {
-			position = append(position, row(fmt.Sprintf("%s alone at the minimum-variance quantity %.2f", c.Contract.Name, q), c.MinVar.Net))
+			position = append(position, row(fmt.Sprintf("%s alone, × %.2f", c.Contract.Name, q), c.MinVar.Net))
 		}
 	}
 	return contracts, position, contractHead, positionHead
@@ -56,10 +56,13 @@ func writeHedge(e *errWriter, r *SimReport) {
 	e.printf("\nHedges (a statistical evaluation on the simulated years, not a price quote or advice)\n")
 	if len(contracts) > 0 {
 		e.table(ch, contracts)
-		e.printf("  Payouts are for one contract bought; the burn price is the mean payout over the record's seasons moved\n" +
-			"  to the target year's trend level.\n")
+		e.printf("  Payouts are for one contract bought; the burn price is the mean payout over the record's seasons " +
+			"moved to the target year's trend level.\n")
 	}
 	e.table(ph, position)
+	if len(position) > 2 {
+		e.printf("  \"alone, × q\": that contract without the others, at its minimum-variance quantity q.\n")
+	}
 	if !math.IsNaN(r.Hedge.VarianceReduction) {
 		e.printf("  The hedges in the file %s.\n", VarianceChange(r.Hedge.VarianceReduction, "the net cost's variance"))
 	}

@@ -61,8 +61,8 @@ func writePlanning(e *errWriter, r *SimReport) {
 		rows = append(rows, []string{l.Period, Num(l.P50, 0), Num(l.P90, 0), Num(l.In20, 0), Num(l.In50, 0), Num(l.Max, 0)})
 	}
 	e.table([]string{"period", "50/50 (P50)", "90/10 (P90)", "1-in-20", "1-in-50", "ES 99%"}, rows)
-	e.printf("  50/50 and 90/10: the peak exceeded in one year in two and in one in ten (common practice in\n" +
-		"  resource planning); 1-in-20 and 1-in-50: the levels gas network planning sizes to (common practice).\n")
+	e.printf("  50/50 and 90/10: the peak exceeded in one year in two and in one in ten (common practice in " +
+		"resource planning); 1-in-20 and 1-in-50: the levels gas network planning sizes to (common practice).\n")
 	if p.LoadDuration != nil {
 		e.printf("\nLoad-duration curve of %d (the n-th highest day of the year, %s paths; %s)\n",
 			r.Manifest.Year, numfmt.Number(float64(p.LoadDurationPaths)), p.Unit)
@@ -109,11 +109,12 @@ func writeNormals(e *errWriter, normals []sim.YearNormal, unit string) {
 		rows = append(rows, []string{fmt.Sprint(y.Year), fmt.Sprint(y.Days), Num(y.Actual, 0), Num(y.AtActualWeather, 0),
 			Num(y.AtNormalWeather, 0), Num(y.Normalized, 0), fmt.Sprintf("%+.1f%%", 100*(y.Actual/y.Normalized-1))})
 	}
-	e.table([]string{"year", "days", "actual", "model, actual weather", "model, normal weather", "weather-normalized",
+	e.table([]string{"year", "days", "actual", "model, actual", "model, normal", "weather-normalized",
 		"weather effect"}, rows)
-	e.printf("%s\n", Wrap("  weather-normalized = actual − model at the actual weather + model at normal weather (the mean "+
-		"over climatological simulations of that year, with the trend at that year and the same calendar); weather effect "+
-		"= actual / weather-normalized − 1, the share of the year's demand its weather added (+) or saved (−)", "  "))
+	e.printf("%s\n", Wrap("  model, actual and model, normal: the demand model at the year's actual weather and at normal "+
+		"weather (the mean over climatological simulations of that year, with the trend at that year and the same calendar); "+
+		"weather-normalized = actual − model, actual + model, normal; weather effect = actual / weather-normalized − 1, "+
+		"the share of the year's demand its weather added (+) or saved (−)", "  "))
 }
 
 // EnergyUnit is the unit of a period's energy for daily loads in unit

@@ -1,9 +1,11 @@
 package render
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"unicode/utf8"
 
@@ -14,8 +16,81 @@ import (
 )
 
 // table writes a boxed terminal table with the header as given and the
-// body right-aligned except its first column.
+// body right-aligned except its first column. A table wider than wrapWidth
+// is written as several, each with the row's key (the first column, and
+// the period beside it) and as many of the other columns as fit.
 func table(w io.Writer, header []string, rows [][]string) error {
+	var b bytes.Buffer
+	if err := boxed(&b, header, rows); err != nil {
+		return err
+	}
+	keys := 1
+	if len(header) > 1 && header[1] == "period" {
+		keys = 2
+	}
+	if width(b.String()) <= wrapWidth || len(header) <= keys+1 {
+		_, err := w.Write(b.Bytes())
+		return err
+	}
+	pick := func(cols []int) ([]string, [][]string) {
+		h := make([]string, len(cols))
+		for i, c := range cols {
+			h[i] = header[c]
+		}
+		rs := make([][]string, len(rows))
+		for r, row := range rows {
+			rs[r] = make([]string, len(cols))
+			for i, c := range cols {
+				if c < len(row) {
+					rs[r][i] = row[c]
+				}
+			}
+		}
+		return h, rs
+	}
+	var key []int
+	for c := range keys {
+		key = append(key, c)
+	}
+	for next := keys; next < len(header); {
+		// As many further columns as fit (at least one).
+		cols := append(slices.Clone(key), next)
+		next++
+		var part bytes.Buffer
+		h, rs := pick(cols)
+		if err := boxed(&part, h, rs); err != nil {
+			return err
+		}
+		for next < len(header) {
+			var wider bytes.Buffer
+			h, rs := pick(append(slices.Clone(cols), next))
+			if err := boxed(&wider, h, rs); err != nil {
+				return err
+			}
+			if width(wider.String()) > wrapWidth {
+				break
+			}
+			cols, part = append(cols, next), wider
+			next++
+		}
+		if _, err := w.Write(part.Bytes()); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// width is the widest line of s, in runes.
+func width(s string) int {
+	n := 0
+	for line := range strings.SplitSeq(s, "\n") {
+		n = max(n, utf8.RuneCountInString(line))
+	}
+	return n
+}
+
+// boxed renders one table (table's layout, unsplit).
+func boxed(w io.Writer, header []string, rows [][]string) error {
 	align := make([]tw.Align, len(header))
 	for i := range align {
 		align[i] = tw.AlignRight
@@ -76,10 +151,29 @@ type errWriter struct {
 	err error
 }
 
+// printf writes a formatted text, breaking its prose lines longer than
+// wrapWidth (not the lines of tables) at spaces, each continuation indented
+// two columns past its line.
 func (e *errWriter) printf(format string, a ...any) {
-	if e.err == nil {
-		_, e.err = fmt.Fprintf(e.w, format, a...)
+	if e.err != nil {
+		return
 	}
+	s := fmt.Sprintf(format, a...)
+	if width(s) > wrapWidth || strings.Contains(s, Glue) {
+		var b strings.Builder
+		for line := range strings.SplitAfterSeq(s, "\n") {
+			text := strings.TrimSuffix(line, "\n")
+			body := strings.TrimLeft(text, " ")
+			if utf8.RuneCountInString(text) <= wrapWidth || strings.ContainsAny(body[:min(len(body), 3)], "┌│├└") {
+				b.WriteString(strings.ReplaceAll(line, Glue, " "))
+				continue
+			}
+			b.WriteString(wrap(text, wrapWidth, text[:len(text)-len(body)]+"  "))
+			b.WriteString(line[len(text):])
+		}
+		s = b.String()
+	}
+	_, e.err = io.WriteString(e.w, s)
 }
 
 func (e *errWriter) table(header []string, rows [][]string) {
@@ -91,19 +185,40 @@ func (e *errWriter) table(header []string, rows [][]string) {
 // wrapWidth is the column at which prose lines of the terminal output break.
 const wrapWidth = 100
 
-// wrap breaks text at spaces into lines of at most width columns (a word
-// longer than width stands alone), starting every line after the first with
-// indent.
 // Glue joins words that wrap must keep on one line (a value and its unit);
 // it prints as a space.
 const Glue = "\u00a0"
 
+// glueUnits joins to its neighbour each word wrap must not stand alone at a
+// line's start or end: a unit of degrees or a per cent sign goes with the
+// number before it ("+0.174 °C/decade", "5 %"), a "±" with the error after
+// it.
+func glueUnits(words []string) []string {
+	out := words[:0:0]
+	for i := 0; i < len(words); i++ {
+		w := words[i]
+		if w == "±" && i+1 < len(words) {
+			w += Glue + words[i+1]
+			i++
+		}
+		if n := len(out); n > 0 && (strings.HasPrefix(w, "°") || w == "%" || strings.HasPrefix(w, "%")) {
+			out[n-1] += Glue + w
+			continue
+		}
+		out = append(out, w)
+	}
+	return out
+}
+
+// wrap breaks text at spaces into lines of at most width columns (a word
+// longer than width stands alone), starting every line after the first with
+// indent.
 func wrap(text string, width int, indent string) string {
 	var b strings.Builder
 	lead := text[:len(text)-len(strings.TrimLeft(text, " "))]
 	b.WriteString(lead)
 	col := len(lead)
-	for i, word := range strings.FieldsFunc(text, func(r rune) bool { return r == ' ' || r == '\t' || r == '\n' }) {
+	for i, word := range glueUnits(strings.FieldsFunc(text, func(r rune) bool { return r == ' ' || r == '\t' || r == '\n' })) {
 		word = strings.ReplaceAll(word, Glue, " ")
 		n := utf8.RuneCountInString(word)
 		switch {

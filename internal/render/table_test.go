@@ -82,3 +82,114 @@ func TestWrapKeepsGluedWords(t *testing.T) {
 		t.Errorf("got %q, want %q", got, want)
 	}
 }
+
+// TestWideTableSplits checks that a table wider than the terminal's 100
+// columns is written as several that fit, each with the rows' key (the
+// first column and the period beside it), and every other column once, in
+// order.
+func TestWideTableSplits(t *testing.T) {
+	header := []string{"index", "period"}
+	var rows [][]string
+	for c := range 9 {
+		header = append(header, "a rather long column title "+string(rune('A'+c)))
+	}
+	for r := range 3 {
+		row := []string{"index " + string(rune('p'+r)), "heating"}
+		for c := range 9 {
+			row = append(row, string(rune('A'+c))+strings.Repeat("9", r+1))
+		}
+		rows = append(rows, row)
+	}
+	var b strings.Builder
+	if err := table(&b, header, rows); err != nil {
+		t.Fatal(err)
+	}
+	out := b.String()
+	for i, l := range strings.Split(out, "\n") {
+		if n := utf8.RuneCountInString(l); n > wrapWidth {
+			t.Errorf("line %d has %d columns: %q", i, n, l)
+		}
+	}
+	parts := strings.Count(out, "┌")
+	if parts < 3 {
+		t.Errorf("a table of about 300 columns came out in %d parts:\n%s", parts, out)
+	}
+	if n := strings.Count(out, "index q"); n != parts {
+		t.Errorf("row key in %d of %d parts:\n%s", n, parts, out)
+	}
+	if n := strings.Count(out, "heating"); n != 3*parts {
+		t.Errorf("period in %d cells, want %d:\n%s", n, 3*parts, out)
+	}
+	last := -1
+	for c := range 9 {
+		title := "column title " + string(rune('A'+c))
+		if strings.Count(out, title) != 1 {
+			t.Errorf("%q appears %d times", title, strings.Count(out, title))
+		}
+		if i := strings.Index(out, title); i < last {
+			t.Errorf("%q out of order", title)
+		} else {
+			last = i
+		}
+		if cell := string(rune('A'+c)) + "999"; strings.Count(out, cell) != 1 {
+			t.Errorf("cell %q appears %d times", cell, strings.Count(out, cell))
+		}
+	}
+	// A narrow table is left whole.
+	b.Reset()
+	table(&b, []string{"index", "value"}, [][]string{{"HDD", "1"}})
+	if strings.Count(b.String(), "┌") != 1 {
+		t.Errorf("a narrow table was split:\n%s", b.String())
+	}
+}
+
+// TestPrintfWrapsProse checks that the renderers' printf breaks prose lines
+// longer than 100 columns with a hanging indent, leaves table lines and
+// short lines alone, and prints Glue as a space.
+func TestPrintfWrapsProse(t *testing.T) {
+	var b strings.Builder
+	e := &errWriter{w: &b}
+	long := "  Monte Carlo error: " + strings.Repeat("the far tail of this figure is imprecise ", 5) + "±" + Glue + "0.25"
+	box := "│ " + strings.Repeat("x ", 60) + "│"
+	e.printf("%s\n%s\nshort"+Glue+"line\n", long, box)
+	lines := strings.Split(strings.TrimSuffix(b.String(), "\n"), "\n")
+	if lines[len(lines)-1] != "short line" || lines[len(lines)-2] != box {
+		t.Errorf("short or table lines changed:\n%s", b.String())
+	}
+	prose := lines[:len(lines)-2]
+	if len(prose) < 3 {
+		t.Fatalf("a %d-column line was not wrapped:\n%s", len(long), b.String())
+	}
+	for i, l := range prose {
+		if utf8.RuneCountInString(l) > wrapWidth {
+			t.Errorf("line %d too wide: %q", i, l)
+		}
+		if i > 0 && !strings.HasPrefix(l, "    ") {
+			t.Errorf("continuation %d not indented past its line: %q", i, l)
+		}
+	}
+	if !strings.HasSuffix(prose[len(prose)-1], "± 0.25") || strings.Contains(b.String(), Glue) {
+		t.Errorf("glued value split or glue printed:\n%s", b.String())
+	}
+}
+
+// TestWrapKeepsUnits checks that wrap keeps a degree unit or a per cent
+// sign with its number and a "±" with its error.
+func TestWrapKeepsUnits(t *testing.T) {
+	for _, c := range []struct{ text, keep string }{
+		{"trend-2050: climate of 2050 along the trend: level +0.42 °C against 2026 (fitted trend +0.174 °C/decade)", "+0.174 °C/decade"},
+		{"the model's spread of annual means would be wider by about 12.5 % than it is now without", "12.5 %"},
+		{"Monte Carlo error: the ES 99% of coldest day is -20.5 ± 0.20 from 20,000 paths", "± 0.20"},
+	} {
+		for width := 10; width <= len(c.text); width++ {
+			got := wrap(c.text, width, "  ")
+			if strings.Join(strings.Fields(got), " ") != c.text {
+				t.Fatalf("wrap at %d changed the words:\n%s", width, got)
+			}
+			if !strings.Contains(got, c.keep) {
+				t.Errorf("wrap at %d split %q:\n%s", width, c.keep, got)
+				break
+			}
+		}
+	}
+}

@@ -837,6 +837,8 @@ func writeComparison(e *errWriter, r *SimReport) {
 	for _, sc := range r.Scenarios {
 		e.printf("  %s: %s\n", sc.Name, strings.Join(sc.What, "; "))
 	}
+	e.printf("  1-in-20 and 1-in-100 are the adverse P95 and P99 (P5 and P1 where low is adverse); the change of " +
+		"the mean has its paired Monte Carlo s.e.\n")
 	for k, base := range r.Rows {
 		if base.Index == sim.PeakDay {
 			continue // a date: its spread is under the period's tables
@@ -847,7 +849,7 @@ func writeComparison(e *errWriter, r *SimReport) {
 			c := sc.Changes[k]
 			rows = append(rows, compRow(sc.Name, sc.Rows[k].Tail, ChangeText(c.Mean, c.MeanSE)))
 		}
-		e.table([]string{"scenario", "mean", "P50", "1-in-20 (adverse P95)", "1-in-100 (adverse P99)", "ES 95%", "change of mean ± s.e."}, rows)
+		e.table([]string{"scenario", "mean", "P50", "1-in-20", "1-in-100", "ES 95%", "change of mean ± s.e."}, rows)
 	}
 }
 
