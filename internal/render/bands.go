@@ -48,8 +48,8 @@ func writeBands(e *errWriter, r *SimReport) {
 	title, header, cells := BandTable(r.Rows, r.Bands, r.Refits)
 	e.printf("\n%s\n", title)
 	e.table(header, cells)
-	e.printf("  Each number is the fitted model's; the band is the basic bootstrap interval from models refitted to\n" +
-		"  synthetic records like this one (each simulated with the same seed), which corrects the refits' shared bias.\n")
+	e.printf("  Each number is the fitted model's; the band is the basic bootstrap interval from models refitted to " +
+		"synthetic records like this one (each simulated with the same seed), which corrects the refits' shared bias.\n")
 }
 
 type jsonBand struct {
