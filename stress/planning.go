@@ -230,12 +230,18 @@ func solveOne(top []float32, k, lo, hi int, t CapacityTarget) float64 {
 		return stat.Quantile(p, stat.LinInterp, peaks, nil)
 	}
 	// days: the mean count over C falls as C rises; bisect for the least C
-	// with a mean of at most x.
-	a, b := float64(top[lo*k+k-1]), peaks[n-1]
+	// with a mean of at most x, from below the lowest kept day (a period
+	// shorter than k days leaves −∞ in the last places) to the highest.
+	a, b := peaks[0], peaks[n-1]
 	for i := lo; i < hi; i++ {
-		a = min(a, float64(top[i*k+k-1]))
+		for _, v := range slices.Backward(top[i*k : (i+1)*k]) {
+			if !math.IsInf(float64(v), -1) {
+				a = min(a, float64(v))
+				break
+			}
+		}
 	}
-	a = min(a, peaks[0]) - 1
+	a--
 	if mean, _ := achieved(top, k, lo, hi, t, a); mean <= t.Value {
 		return a
 	}

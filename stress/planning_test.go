@@ -108,6 +108,41 @@ func TestCapacityTargets(t *testing.T) {
 	}
 }
 
+// TestCapacityShortPeriod solves a days target on a period shorter than
+// the 40 days kept per path (December): the kept lists end in −∞ there, and
+// the solve must still find the capacity with one day over a year (it used
+// to return the highest peak of all, with none over).
+func TestCapacityShortPeriod(t *testing.T) {
+	if testing.Short() {
+		t.Skip("fits the demo data")
+	}
+	t.Parallel()
+	job := demoDemandJob(t, 5000)
+	job.Config.Periods = []string{"dec"}
+	c, err := ParseCapacityTarget("days:1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	job.CapacityTargets = []CapacityTarget{c}
+	res, err := Run(context.Background(), job)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var peak90 float64
+	for _, r := range res.Set.Rows {
+		if r.Index == sim.PeakDemand {
+			peak90 = r.Tail.Quantiles[slices.Index(sim.TailQuantileProbs(), 0.9)]
+		}
+	}
+	// One day over a year on average lies below the peak that one year in
+	// ten exceeds (most years with a day over have one or two).
+	got := res.Capacities[0]
+	if got.Achieved > 1 || got.Achieved < 0.95 || !(got.Capacity < peak90) {
+		t.Errorf("days:1 in December: capacity %.0f achieving %.3f days a year; the December P90 peak is %.0f",
+			got.Capacity, got.Achieved, peak90)
+	}
+}
+
 func meanSD(v []float64) (float64, float64) {
 	s, s2 := 0.0, 0.0
 	for _, x := range v {
