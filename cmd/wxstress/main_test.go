@@ -778,3 +778,117 @@ func TestHedgeNeedingDemandIsUsage(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
 }
+
+// TestCSVCarriesTheJSONNumbers runs one job as JSON and as CSV and checks
+// that the CSV has the JSON's numbers, as the README says: the tail numbers
+// with their Monte Carlo errors, exceedances with theirs (as probabilities),
+// the parameter bands, the hedge evaluation and the capacity's achieved
+// value in its own unit; and that the day of the peak, a date, has no VaR,
+// ES or return level in either.
+func TestCSVCarriesTheJSONNumbers(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	args := []string{"simulate", "--model", filepath.Join(dir, "model.json"), "--demand", filepath.Join(dir, "demand.json"),
+		"--paths", "300", "--period", "heating", "--hedge", "../../hedge/example.toml", "--exceed", "hdd:heating:2300",
+		"--capacity-target", "days:1", "--uncertainty", "20", "--history", "../../demo/kestrel_bay_daily.csv"}
+	code, js, stderr := call(t, context.Background(), append(args, "--format", "json")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	code, cs, stderr := call(t, context.Background(), append(args, "--format", "csv")...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	type key struct{ index, period, stat string }
+	csvVal, csvUnit := map[key]float64{}, map[key]string{}
+	for _, line := range strings.Split(cs, "\n") {
+		f := strings.Split(line, ",")
+		if len(f) != 7 || f[0] != "baseline" {
+			continue
+		}
+		var v float64
+		if _, err := fmt.Sscan(f[6], &v); err != nil {
+			continue
+		}
+		k := key{f[1], f[2], f[5]}
+		csvVal[k], csvUnit[k] = v, f[3]
+	}
+	same := func(what string, k key, want float64) {
+		t.Helper()
+		got, ok := csvVal[k]
+		if !ok {
+			t.Errorf("%s: the CSV has no %v", what, k)
+		} else if math.Abs(got-want) > 1e-12*math.Max(1, math.Abs(want)) {
+			t.Errorf("%s: CSV %v, JSON %v", what, got, want)
+		}
+	}
+	var j struct {
+		Indices []struct {
+			Key, Period, Adverse string
+			Mean                 float64
+			VaR95                *float64           `json:"var95"`
+			ReturnLevels         map[string]float64 `json:"return_levels"`
+			MonteCarloSE         *struct {
+				VaR95 *float64 `json:"var95"`
+			} `json:"monte_carlo_se"`
+			Exceedance []struct{ Threshold, Probability, SE float64 }
+			Band       *struct {
+				RL20 struct{ Lo, Hi float64 } `json:"return_level_20"`
+			}
+		}
+		Hedge struct {
+			Hedged    struct{ ES99 float64 }
+			Contracts []struct {
+				Name, Period string
+				Mean         float64 `json:"mean_payout"`
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(js), &j); err != nil {
+		t.Fatal(err)
+	}
+	bands := 0
+	for _, r := range j.Indices {
+		k := func(stat string) key { return key{r.Key, r.Period, stat} }
+		same("mean", k("mean"), r.Mean)
+		if r.Key == "peak-date" {
+			if r.VaR95 != nil || r.ReturnLevels != nil || r.Adverse != "none" {
+				t.Errorf("the day of the peak has an adverse side in the JSON: %+v", r)
+			}
+			if _, ok := csvVal[k("var95")]; ok {
+				t.Error("the day of the peak has a VaR in the CSV")
+			}
+			continue
+		}
+		same("VaR 95%", k("var95"), *r.VaR95)
+		if r.MonteCarloSE != nil && r.MonteCarloSE.VaR95 != nil {
+			same("VaR 95% s.e.", k("var95:se"), *r.MonteCarloSE.VaR95)
+		}
+		for _, e := range r.Exceedance {
+			ek := k(fmt.Sprintf("exceed:%g", e.Threshold))
+			same("exceedance", ek, e.Probability)
+			same("exceedance s.e.", k(fmt.Sprintf("exceed:%g:se", e.Threshold)), e.SE)
+			if csvUnit[ek] != "probability" {
+				t.Errorf("exceedance unit %q", csvUnit[ek])
+			}
+		}
+		if r.Band != nil {
+			bands++
+			same("band", k("rl20:band_lo"), r.Band.RL20.Lo)
+			same("band", k("rl20:band_hi"), r.Band.RL20.Hi)
+		}
+	}
+	if bands == 0 {
+		t.Error("no parameter bands in the JSON to compare")
+	}
+	if len(j.Hedge.Contracts) == 0 {
+		t.Fatal("no hedge in the JSON")
+	}
+	for _, c := range j.Hedge.Contracts {
+		same("mean payout", key{"hedge", c.Period, "contract:" + c.Name + ":mean_payout"}, c.Mean)
+	}
+	same("hedged ES 99%", key{"hedge", "", "net_cost:hedged:es99"}, j.Hedge.Hedged.ES99)
+	if u := csvUnit[key{"capacity", "heating", "days:1:achieved"}]; u != "days a year" {
+		t.Errorf("capacity achieved unit %q", u)
+	}
+}

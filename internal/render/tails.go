@@ -133,11 +133,13 @@ type jsonRow struct {
 	SD           float64            `json:"sd"`
 	MeanSE       float64            `json:"mean_se"`
 	Quantiles    map[string]float64 `json:"quantiles"`
-	VaR95        float64            `json:"var95"`
-	VaR99        float64            `json:"var99"`
-	ES95         float64            `json:"es95"`
-	ES99         float64            `json:"es99"`
-	ReturnLevels map[string]float64 `json:"return_levels"`
+	// VaR, ES and return levels are left out for the day of the peak (a
+	// date has no adverse side).
+	VaR95        *float64           `json:"var95,omitempty"`
+	VaR99        *float64           `json:"var99,omitempty"`
+	ES95         *float64           `json:"es95,omitempty"`
+	ES99         *float64           `json:"es99,omitempty"`
+	ReturnLevels map[string]float64 `json:"return_levels,omitempty"`
 	Exceedance   []jsonExceed       `json:"exceedance,omitempty"`
 	Change       *jsonChange        `json:"change_vs_baseline,omitempty"`
 	// MonteCarloSE holds the standard errors of the tail numbers from the
@@ -160,11 +162,11 @@ type jsonDates struct {
 // jsonMCSE is the Monte Carlo error of a row's tail numbers.
 type jsonMCSE struct {
 	Quantiles    map[string]*float64 `json:"quantiles"`
-	ReturnLevels map[string]*float64 `json:"return_levels"`
-	VaR95        *float64            `json:"var95"`
-	VaR99        *float64            `json:"var99"`
-	ES95         *float64            `json:"es95"`
-	ES99         *float64            `json:"es99"`
+	ReturnLevels map[string]*float64 `json:"return_levels,omitempty"`
+	VaR95        *float64            `json:"var95,omitempty"`
+	VaR99        *float64            `json:"var99,omitempty"`
+	ES95         *float64            `json:"es95,omitempty"`
+	ES99         *float64            `json:"es99,omitempty"`
 }
 
 // finitePtr is v, or nil (JSON null) when v is not finite.
@@ -175,15 +177,19 @@ func finitePtr(v float64) *float64 {
 	return &v
 }
 
-func toJSONMCSE(t sim.Tail) *jsonMCSE {
+func toJSONMCSE(t sim.Tail, date bool) *jsonMCSE {
 	if len(t.QuantileSE) == 0 {
 		return nil
 	}
-	m := &jsonMCSE{Quantiles: map[string]*float64{}, ReturnLevels: map[string]*float64{},
-		VaR95: finitePtr(t.VaR95SE), VaR99: finitePtr(t.VaR99SE), ES95: finitePtr(t.ES95SE), ES99: finitePtr(t.ES99SE)}
+	m := &jsonMCSE{Quantiles: map[string]*float64{}}
 	for i, p := range sim.TailQuantileProbs() {
 		m.Quantiles[fmt.Sprintf("%.2f", p)] = finitePtr(t.QuantileSE[i])
 	}
+	if date {
+		return m
+	}
+	m.VaR95, m.VaR99, m.ES95, m.ES99 = finitePtr(t.VaR95SE), finitePtr(t.VaR99SE), finitePtr(t.ES95SE), finitePtr(t.ES99SE)
+	m.ReturnLevels = map[string]*float64{}
 	for i, T := range t.ReturnPeriods {
 		m.ReturnLevels[periodKey(T)] = finitePtr(t.ReturnLevelSE[i])
 	}
@@ -216,8 +222,11 @@ type jsonExceed struct {
 }
 
 // AdverseSide is "high" or "low": the side of an index's values that is
-// adverse.
+// adverse; "none" for the day of the peak, a date.
 func AdverseSide(r sim.Row) string {
+	if r.Index == sim.PeakDay {
+		return "none"
+	}
 	if r.Info.HighIsAdverse {
 		return "high"
 	}
@@ -239,14 +248,18 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 	out := make([]jsonRow, len(rows))
 	for i, r := range rows {
 		t := r.Tail
+		date := r.Index == sim.PeakDay
 		j := jsonRow{Name: r.Name, Key: r.Info.Key, Period: r.Period, Unit: r.Unit, Adverse: AdverseSide(r),
-			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, VaR95: t.VaR95, VaR99: t.VaR99, ES95: t.ES95, ES99: t.ES99,
-			Quantiles: map[string]float64{}, ReturnLevels: map[string]float64{}, MonteCarloSE: toJSONMCSE(t)}
+			Mean: t.Mean, SD: t.SD, MeanSE: t.MeanSE, Quantiles: map[string]float64{}, MonteCarloSE: toJSONMCSE(t, date)}
 		for _, p := range sim.TailQuantileProbs() {
 			j.Quantiles[fmt.Sprintf("%.2f", p)] = t.Quantile(p)
 		}
-		for _, T := range t.ReturnPeriods {
-			j.ReturnLevels[periodKey(T)] = t.ReturnLevel(T)
+		if !date {
+			j.VaR95, j.VaR99, j.ES95, j.ES99 = &t.VaR95, &t.VaR99, &t.ES95, &t.ES99
+			j.ReturnLevels = map[string]float64{}
+			for _, T := range t.ReturnPeriods {
+				j.ReturnLevels[periodKey(T)] = t.ReturnLevel(T)
+			}
 		}
 		for _, e := range t.Exceedances {
 			j.Exceedance = append(j.Exceedance, jsonExceed{e.Threshold, e.Prob, e.SE})
@@ -299,6 +312,12 @@ func SimJSON(w io.Writer, r *SimReport) error {
 type Statistic struct {
 	Key, Label string
 	Value      func(t sim.Tail) float64
+	// SE reads the number's Monte Carlo standard error (nil for the mean's
+	// and the sd's, which the CSV gives as mean_se and not at all).
+	SE func(t sim.Tail) float64
+	// Adverse is true for the numbers read on the adverse side (VaR, ES,
+	// return levels), which a date does not have.
+	Adverse bool
 }
 
 // Statistics lists the statistics of a tail table with the default return
@@ -320,22 +339,37 @@ func rowPeriods(rows []sim.Row) []float64 {
 // periods periods, in display order.
 func StatisticsFor(periods []float64) []Statistic {
 	s := []Statistic{
-		{"mean", "mean", func(t sim.Tail) float64 { return t.Mean }},
-		{"sd", "sd", func(t sim.Tail) float64 { return t.SD }},
+		{Key: "mean", Label: "mean", Value: func(t sim.Tail) float64 { return t.Mean }},
+		{Key: "sd", Label: "sd", Value: func(t sim.Tail) float64 { return t.SD }},
 	}
-	for _, p := range sim.TailQuantileProbs() {
-		s = append(s, Statistic{fmt.Sprintf("p%02.0f", 100*p), fmt.Sprintf("P%.0f", 100*p),
-			func(t sim.Tail) float64 { return t.Quantile(p) }})
+	seAt := func(v func(t sim.Tail) []float64, i int) func(t sim.Tail) float64 {
+		return func(t sim.Tail) float64 {
+			if se := v(t); i < len(se) {
+				return se[i]
+			}
+			return math.NaN()
+		}
+	}
+	for i, p := range sim.TailQuantileProbs() {
+		s = append(s, Statistic{Key: fmt.Sprintf("p%02.0f", 100*p), Label: fmt.Sprintf("P%.0f", 100*p),
+			Value: func(t sim.Tail) float64 { return t.Quantile(p) },
+			SE:    seAt(func(t sim.Tail) []float64 { return t.QuantileSE }, i)})
 	}
 	s = append(s,
-		Statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }},
-		Statistic{"es95", "ES 95%", func(t sim.Tail) float64 { return t.ES95 }},
-		Statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }},
-		Statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }},
+		Statistic{"var95", "VaR 95%", func(t sim.Tail) float64 { return t.VaR95 }, func(t sim.Tail) float64 { return t.VaR95SE }, true},
+		Statistic{"es95", "ES 95%", func(t sim.Tail) float64 { return t.ES95 }, func(t sim.Tail) float64 { return t.ES95SE }, true},
+		Statistic{"var99", "VaR 99%", func(t sim.Tail) float64 { return t.VaR99 }, func(t sim.Tail) float64 { return t.VaR99SE }, true},
+		Statistic{"es99", "ES 99%", func(t sim.Tail) float64 { return t.ES99 }, func(t sim.Tail) float64 { return t.ES99SE }, true},
 	)
 	for _, T := range periods {
-		s = append(s, Statistic{"rl" + periodKey(T), "1-in-" + periodKey(T),
-			func(t sim.Tail) float64 { return t.ReturnLevel(T) }})
+		s = append(s, Statistic{Key: "rl" + periodKey(T), Label: "1-in-" + periodKey(T),
+			Value: func(t sim.Tail) float64 { return t.ReturnLevel(T) },
+			SE: func(t sim.Tail) float64 {
+				if i := slices.Index(t.ReturnPeriods, T); i >= 0 && i < len(t.ReturnLevelSE) {
+					return t.ReturnLevelSE[i]
+				}
+				return math.NaN()
+			}, Adverse: true})
 	}
 	return s
 }
@@ -355,19 +389,43 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"scenario", "index", "period", "unit", "adverse", "statistic", "value"})
 	stats := StatisticsFor(rowPeriods(r.Rows))
-	write := func(scenario string, rows []sim.Row, changes []sim.Change) {
+	write := func(scenario string, rows []sim.Row, changes []sim.Change, bands []stress.RowBands) {
 		for k, row := range rows {
+			unit := row.Unit
 			put := func(stat string, v float64) {
-				cw.Write([]string{scenario, row.Info.Key, row.Period, row.Unit, AdverseSide(row), stat,
+				cw.Write([]string{scenario, row.Info.Key, row.Period, unit, AdverseSide(row), stat,
 					strconv.FormatFloat(v, 'g', -1, 64)})
 			}
+			date := row.Index == sim.PeakDay // a date: no adverse side
 			for _, s := range stats {
+				if s.Adverse && date {
+					continue
+				}
 				put(s.Key, s.Value(row.Tail))
+				if s.SE != nil {
+					if se := s.SE(row.Tail); !math.IsNaN(se) && !math.IsInf(se, 0) {
+						put(s.Key+":se", se)
+					}
+				}
 			}
 			put("mean_se", row.Tail.MeanSE)
-			for _, e := range row.Tail.Exceedances {
-				put("exceed:"+strconv.FormatFloat(e.Threshold, 'g', -1, 64), e.Prob)
+			if k < len(bands) && !date {
+				b := bands[k]
+				for _, x := range []struct {
+					key string
+					b   stress.Band
+				}{{"mean", b.Mean}, {"var95", b.VaR95}, {"es95", b.ES95}, {"rl20", b.RL20}, {"rl50", b.RL50}} {
+					put(x.key+":band_lo", x.b.Lo)
+					put(x.key+":band_hi", x.b.Hi)
+				}
 			}
+			unit = "probability" // of a year beyond the threshold, which is in the index's unit
+			for _, e := range row.Tail.Exceedances {
+				key := "exceed:" + strconv.FormatFloat(e.Threshold, 'g', -1, 64)
+				put(key, e.Prob)
+				put(key+":se", e.SE)
+			}
+			unit = row.Unit
 			if changes != nil {
 				c := changes[k]
 				for _, kv := range []struct {
@@ -380,9 +438,9 @@ func SimCSV(w io.Writer, r *SimReport) error {
 			}
 		}
 	}
-	write("baseline", r.Rows, nil)
+	write("baseline", r.Rows, nil, r.Bands)
 	for _, sc := range r.Scenarios {
-		write(sc.Name, sc.Rows, sc.Changes)
+		write(sc.Name, sc.Rows, sc.Changes, nil)
 	}
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 	units := "°" + r.Manifest.Units
@@ -409,7 +467,49 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	for _, c := range r.Capacities {
 		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target, g(c.Capacity)})
 		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
-		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":achieved", g(c.Achieved)})
+		achievedUnit := "fraction of years" // peak and any targets
+		if strings.HasPrefix(c.Target, "days:") {
+			achievedUnit = "days a year"
+		}
+		cw.Write([]string{"baseline", "capacity", c.Period, achievedUnit, "high", c.Target + ":achieved", g(c.Achieved)})
+	}
+	if h := r.Hedge; h != nil { // the hedge evaluation, as in the JSON's hedge object
+		cur := r.HedgeFile.Currency
+		hedgeRow := func(period, unit, stat string, v float64) {
+			if !math.IsNaN(v) {
+				cw.Write([]string{"baseline", "hedge", period, unit, "none", stat, g(v)})
+			}
+		}
+		for _, c := range h.Contracts {
+			k := "contract:" + c.Contract.Name + ":"
+			for _, x := range []struct {
+				stat string
+				v    float64
+			}{{"mean_payout", c.Mean}, {"mean_payout:se", c.MeanSE}, {"sd", c.SD}, {"p01", c.P1}, {"p05", c.P5},
+				{"p50", c.P50}, {"p95", c.P95}, {"p99", c.P99}, {"loaded_price", c.LoadedPrice},
+				{"quantile_price", c.QuantilePrice}, {"burn_price", c.Burn}} {
+				hedgeRow(c.Contract.Period, cur, k+x.stat, x.v)
+			}
+			hedgeRow(c.Contract.Period, "probability", k+"probability_of_payout", c.ProbPayout)
+			hedgeRow(c.Contract.Period, "seasons", k+"burn_seasons", float64(c.Seasons))
+			hedgeRow(c.Contract.Period, "contracts", k+"min_variance_quantity", c.MinVar.Quantity)
+		}
+		risk := func(name string, rk hedge.Risk) {
+			for _, x := range []struct {
+				stat string
+				v    float64
+			}{{"mean", rk.Mean}, {"sd", rk.SD}, {"var95", rk.VaR95}, {"es95", rk.ES95}, {"es99", rk.ES99}} {
+				hedgeRow("", cur, "net_cost:"+name+":"+x.stat, x.v)
+			}
+		}
+		risk("unhedged", h.Unhedged)
+		risk("hedged", h.Hedged)
+		for _, c := range h.Contracts {
+			if !math.IsNaN(c.MinVar.Quantity) {
+				risk(c.Contract.Name+" alone at the minimum-variance quantity", c.MinVar.Net)
+			}
+		}
+		hedgeRow("", "fraction", "variance_reduction", h.VarianceReduction)
 	}
 	if p := r.Planning; p != nil {
 		f := g
