@@ -124,15 +124,15 @@ type ScenarioReport struct {
 
 // jsonRow is an index row of the JSON output.
 type jsonRow struct {
-	Name         string             `json:"name"`
-	Key          string             `json:"key"`
-	Period       string             `json:"period"`
-	Unit         string             `json:"unit"`
-	Adverse      string             `json:"adverse"`
-	Mean         float64            `json:"mean"`
-	SD           float64            `json:"sd"`
-	MeanSE       float64            `json:"mean_se"`
-	Quantiles    map[string]float64 `json:"quantiles"`
+	Name      string             `json:"name"`
+	Key       string             `json:"key"`
+	Period    string             `json:"period"`
+	Unit      string             `json:"unit"`
+	Adverse   string             `json:"adverse"`
+	Mean      float64            `json:"mean"`
+	SD        float64            `json:"sd"`
+	MeanSE    float64            `json:"mean_se"`
+	Quantiles map[string]float64 `json:"quantiles"`
 	// VaR, ES and return levels are left out for the day of the peak (a
 	// date has no adverse side).
 	VaR95        *float64           `json:"var95,omitempty"`
