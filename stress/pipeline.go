@@ -193,7 +193,15 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	if res.Demand != nil && res.Model != nil {
 		if err := res.Demand.CheckUnits(res.Model.Data.Units); err != nil {
+			return nil, fmt.Errorf("%w: %v", ErrJob, err) // two inputs that do not go together
+		}
+	}
+	if job.Temps != nil && job.Model != nil { // a record given beside a model: its history or season so far
+		if err := checkRecord(res.Model, job.Temps); err != nil {
 			return nil, err
+		}
+		for _, w := range job.Temps.Warnings {
+			res.Warnings = append(res.Warnings, job.Temps.Name+": "+w)
 		}
 	}
 	if err := ctx.Err(); err != nil {

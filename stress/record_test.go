@@ -1,0 +1,45 @@
+package stress
+
+import (
+	"strings"
+	"testing"
+
+	"wxstress/calendar"
+	"wxstress/calibrate"
+	"wxstress/model"
+)
+
+// TestCheckRecord: a record beside a model is refused when it sits many of
+// the model's anomaly sds from the model's expected temperatures (the same
+// station's record in the other unit scale), and taken when it is the
+// model's climate.
+func TestCheckRecord(t *testing.T) {
+	m := &model.File{
+		Data:       model.Data{Units: "C"},
+		Trend:      model.Trend{Kind: "none", Epoch: calendar.Epoch, Intercept: 10},
+		Seasonal:   model.Seasonal{PeriodDays: calendar.DaysPerYear, Harmonics: []model.Harmonic{{K: 1}}},
+		AR:         model.AR{Phi: []float64{0.7}},
+		Volatility: model.Volatility{Kind: "monthly"},
+	}
+	for k := range 12 {
+		m.Volatility.Monthly[k] = 2.5
+	}
+	// anomaly sd: 2.5/√(1 − 0.49) = 3.5 °C
+	series := func(v float64) *calibrate.Series {
+		s := &calibrate.Series{Name: "obs.csv", Start: calendar.FromYMD(2020, 1, 1), Units: "C"}
+		for range 90 {
+			s.Temps = append(s.Temps, v)
+		}
+		return s
+	}
+	if err := checkRecord(m, series(12)); err != nil {
+		t.Errorf("a record 2 °C off the model's mean refused: %v", err)
+	}
+	err := checkRecord(m, series(50)) // 10 °C in °F
+	if err == nil || !strings.Contains(err.Error(), "obs.csv") || !strings.Contains(err.Error(), "in °F") {
+		t.Errorf("a °F record on a °C model: %v", err)
+	}
+	if err := checkRecord(m, series(-20)); err == nil || !strings.Contains(err.Error(), "another station") {
+		t.Errorf("a record 30 °C off (not a unit mix-up): %v", err)
+	}
+}
