@@ -5,8 +5,10 @@ import (
 	"math"
 	"slices"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/stat"
 
+	"wxstress/internal/numfmt"
 	"wxstress/sim"
 )
 
@@ -86,6 +88,10 @@ type Result struct {
 	// vary.
 	VarianceReduction float64
 	Contracts         []ContractResult
+	// Warnings name a strike or a plan outside the simulated range of its
+	// index (every path pays, or none does): often a file written for
+	// another station, unit scale or season.
+	Warnings []string
 }
 
 // Evaluate prices f's contracts and measures the position over simulated
@@ -125,6 +131,7 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 		}
 	}
 	r := &Result{Paths: n, Options: o, Cost: make([]float64, n), Net: make([]float64, n)}
+	r.Warnings = rangeWarnings(f, values)
 	if e := f.Exposure; e != nil {
 		for p, v := range values[e.Key()] {
 			r.Cost[p] = e.Cost(v)
@@ -187,6 +194,38 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 	r.Hedged = riskOf(r.Net)
 	r.VarianceReduction = reduction(r.Hedged.SD)
 	return r, nil
+}
+
+// rangeWarnings names the exposure's plan and the contracts' strikes that
+// lie outside the simulated range of their index.
+func rangeWarnings(f *File, values map[Key][]float64) []string {
+	var out []string
+	outside := func(what string, k Key, x float64) {
+		lo, hi := floats.Min(values[k]), floats.Max(values[k])
+		side := ""
+		switch {
+		case x < lo:
+			side = "below"
+		case x > hi:
+			side = "above"
+		default:
+			return
+		}
+		out = append(out, fmt.Sprintf("%s %s lies %s every simulated %s (%s to %s): check the file's units, "+
+			"station and period", what, numfmt.Number(x), side, k.Index+" of the "+k.Period+" period", numfmt.Number(lo), numfmt.Number(hi)))
+	}
+	if e := f.Exposure; e != nil {
+		outside("the exposure's plan", e.Key(), e.Plan)
+	}
+	for _, c := range f.Contracts {
+		if c.Kind == Collar {
+			outside(fmt.Sprintf("contract %q's strike_low", c.Name), c.Key(), c.StrikeLow)
+			outside(fmt.Sprintf("contract %q's strike_high", c.Name), c.Key(), c.StrikeHigh)
+		} else {
+			outside(fmt.Sprintf("contract %q's strike", c.Name), c.Key(), c.Strike)
+		}
+	}
+	return out
 }
 
 func allFinite(v []float64, k Key, what string) error {

@@ -316,3 +316,23 @@ func TestEvaluateRefusesBadValues(t *testing.T) {
 		t.Errorf("good values refused: %v", err)
 	}
 }
+
+// TestRangeWarnings: a strike or plan outside the simulated range of its
+// index (a file written in other degrees, or for another station) is named
+// in the result's warnings; one inside is not.
+func TestRangeWarnings(t *testing.T) {
+	t.Parallel()
+	inf := math.Inf(1)
+	f := &File{Contracts: []Contract{contract(Call, 2450, inf), contract(Put, 9000, inf)},
+		Exposure: &Exposure{Index: "hdd", Period: "heating", Plan: 100, PriceAbove: 1, PriceBelow: 1}}
+	f.Contracts[1].Name = "far put"
+	r, err := Evaluate(f, map[Key][]float64{{"hdd", "heating"}: grid}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := strings.Join(r.Warnings, "\n")
+	if len(r.Warnings) != 2 || !strings.Contains(got, `"far put"'s strike 9,000 lies above every simulated hdd`) ||
+		!strings.Contains(got, "plan 100 lies below") || strings.Contains(got, `"call"`) {
+		t.Errorf("warnings:\n%s", got)
+	}
+}

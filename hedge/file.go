@@ -45,6 +45,11 @@ func (k Key) NeedsDemand() bool { return k.Index == "energy" || k.Index == "peak
 
 // File is a hedge file: the retailer's exposure and its contracts.
 type File struct {
+	Name string // the file, for messages
+	// Units are the degrees the file's degree-day strikes and plans are in
+	// ("C" or "F"); empty when the file does not say, and then taken to be
+	// the model's.
+	Units     string
 	Currency  string    // a label only
 	Exposure  *Exposure // nil when the file has none
 	Contracts []Contract
@@ -183,6 +188,7 @@ func Load(path string) (*File, error) {
 // The file as decoded; pointers tell a missing key from a zero.
 type rawFile struct {
 	Currency  string           `toml:"currency"`
+	Units     string           `toml:"units"`
 	Exposure  *rawExposure     `toml:"exposure"`
 	Contracts []toml.Primitive `toml:"contract"` // decoded one by one, to know the element of an error
 }
@@ -211,7 +217,7 @@ type rawContract struct {
 
 // valid lists the keys of each table, for messages.
 var valid = map[string]string{
-	"":         "currency, [exposure], [[contract]]",
+	"":         "currency, units, [exposure], [[contract]]",
 	"exposure": "index, period, plan, price_above, price_below",
 	"contract": "name, index, period, kind, strike, strike_low, strike_high, tick, limit, quantity, premium",
 }
@@ -256,6 +262,7 @@ func Parse(src []byte, file string) (*File, error) {
 		}
 		return nil, ke
 	}
+	f.Name = file
 	return f, nil
 }
 
@@ -280,7 +287,10 @@ func decodeError(err error, src []byte, file string, elem int) error {
 
 // build checks which keys are present and fills a File.
 func build(raw *rawFile, rcs []rawContract) (*File, error) {
-	f := &File{Currency: raw.Currency}
+	f := &File{Currency: raw.Currency, Units: raw.Units}
+	if raw.Units != "" && raw.Units != "C" && raw.Units != "F" {
+		return nil, &KeyError{Key: "units", Msg: fmt.Sprintf("%q: want \"C\" or \"F\" (the degrees of degree-day strikes and plans)", raw.Units), elem: -1}
+	}
 	if raw.Exposure == nil && len(rcs) == 0 {
 		return nil, &KeyError{Msg: "no [exposure] and no [[contract]]: give at least one", elem: -1}
 	}

@@ -93,6 +93,7 @@ func TestBadHedgeFiles(t *testing.T) {
 		{"missing plan", strings.Replace(expo, "plan = 100", "", 1), "bad.toml:2: key exposure.plan: missing"},
 		{"wrong type in the exposure", strings.Replace(expo, "plan = 100", "plan = [100]", 1), "bad.toml:5: key exposure.plan:"},
 		{"nothing to evaluate", "currency = \"EUR\"\n", "bad.toml: no [exposure] and no [[contract]]"},
+		{"bad units", "units = \"K\"\n" + withLine(15, ""), `bad.toml:1: key units: "K": want "C" or "F"`},
 		{"syntax", "[exposure\nindex = 1\n", "bad.toml:"},
 	}
 	for _, c := range cases {

@@ -242,6 +242,11 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		cfg.TopDays = topDays
 	}
 	if job.Hedge != nil {
+		if u := job.Hedge.Units; u != "" && u != res.Model.Data.Units {
+			return nil, fmt.Errorf("%w: the hedge file %s is in °%s (its units key) but the model in °%s: its degree-day "+
+				"strikes and plans would be read in the wrong degrees; rewrite them in °%s or use a °%s model",
+				ErrJob, job.Hedge.Name, u, res.Model.Data.Units, res.Model.Data.Units, u)
+		}
 		cfg.Periods = withHedgePeriods(cfg.Periods, job.Hedge)
 		for _, k := range job.Hedge.Needs() {
 			if k.NeedsDemand() && res.Demand == nil {
@@ -365,6 +370,9 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			return nil, err
 		}
 		res.HedgeFile = job.Hedge
+		for _, w := range res.Hedge.Warnings {
+			res.Warnings = append(res.Warnings, "hedge file: "+w)
+		}
 	}
 	return res, nil
 }

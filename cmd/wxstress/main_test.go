@@ -892,3 +892,22 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 		t.Errorf("capacity achieved unit %q", u)
 	}
 }
+
+// TestHedgeUnitsMismatch: a hedge file whose units key names other degrees
+// than the model's is a usage error naming both, not a run whose strikes
+// are read in the wrong degrees.
+func TestHedgeUnitsMismatch(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	src, err := os.ReadFile("../../hedge/example.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := filepath.Join(t.TempDir(), "hedge_f.toml")
+	os.WriteFile(p, []byte(strings.Replace(string(src), `units = "C"`, `units = "F"`, 1)), 0o644)
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"),
+		"--demand", filepath.Join(dir, "demand.json"), "--hedge", p, "--paths", "50")
+	if code != exitUsage || !strings.Contains(stderr, "is in °F (its units key) but the model in °C") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}

@@ -58,6 +58,10 @@ func writeHedge(e *errWriter, r *SimReport) {
 		e.table(ch, contracts)
 		e.printf("  Payouts are for one contract bought; the burn price is the mean payout over the record's seasons " +
 			"moved to the target year's trend level.\n")
+		if r.Manifest.Start == "conditional" {
+			e.printf("  This run starts from the data end (and the season so far, when observed), so its payouts are " +
+				"conditional on today's state; the burn price, from whole past seasons, is not.\n")
+		}
 	}
 	e.table(ph, position)
 	if len(position) > 2 {
