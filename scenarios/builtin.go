@@ -59,6 +59,11 @@ func isBuiltin(name string) bool {
 // error.
 var ErrUnknown = errors.New("scenarios: unknown scenario")
 
+// ErrUnsuited is wrapped by Apply's errors for a built-in scenario that the
+// model cannot take (a trend scenario on a model without a trend): the
+// choice of scenario, not a file's content.
+var ErrUnsuited = errors.New("scenarios: unsuited")
+
 // Lookup returns the built-in scenario of that name, or else the scenario in
 // the file at that path.
 func Lookup(nameOrFile string) (*Scenario, error) {

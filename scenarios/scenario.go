@@ -107,7 +107,8 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 		if s.file != "" { // a file's scenario: where it is, for the reader to fix
 			return fmt.Errorf("%s: scenario %s: key %s: %s", s.file, s.Name, key, fmt.Sprintf(format, a...))
 		}
-		return fmt.Errorf("scenario %s: %s: %s", s.Name, key, fmt.Sprintf(format, a...))
+		// A built-in that does not suit this model: the choice of scenario.
+		return fmt.Errorf("%w: scenario %s does not suit this model: %s", ErrUnsuited, s.Name, fmt.Sprintf(format, a...))
 	}
 	k := s.factor(model.Units(m.Data.Units)) // converts the scenario's degrees to the model's
 	out.Diagnostics = nil
@@ -125,6 +126,10 @@ func (s *Scenario) Apply(m *model.File, year int) (*model.File, error) {
 		}
 		if t.TargetYear != nil {
 			if m.Trend.Kind != "linear" && t.SlopePerDecade == nil {
+				if s.file == "" {
+					return nil, fail("trend.target_year", "the model has no trend to carry on (fitted with trend %q); "+
+						"fit one with --trend linear, or set a slope in a scenario file (trend.slope_per_decade)", m.Trend.Kind)
+				}
 				return nil, fail("trend.target_year", "the model has no trend to move along (fitted with trend %q); give trend.slope_per_decade too", m.Trend.Kind)
 			}
 			out.Trend.Intercept += b * float64(calendar.YearStart(*t.TargetYear)-calendar.YearStart(year))

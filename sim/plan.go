@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -195,6 +196,17 @@ func burnInDays(phi []float64) int {
 	return min(max(b, 30), 5000)
 }
 
+// ErrStart is wrapped by the errors for periods that a conditional start
+// cannot simulate (they began before the data end, with no season so far
+// given, or without its loads for a demand run): the choice of --year,
+// --period, --start or the inputs given.
+var ErrStart = errors.New("sim: start")
+
+// ErrObserved is wrapped by the errors for an observed record (a season
+// under way) that lacks a day it needs; its text starts "the observed
+// record", for the caller to name the file.
+var ErrObserved = errors.New("the observed record")
+
 // simulatedSpan returns the first simulated day and the first and last day
 // of the periods: a conditional start begins the day after the data end, a
 // climatological one a burn-in before the periods.
@@ -209,26 +221,26 @@ func simulatedSpan(m *model.File, cfg *Config, periods []Period) (first, from, t
 	if from <= m.Data.LastDate {
 		if o := cfg.Observed; o != nil {
 			if to <= m.Data.LastDate {
-				return 0, 0, 0, fmt.Errorf("sim: every period has ended by the data end (%s): nothing is left to simulate; "+
-					"choose a later --year", m.Data.LastDate)
+				return 0, 0, 0, fmt.Errorf("%w: every period has ended by the data end (%s): nothing is left to simulate; "+
+					"choose a later --year", ErrStart, m.Data.LastDate)
 			}
 			if o.From > from || o.From+calendar.Date(len(o.Temps))-1 < m.Data.LastDate {
-				return 0, 0, 0, fmt.Errorf("sim: the observed record (%s to %s) does not cover %s to the data end %s",
+				return 0, 0, 0, fmt.Errorf("%w (%s to %s) does not cover %s to the data end %s", ErrObserved,
 					o.From, o.From+calendar.Date(len(o.Temps))-1, from, m.Data.LastDate)
 			}
 			for d := from; d <= m.Data.LastDate; d++ {
 				if v := o.Temps[int(d-o.From)]; math.IsNaN(v) || math.IsInf(v, 0) {
-					return 0, 0, 0, fmt.Errorf("sim: the observed record has no value on %s, inside %s: "+
-						"a season under way needs every day so far", d, periodStarting(periods, from))
+					return 0, 0, 0, fmt.Errorf("%w has no value on %s, inside %s: "+
+						"a season under way needs every day so far", ErrObserved, d, periodStarting(periods, from))
 				}
 			}
 			// The run starts at the first period's start; the days to the
 			// data end are the observed ones.
 			return from, from, to, nil
 		}
-		return 0, 0, 0, fmt.Errorf("sim: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
-			"give the season so far with --observed, choose periods that start later (e.g. --period year), a later --year, "+
-			"or --start climate", m.Data.LastDate, periodStarting(periods, from), from)
+		return 0, 0, 0, fmt.Errorf("%w: a conditional start needs periods after the data end (%s), but %s starts on %s: "+
+			"give the season so far with --observed, a later --year, periods that start after the data end, "+
+			"or --start climate", ErrStart, m.Data.LastDate, periodStarting(periods, from), from)
 	}
 	return m.Data.LastDate + 1, from, to, nil
 }
@@ -250,8 +262,8 @@ func newPlan(m *model.File, cfg *Config, periods []Period) (*plan, error) {
 			pl.obs = o.Temps[lo:hi]
 			if cfg.Demand != nil {
 				if len(o.Loads) < hi {
-					return nil, fmt.Errorf("sim: a season under way with demand needs its observed loads from %s to the data end %s",
-						first, m.Data.LastDate)
+					return nil, fmt.Errorf("%w: a season under way with demand needs its observed loads from %s to the data end %s "+
+						"(--observed-load)", ErrStart, first, m.Data.LastDate)
 				}
 				pl.obsLoad = o.Loads[lo:hi]
 				for i, v := range pl.obsLoad {

@@ -10,6 +10,9 @@ package stress
 
 import (
 	"context"
+	"errors"
+	"fmt"
+	"strings"
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
@@ -75,6 +78,9 @@ func simulate(ctx context.Context, m *model.File, mix []*model.File, cfg sim.Con
 	mixes := make([][]*model.File, len(scens))
 	for i, sc := range scens {
 		sm, err := sc.Apply(m, cfg.Year)
+		if errors.Is(err, scenarios.ErrUnsuited) {
+			return nil, fmt.Errorf("%w: %s", ErrJob, strings.TrimPrefix(err.Error(), scenarios.ErrUnsuited.Error()+": "))
+		}
 		if err != nil {
 			return nil, err
 		}

@@ -911,3 +911,33 @@ func TestHedgeUnitsMismatch(t *testing.T) {
 		t.Errorf("exit %d, stderr %q", code, stderr)
 	}
 }
+
+// TestMismatchedInputsAreUsage: choices that do not go together, found only
+// once the model and records are read, exit 2 with the flag to change:
+// a season under way with demand but no loads, a conditional start of a
+// period that began before the data end, a trend scenario on a model
+// without a trend.
+func TestMismatchedInputsAreUsage(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	m, d := filepath.Join(dir, "model.json"), filepath.Join(dir, "demand.json")
+	flat := filepath.Join(t.TempDir(), "flat.json")
+	if code, _, stderr := call(t, context.Background(), "fit", "--temps", "../../testdata/noaa/new_york.csv", "--trend", "none",
+		"--out", flat); code != 0 {
+		t.Fatalf("fit: %s", stderr)
+	}
+	for _, c := range []struct {
+		args []string
+		msg  string
+	}{
+		{[]string{"--model", m, "--demand", d, "--observed", "../../demo/kestrel_bay_daily.csv"}, "(--observed-load)"},
+		{[]string{"--model", m, "--start", "conditional", "--year", "2025", "--period", "heating"},
+			"a conditional start needs periods after the data end"},
+		{[]string{"--model", flat, "--scenario", "trend-2050"}, "scenario trend-2050 does not suit this model"},
+	} {
+		code, _, stderr := call(t, context.Background(), append(append([]string{"simulate"}, c.args...), "--paths", "50")...)
+		if code != exitUsage || !strings.Contains(stderr, c.msg) {
+			t.Errorf("%v: exit %d, stderr %q", c.args, code, stderr)
+		}
+	}
+}

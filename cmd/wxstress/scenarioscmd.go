@@ -80,7 +80,9 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		}
 		year := sim.TargetYear(m, o.year, nil)
 		for _, s := range list {
-			if _, err := s.Apply(m, year); err != nil {
+			if _, err := s.Apply(m, year); errors.Is(err, scenarios.ErrUnsuited) {
+				return usagef("scenarios: %s", strings.TrimPrefix(err.Error(), scenarios.ErrUnsuited.Error()+": "))
+			} else if err != nil {
 				return err
 			}
 		}

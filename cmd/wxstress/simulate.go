@@ -431,7 +431,12 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		}
 		return usagef("simulate: %v", err)
 	}
-	if err != nil {
+	switch {
+	case errors.Is(err, sim.ErrStart):
+		return usagef("simulate: %s", strings.TrimPrefix(err.Error(), sim.ErrStart.Error()+": "))
+	case errors.Is(err, sim.ErrObserved):
+		return fmt.Errorf("%s: %w", o.observed, err) // the file's days
+	case err != nil:
 		return err
 	}
 	rep, res := render.NewSimReport(out), out.Set.Base
