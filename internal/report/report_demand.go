@@ -8,6 +8,7 @@ import (
 	"strings"
 	"time"
 
+	"wxstress/internal/numfmt"
 	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/sim"
@@ -208,12 +209,12 @@ func (b *builder) planning() (*planningBlock, error) {
 			v    float64
 		}{{"p50", t.Quantile(0.50)}, {"p90", t.Quantile(0.90)}, {"rl20", t.ReturnLevel(20)}, {"rl50", t.ReturnLevel(50)},
 			{"es99", t.ES99}} {
-			pr.Cells = append(pr.Cells, newNumCell("baseline", row, c.stat, fixed(c.v, valueDecimals)))
+			pr.Cells = append(pr.Cells, newNumCell("baseline", row, c.stat, value(c.v)))
 		}
 		v.Peaks = append(v.Peaks, pr)
 	}
 	if capacity > 0 {
-		v.Capacity = fmt.Sprintf("%g %s", capacity, unit)
+		v.Capacity = numfmt.Number(capacity) + " " + unit
 	}
 	if hasFan {
 		f, err := demandFanFigure(in.Fan, unit, capacity)
@@ -246,7 +247,7 @@ func newLoadDurationTable(p *render.Planning, unit string) *loadDurationTable {
 		rr := rankRow{Rank: rank}
 		for k, q := range sim.FanQuantileProbs() {
 			rr.Cells = append(rr.Cells, newNumCell("baseline", row, fmt.Sprintf("rank%d:p%02.0f", rank, 100*q),
-				fixed(p.LoadDuration[k][rank-1], valueDecimals)))
+				value(p.LoadDuration[k][rank-1])))
 		}
 		t.Ranks = append(t.Ranks, rr)
 	}
@@ -282,7 +283,7 @@ func (b *builder) history() *historyBlock {
 			v    float64
 		}{{"actual", y.Actual}, {"model_at_actual_weather", y.AtActualWeather}, {"model_at_normal_weather", y.AtNormalWeather},
 			{"weather_normalized", y.Normalized}} {
-			hy.Cells = append(hy.Cells, newNumCell("baseline", row, c.stat, fixed(c.v, valueDecimals)))
+			hy.Cells = append(hy.Cells, newNumCell("baseline", row, c.stat, value(c.v)))
 		}
 		if y.Normalized != 0 {
 			hy.Effect = fmt.Sprintf("%+.1f %%", 100*(y.Actual/y.Normalized-1))

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -10,13 +11,53 @@ import (
 	"wxstress/sim"
 )
 
-// Decimals of the report's tail tables. The numbers are the same float64
-// values as the JSON and CSV outputs, rounded for display.
+// Decimals of the report's tables. The numbers are the same float64 values
+// as the JSON and CSV outputs, rounded for display: statistics of an index
+// to one decimal, none from 10 000 on (the terminal's rule, render.TableNum);
+// Monte Carlo errors to two significant digits (never fewer than the
+// units); exceedance probabilities to probDecimals.
 const (
-	valueDecimals = 1 // statistics of an index, in its unit
-	seDecimals    = 2 // Monte Carlo standard errors
-	probDecimals  = 4 // exceedance probabilities and their standard errors
+	valueDecimals = 1
+	probDecimals  = 4
 )
+
+// value formats a statistic of an index as the tables show it.
+func value(v float64) string {
+	if math.Abs(v) >= 1e4 {
+		return fixed(v, 0)
+	}
+	return fixed(v, valueDecimals)
+}
+
+// seText formats a Monte Carlo standard error to two significant digits
+// (0.00094, 0.25, 243), "0" for an exact one.
+func seText(se float64) string {
+	return fixed(se, seDigits(se))
+}
+
+// seDigits is the decimals that show se to two significant digits.
+func seDigits(se float64) int {
+	if !(se > 0) || math.IsInf(se, 0) {
+		return 0
+	}
+	return min(max(1-int(math.Floor(math.Log10(se))), 0), 12)
+}
+
+// changeText formats a scenario's change of the mean to the decade of its
+// paired error's first digit (as the terminal does), with no more than four
+// significant figures where common random numbers make the error tiny, and
+// a sign.
+func changeText(mean, se float64) string {
+	d := max(seDigits(max(se, 1e-3*math.Abs(mean)))-1, 0)
+	if se == 0 {
+		d = valueDecimals
+	}
+	s := fixed(mean, d)
+	if mean > 0 && strings.Trim(s, "0.,") != "" {
+		s = "+" + s
+	}
+	return s
+}
 
 // Statistic keys of the comparison tables, as in SimCSV.
 const (
@@ -147,7 +188,7 @@ func (b *builder) tailTable(scen string, rows []sim.Row, caption string) tailTab
 	t := tailTable{ID: b.uniqueID("tail-" + scen + "-" + rows[0].Period), Caption: caption}
 	for _, row := range rows {
 		t.Columns = append(t.Columns, struct{ Name, Unit string }{row.Name, row.Unit})
-		t.MeanSE = append(t.MeanSE, newNumCell(scen, row, "mean_se", fixed(row.Tail.MeanSE, seDecimals)))
+		t.MeanSE = append(t.MeanSE, newNumCell(scen, row, "mean_se", seText(row.Tail.MeanSE)))
 		t.Adverse = append(t.Adverse, render.AdverseSide(row))
 	}
 	stats := render.StatisticsFor(rows[0].Tail.ReturnPeriods)
@@ -160,7 +201,7 @@ func (b *builder) tailTable(scen string, rows []sim.Row, caption string) tailTab
 	for _, s := range stats {
 		st := tailStat{Label: statLabel(s), Sep: s.Key == "p01" || s.Key == "var95" || s.Key == firstRL}
 		for _, row := range rows {
-			st.Cells = append(st.Cells, newNumCell(scen, row, s.Key, fixed(s.Value(row.Tail), valueDecimals)))
+			st.Cells = append(st.Cells, newNumCell(scen, row, s.Key, value(s.Value(row.Tail))))
 		}
 		t.Stats = append(t.Stats, st)
 	}
@@ -513,7 +554,7 @@ func (b *builder) compareTable(group []sim.Row) compareTable {
 			stat string
 			v    float64
 		}{{"mean", tl.Mean}, {"p50", tl.Quantile(0.50)}, {"var95", tl.VaR95}, {"var99", tl.VaR99}, {"es95", tl.ES95}} {
-			out = append(out, newNumCell(scen, row, c.stat, fixed(c.v, valueDecimals)))
+			out = append(out, newNumCell(scen, row, c.stat, value(c.v)))
 		}
 		return out
 	}
@@ -528,13 +569,10 @@ func (b *builder) compareTable(group []sim.Row) compareTable {
 				continue
 			}
 			row, c := sc.Rows[k], sc.Changes[k]
-			change := fixed(c.Mean, valueDecimals)
-			if !strings.HasPrefix(change, "-") && change != fixed(0, valueDecimals) {
-				change = "+" + change
-			}
+			change := changeText(c.Mean, c.MeanSE)
 			ix.Scenarios = append(ix.Scenarios, compareRow{Name: sc.Name, Cells: cells(sc.Name, row),
 				Change:   newNumCell(sc.Name, row, statChangeMean, change),
-				ChangeSE: newNumCell(sc.Name, row, statChangeMeanSE, fixed(c.MeanSE, seDecimals))})
+				ChangeSE: newNumCell(sc.Name, row, statChangeMeanSE, seText(c.MeanSE))})
 		}
 		t.Indices = append(t.Indices, ix)
 	}

@@ -908,3 +908,20 @@ func TestTablesKeepTableLayout(t *testing.T) {
 		}
 	}
 }
+
+// TestReportNumberFormats: Monte Carlo errors keep two significant digits
+// (no "± 0.00" for a paired error of 0.00094), a change is shown to the
+// decade of its error's first digit as in the terminal, and large values
+// drop their tenths.
+func TestReportNumberFormats(t *testing.T) {
+	for _, c := range []struct{ got, want string }{
+		{seText(0.00094), "0.00094"}, {seText(0.25), "0.25"}, {seText(242.93), "243"}, {seText(0), "0"},
+		{changeText(-89.98723, 0.00094), "-89.99"}, {changeText(6880.3, 25), "+6,880"}, {changeText(0.3, 0.25), "+0.3"},
+		{changeText(-0.125, 0.0027), "-0.125"}, {changeText(-90, 0), "-90.0"},
+		{value(2396910.1), "2,396,910"}, {value(-14.83), "-14.8"}, {value(-0.04), "0.0"},
+	} {
+		if c.got != c.want {
+			t.Errorf("got %q, want %q", c.got, c.want)
+		}
+	}
+}
