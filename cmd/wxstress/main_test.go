@@ -762,6 +762,17 @@ func TestCSVHasPlanningFigures(t *testing.T) {
 			t.Errorf("the CSV lacks %q", strings.TrimSpace(want))
 		}
 	}
+	// Every line before the header is a manifest comment: none wrapped
+	// onto a line of its own.
+	head, _, _ := strings.Cut(out, "scenario,index,period,unit,adverse,statistic,value\n")
+	for _, l := range strings.Split(strings.TrimSuffix(head, "\n"), "\n") {
+		if !strings.HasPrefix(l, "# ") {
+			t.Errorf("a manifest line without its '# ': %q", l)
+		}
+	}
+	if !strings.Contains(head, "# period_dates: heating ") {
+		t.Error("the CSV manifest lacks the period dates")
+	}
 	if strings.Contains(out, "<nil>") || strings.Contains(out, "[heating]") {
 		t.Errorf("Go formatting in the CSV manifest:\n%s", out[:min(len(out), 1500)])
 	}

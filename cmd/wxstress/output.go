@@ -252,7 +252,11 @@ func readHashed[T any](path string, decode func([]byte, string) (*T, error)) (*T
 
 func manifest(m *model.File, modelPath, sum string, res *sim.Result) render.Manifest {
 	c := res.Config
-	return render.Manifest{
+	var dates []render.PeriodDates
+	for _, p := range res.Periods {
+		dates = append(dates, render.PeriodDates{Name: p.Name, From: p.From, To: p.To})
+	}
+	return render.Manifest{PeriodDates: dates,
 		Tool: "wxstress", ToolVersion: version, ModelFile: filepath.Base(modelPath), ModelSHA256: sum,
 		DataSHA256: m.Data.SHA256, Seed: c.Seed, Paths: c.Paths, Year: c.Year, Start: c.Start, Periods: c.Periods, SimulatedDays: res.SimulatedDays,
 		Units: m.Data.Units, HDDBase: c.Bases.HDD, CDDBase: c.Bases.CDD, ColdBelow: c.Bases.ColdBelow,

@@ -81,8 +81,17 @@ type Summary struct {
 func NewSummary(r *SimReport, m *model.File) *Summary {
 	sm := &Summary{KeyTitle: "Key figures (adverse side: high for degree days and demand, low for the coldest day)"}
 	mf := r.Manifest
-	sm.Run = append(sm.Run, fmt.Sprintf("%s synthetic years of %d (%s start, seed %d), %s: %s",
-		numfmt.Number(float64(mf.Paths)), mf.Year, mf.Start, mf.Seed, Plural(len(mf.Periods), "period"), strings.Join(mf.Periods, ", ")))
+	periods := make([]string, len(mf.Periods))
+	for i, p := range mf.Periods {
+		periods[i] = p + r.periodSpan(p)
+	}
+	bases := fmt.Sprintf("HDD and CDD base %g °%s", mf.HDDBase, mf.Units)
+	if mf.HDDBase != mf.CDDBase {
+		bases = fmt.Sprintf("HDD base %g °%s, CDD base %g °%s", mf.HDDBase, mf.Units, mf.CDDBase, mf.Units)
+	}
+	sm.Run = append(sm.Run, Wrap(fmt.Sprintf("%s synthetic years of %d (%s start, seed %d), %s: %s; %s",
+		numfmt.Number(float64(mf.Paths)), mf.Year, mf.Start, mf.Seed, Plural(len(mf.Periods), "period"),
+		strings.Join(periods, ", "), bases), "  "))
 	if m != nil {
 		sm.Run = append(sm.Run, "Model: "+ModelLine(m))
 	}

@@ -149,6 +149,7 @@ func PValue(p float64) string {
 type errWriter struct {
 	w   io.Writer
 	err error
+	raw bool // machine output (a CSV's manifest lines): never wrapped
 }
 
 // printf writes a formatted text, breaking its prose lines longer than
@@ -159,7 +160,7 @@ func (e *errWriter) printf(format string, a ...any) {
 		return
 	}
 	s := fmt.Sprintf(format, a...)
-	if width(s) > wrapWidth || strings.Contains(s, Glue) {
+	if !e.raw && (width(s) > wrapWidth || strings.Contains(s, Glue)) {
 		var b strings.Builder
 		for line := range strings.SplitAfterSeq(s, "\n") {
 			text := strings.TrimSuffix(line, "\n")

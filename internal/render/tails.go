@@ -40,6 +40,8 @@ type Manifest struct {
 	Year        int      `json:"year"`
 	Start       string   `json:"start"`
 	Periods     []string `json:"periods"`
+	// PeriodDates are the periods' first and last days in the target year.
+	PeriodDates []PeriodDates `json:"period_dates,omitempty"`
 	// SimulatedDays is the days stepped per path, burn-in included.
 	SimulatedDays int      `json:"simulated_days"`
 	Units         string   `json:"units"`
@@ -83,7 +85,9 @@ const QuantileConvention = "Hyndman-Fan type 4 (linear interpolation of the empi
 // SimReport is what the simulate renderers show: one result for the table,
 // CSV and JSON forms.
 type SimReport struct {
-	Manifest  Manifest
+	Manifest Manifest
+	// Periods are the run's periods with their dates in the target year.
+	Periods   []sim.Period
 	Rows      []sim.Row // the baseline
 	Scenarios []ScenarioReport
 	Planning  *Planning // with a demand model
@@ -542,7 +546,7 @@ func csvManifest(w io.Writer, m Manifest) error {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.UseNumber() // numbers as written (a seed of 20240101, not 2.0240101e+07)
 	dec.Decode(&kv)
-	e := &errWriter{w: w}
+	e := &errWriter{w: w, raw: true}
 	if m.RunID != "" {
 		e.printf("# run_id: %s\n", m.RunID)
 	}
@@ -566,6 +570,13 @@ func csvManifest(w io.Writer, m Manifest) error {
 	}
 	if m.DemandGrowth != 0 {
 		e.printf("# demand_growth_per_cent_a_year: %v\n# demand_growth_factor: %v\n", m.DemandGrowthPerCent, m.DemandGrowth)
+	}
+	if len(m.PeriodDates) > 0 {
+		parts := make([]string, len(m.PeriodDates))
+		for i, p := range m.PeriodDates {
+			parts[i] = fmt.Sprintf("%s %s..%s", p.Name, p.From, p.To)
+		}
+		e.printf("# period_dates: %s\n", strings.Join(parts, ", "))
 	}
 	for _, in := range m.Inputs {
 		e.printf("# input: %s: %s %s\n", in.Role, in.File, in.SHA256)
@@ -600,7 +611,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 	}
 	writeInSeason(e, r)
 	for _, group := range byPeriod(r.Rows) {
-		e.printf("\nPeriod: %s\n", group[0].Period)
+		e.printf("\nPeriod: %s%s\n", group[0].Period, r.periodSpan(group[0].Period))
 		weather, demand := splitDemand(group)
 		writeTailTable(e, weather)
 		var dates []sim.Row
@@ -967,7 +978,7 @@ func NewSimReport(res *stress.Result) *SimReport {
 	if s == nil {
 		panic("render: NewSimReport needs a result with a simulation set")
 	}
-	r := &SimReport{Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
+	r := &SimReport{Periods: s.Base.Periods, Rows: s.Rows, History: res.History, Bands: res.Bands, Refits: len(res.Refits), Hedge: res.Hedge,
 		HedgeFile: res.HedgeFile, InSeason: s.Base.InSeason, Extremes: res.Extremes,
 		Design: res.Design, Capacities: res.Capacities}
 	r.Mixed = len(res.Refits) > 0 && len(res.Bands) == 0
@@ -989,6 +1000,35 @@ func NewSimReport(res *stress.Result) *SimReport {
 		}
 	}
 	return r
+}
+
+// PeriodDates is a period's first and last day in the manifest.
+type PeriodDates struct {
+	Name string        `json:"name"`
+	From calendar.Date `json:"from"`
+	To   calendar.Date `json:"to"`
+}
+
+// SpanText words a period's dates: "1 Nov 2025 to 31 Mar 2026", the year
+// once when both ends share it ("1 May to 30 Sep 2026").
+func SpanText(p sim.Period) string {
+	fy, fm, fd := p.From.YMD()
+	ty, tm, td := p.To.YMD()
+	from := fmt.Sprintf("%d %s", fd, fm.String()[:3])
+	if fy != ty {
+		from += fmt.Sprintf(" %d", fy)
+	}
+	return fmt.Sprintf("%s to %d %s %d", from, td, tm.String()[:3], ty)
+}
+
+// periodSpan is " (SpanText)" of the run's period named name, or "".
+func (r *SimReport) periodSpan(name string) string {
+	for _, p := range r.Periods {
+		if p.Name == name {
+			return " (" + SpanText(p) + ")"
+		}
+	}
+	return ""
 }
 
 // DatesText words the date spread of a row (the day of the peak): the
