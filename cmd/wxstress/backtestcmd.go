@@ -54,7 +54,7 @@ type backtestOptions struct {
 func newBacktestFlags(o *backtestOptions) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("backtest", pflag.ContinueOnError)
 	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
-	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C, with a warning if the data look like °F)")
+	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C; data that look like °F are flagged: a warning, or an error past ±60)")
 	fs.IntVar(&o.origins, "origins", backtest.DefaultOrigins, "the last N complete periods of each kind")
 	fs.StringArrayVar(&o.periods, "period", nil, "period to backtest, repeatable (default: year, heating); "+sim.PeriodForms)
 	fs.IntVar(&o.paths, "paths", backtest.DefaultPaths, "simulated years per origin")

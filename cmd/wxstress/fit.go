@@ -53,7 +53,7 @@ func (o *fitOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
 	fs.StringVar(&o.out, "out", "", "write the model file (JSON) here")
 	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
-	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C, with a warning if the data look like °F)")
+	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C; data that look like °F are flagged: a warning, or an error past ±60)")
 	fs.StringVar(&o.meanColumn, "mean-column", "", "use this column as the daily mean instead of (max + min)/2")
 	fs.StringVar(&o.harmonics, "harmonics", "auto", "seasonal harmonics: auto (by BIC) or 1..4")
 	fs.StringVar(&o.ar, "ar", "auto", "AR order of the anomaly's fast part: auto (by BIC, with the slow part in the model) or 1..5")

@@ -75,7 +75,7 @@ func (o *fitDemandOptions) addFlags(fs *pflag.FlagSet) {
 	fs.StringVar(&o.holidays, "holidays", "", "holiday dates and rules (fixed 12-25, 4 Thu Nov, last Mon May, easter -2): one per line, or CSV with a date and/or rule column")
 	fs.StringVar(&o.noise, "noise", "auto", "scale of the residual noise: auto (by AIC), constant, load (in proportion to the expected load: the multiplicative form) or bands (σ by temperature quarter)")
 	fs.StringVar(&o.form, "form", "auto", "change-point form: auto (by BIC), "+strings.Join(model.DemandFormNames(), ", "))
-	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C, with a warning if they look like °F)")
+	fs.StringVar(&o.units, "units", "", "units of the temperatures: C or F (default C; data that look like °F are flagged: a warning, or an error past ±60)")
 	fs.StringVar(&o.out, "out", "", "write the demand model file (JSON) here")
 	fs.StringVar(&o.format, "format", "table", "what to print: table or json (the model file)")
 	fs.BoolVar(&o.force, "force", false, "replace an existing output file")

@@ -99,6 +99,11 @@ func TestExitCodes(t *testing.T) {
 			`period "jan" is not simulated; the run's periods are year, heating, cooling`},
 		{[]string{"simulate", "--model", "m.json", "--period", "jan", "--exceed", "hdd:feb:500"}, exitUsage, "the run's periods are jan"},
 		{[]string{"simulate", "--model", "m.json", "--format", "xml"}, exitUsage, "table, csv or json"},
+		{[]string{"simulate", "--model", "m.json", "--hdd-base", "1e9"}, exitUsage, "want a temperature from −100 to 200"},
+		{[]string{"simulate", "--model", "m.json", "--year", "0"}, exitUsage, "--year 0: want a year"},
+		{[]string{"simulate", "--model", "m.json", "--loading", "0.3"}, exitUsage, "--loading goes with --hedge"},
+		{[]string{"simulate", "--model", "m.json", "--title", "X"}, exitUsage, "--title goes with --report"},
+		{[]string{"simulate", "--model", "m.json", "--detail", "--format", "json"}, exitUsage, "--detail is for --format table"},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := call(t, context.Background(), c.args...)

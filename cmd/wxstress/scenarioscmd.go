@@ -37,7 +37,7 @@ type scenariosOptions struct {
 func newScenariosFlags(o *scenariosOptions) *pflag.FlagSet {
 	fs := pflag.NewFlagSet("scenarios", pflag.ContinueOnError)
 	fs.StringVar(&o.modelPath, "model", "", "also apply each scenario to this model, as simulate does")
-	fs.IntVar(&o.year, "year", 0, "with --model: target year (default: the year after the data end)")
+	fs.IntVar(&o.year, "year", 0, "with --model: target year (default: the year simulate would choose from the data end)")
 	return fs
 }
 

@@ -112,7 +112,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
 	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
-	fs.IntVar(&o.refits, "uncertainty", 0, "with --history: parameter uncertainty from N refits to synthetic records of the model (parametric bootstrap; 20–100)")
+	fs.IntVar(&o.refits, "uncertainty", 0, "with --history: parameter uncertainty from N refits to synthetic records of the model (parametric bootstrap; 20 to 1000, 100 usually enough)")
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
@@ -141,13 +141,28 @@ func (o *simulateOptions) validate() error {
 	if o.modelPath == "" {
 		return usagef("simulate: --model is required")
 	}
-	if o.year != 0 && (o.year < 1800 || o.year > 2300) {
+	if (o.year != 0 || o.fs.Changed("year")) && (o.year < 1800 || o.year > 2300) {
 		return usagef("simulate: --year %d: want a year from 1800 to 2300", o.year)
 	}
-	for _, v := range []float64{o.hddBase, o.cddBase, o.coldBelow} {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return usagef("simulate: --hdd-base, --cdd-base and --cold-below must be finite numbers")
+	for _, b := range []struct {
+		flag string
+		v    float64
+	}{{"--hdd-base", o.hddBase}, {"--cdd-base", o.cddBase}, {"--cold-below", o.coldBelow}} {
+		// Wider than any station's daily means in either scale: outside
+		// is a typo, not a base.
+		if !(b.v >= -100 && b.v <= 200) {
+			return usagef("simulate: %s %v: want a temperature from −100 to 200 in the model's degrees", b.flag, b.v)
 		}
+	}
+	for _, f := range []struct{ flag, needs, given string }{
+		{"loading", "hedge", o.hedgeFile}, {"title", "report", o.report},
+	} {
+		if o.fs.Changed(f.flag) && f.given == "" {
+			return usagef("simulate: --%s goes with --%s", f.flag, f.needs)
+		}
+	}
+	if o.detail && o.format != "table" {
+		return usagef("simulate: --detail is for --format table (csv and json always hold every table)")
 	}
 	o.memoryLimit = stress.DefaultMemoryLimit()
 	if o.maxMemory != "" {
