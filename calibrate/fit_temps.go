@@ -260,7 +260,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		mean, sd := af.filtered.SlowState(prm)
 		f.Slow = &model.Slow{Phi: prm.PhiSlow, SD: prm.SDSlow, EFoldingDays: prm.EFolding(), State: mean, StateSD: sd,
 			PhiSE: finiteOr0(af.chosen.SE[p]), SDSE: finiteOr0(af.chosen.SE[p+1])}
-		if w := shortSlowAdvice(f.Slow, len(s.Temps), f.Data.Units); w != "" && d.SlowAdvice == "" {
+		if w := shortSlowAdvice(f.Slow, len(s.Temps), f.Data.Units, true); w != "" && d.SlowAdvice == "" {
 			d.SlowAdvice = w
 		}
 	}
@@ -675,14 +675,30 @@ const (
 	SlowShortSpans = 20
 )
 
+// ShortSlowAdvice is the fit's caution about m's slow part when the record
+// behind it is too short to pin it down ("" otherwise): worded for a run
+// from the data end (conditional), which carries the slow part's state
+// forward, or for one from the climate, which uses only its spread.
+func ShortSlowAdvice(m *model.File, conditional bool) string {
+	if m.Slow == nil {
+		return ""
+	}
+	return shortSlowAdvice(m.Slow, int(m.Data.LastDate-m.Data.FirstDate)+1, m.Data.Units, conditional)
+}
+
 // shortSlowAdvice cautions about a slow part fitted to a record too short to
 // pin it down: its spread, and its state at the data end that a
 // conditional start carries forward, rest on a few of its own time spans.
-func shortSlowAdvice(sl *model.Slow, days int, units string) string {
+func shortSlowAdvice(sl *model.Slow, days int, units string, conditional bool) string {
 	years := float64(days) / calendar.DaysPerYear
 	spans := float64(days) / sl.EFoldingDays
 	if years >= SlowShortYears && spans >= SlowShortSpans {
 		return ""
+	}
+	if !conditional {
+		return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd "+
+			"(%.2f ± %.2f °%s), and with it the spread of seasons and years, is poorly determined; compare with --slow none",
+			years, spans, sl.EFoldingDays, sl.SD, sl.SDSE, units)
 	}
 	return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd (%.2f ± %.2f °%s) "+
 		"and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward, are poorly "+

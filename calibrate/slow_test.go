@@ -294,9 +294,15 @@ func TestShortSlowAdvice(t *testing.T) {
 		tau   float64
 		wants bool
 	}{{1461, 155, true}, {25933, 71, false}, {5479, 300, true}, {5479, 100, false}} {
-		got := shortSlowAdvice(&model.Slow{EFoldingDays: c.tau, SD: 1.5, SDSE: 0.5, State: 3.1, StateSD: 0.9}, c.days, "C")
+		sl := &model.Slow{EFoldingDays: c.tau, SD: 1.5, SDSE: 0.5, State: 3.1, StateSD: 0.9}
+		got := shortSlowAdvice(sl, c.days, "C", true)
 		if (got != "") != c.wants {
 			t.Errorf("%d days, e-folding %v days: advice %q", c.days, c.tau, got)
+		}
+		// A climate run's wording leaves out the state at the data end,
+		// which it does not use.
+		if clim := shortSlowAdvice(sl, c.days, "C", false); (clim != "") != c.wants || strings.Contains(clim, "state") {
+			t.Errorf("%d days, e-folding %v days: climate-start advice %q", c.days, c.tau, clim)
 		}
 	}
 }
@@ -336,6 +342,11 @@ func TestShortRealRecordsCautioned(t *testing.T) {
 		a := res.Model.Diagnostics.SlowAdvice
 		if res.Model.Slow == nil || !strings.Contains(a, "the slow part rests on 4.0 years") {
 			t.Errorf("%s: slow part %+v, advice %q", city, res.Model.Slow, a)
+		}
+		// The simulate command recognizes the fit's caution to reword it
+		// for a climate start.
+		if a != ShortSlowAdvice(res.Model, true) {
+			t.Errorf("%s: the stored advice is not ShortSlowAdvice's:\n%q\n%q", city, a, ShortSlowAdvice(res.Model, true))
 		}
 	}
 }

@@ -345,7 +345,11 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	baseWarnings := job.Config.Bases.Implausible(model.Units(m.Data.Units))
 	if dg := m.Diagnostics; dg != nil && dg.SlowAdvice != "" {
-		baseWarnings = append(baseWarnings, "the model's fit: "+dg.SlowAdvice)
+		advice := dg.SlowAdvice
+		if o.start != sim.StartConditional && o.observed == "" && advice == calibrate.ShortSlowAdvice(m, true) {
+			advice = calibrate.ShortSlowAdvice(m, false) // a climate run does not use the state at the data end
+		}
+		baseWarnings = append(baseWarnings, "the model's fit: "+advice)
 	}
 
 	var demandSum string
