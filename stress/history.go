@@ -70,6 +70,8 @@ type HistoricalSeasons struct {
 	// climate-start run (same model, paths and seed) because the run itself
 	// started from the state at the data end.
 	ClimateRun bool
+	// Paths is the number of simulated years behind the model side.
+	Paths int
 }
 
 // Historical takes every complete period of set's configuration in the
@@ -80,7 +82,7 @@ type HistoricalSeasons struct {
 // than MaxSeasonGaps of their days are left out.
 func Historical(s *calibrate.Series, m *model.File, set *Set) (*HistoricalSeasons, error) {
 	cfg := set.Config
-	h := &HistoricalSeasons{TargetYear: cfg.Year, Seasons: map[string][]Season{}}
+	h := &HistoricalSeasons{TargetYear: cfg.Year, Seasons: map[string][]Season{}, Paths: cfg.Paths}
 	if m.Trend.Kind == "linear" {
 		h.ShiftPerYear = m.Trend.SlopePerYear
 	}

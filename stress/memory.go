@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"wxstress/internal/numfmt"
 	"wxstress/sim"
 )
 
@@ -81,9 +82,16 @@ func checkMemory(job *Job, limit int64) error {
 		indices += 4
 	}
 	if est := MemoryEstimate(job, periods, indices); est > limit {
-		return fmt.Errorf("%w: %s paths × %d periods × %d indices × %d runs needs about %s, above the limit of %s; "+
-			"run fewer paths or raise the limit with --max-memory", ErrMemory, strconv.Itoa(job.Config.Paths), periods, indices,
-			estimatedRuns(job), FormatBytes(est), FormatBytes(limit))
+		count := func(n int, one, many string) string {
+			if n == 1 {
+				return "1 " + one
+			}
+			return numfmt.Number(float64(n)) + " " + many
+		}
+		return fmt.Errorf("%w: %s × %s × %s × %s needs about %s, above the limit of %s; "+
+			"run fewer paths or raise the limit with --max-memory", ErrMemory, count(job.Config.Paths, "path", "paths"),
+			count(periods, "period", "periods"), count(indices, "index", "indices"), count(estimatedRuns(job), "run", "runs"),
+			FormatBytes(est), FormatBytes(limit))
 	}
 	return nil
 }

@@ -132,7 +132,7 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.maxMemory, "max-memory", "", "refuse a run whose estimated memory is above this, e.g. 8G (default: half the machine's memory)")
 	fs.StringVar(&o.report, "report", "", "also write an HTML report (fit diagnostics, fan chart, tails, scenarios, demand) here")
 	fs.StringVar(&o.out, "out", "", "also write the tail tables tails.json and tails.csv into this directory")
-	fs.BoolVar(&o.perPath, "per-path", false, "with --out: also write paths.csv, every path's aggregates (about 230 bytes a path for the default periods)")
+	fs.BoolVar(&o.perPath, "per-path", false, "with --out: also write paths.csv, every path's aggregates (about 230 bytes a path for the default periods, twice that with --demand)")
 	o.fs = fs
 	return fs
 }

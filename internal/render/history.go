@@ -39,10 +39,16 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		if len(r.Worst) > 0 {
 			worst = fmt.Sprintf("%s (%d)", numfmt.Fixed(r.Worst[0].Value, 1), r.Worst[0].Year)
 		}
+		// The sds and their band to two significant digits of the smallest,
+		// so that a verdict is visible in the numbers beside it.
+		d := 1
+		if lo := min(r.SD, r.ModelSD, r.SDBand[0]); lo > 0 {
+			d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
+		}
 		rows = append(rows, []string{r.Index.Info().Name, r.Period, fmt.Sprint(len(r.Values)),
-			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, 1), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
-			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, 1),
-			numfmt.Fixed(r.SDBand[0], 1) + "–" + numfmt.Fixed(r.SDBand[1], 1), r.SDVerdict})
+			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, d), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
+			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, d),
+			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict})
 	}
 	notes = append(notes, "sd band: 5–95 % of the sd of that many seasons drawn from the simulated years; a record sd outside it "+
 		"says the model's spread is wrong for that index.")
@@ -52,6 +58,11 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		}
 		var parts []string
 		for _, w := range r.Worst {
+			if w.Prob <= 0 {
+				parts = append(parts, fmt.Sprintf("%d: %s, no simulated year as extreme (model probability below 1 in %s)",
+					w.Year, numfmt.Fixed(w.Value, 1), numfmt.Number(float64(h.Paths))))
+				continue
+			}
 			parts = append(parts, fmt.Sprintf("%d: %s, model probability %s (1 in %s)", w.Year, numfmt.Fixed(w.Value, 1),
 				numfmt.Prob(w.Prob), oneIn(w.Prob)))
 		}

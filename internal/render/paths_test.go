@@ -6,6 +6,7 @@ import (
 	"encoding/csv"
 	"io"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -47,6 +48,9 @@ func pathsRun(t testing.TB, paths int) *sim.Result {
 // was (shortest round-trip formatting).
 func TestPathsCSV(t *testing.T) {
 	res := pathsRun(t, 10_001) // more than one block on any processor count
+	for i := range res.Aggregates[0].Values {
+		res.Aggregates[0].Values[i] *= 1e4 // an energy-sized value (exponent 7 in %g)
+	}
 	var b bytes.Buffer
 	if err := PathsCSV(&b, res, nil); err != nil {
 		t.Fatal(err)
@@ -68,6 +72,9 @@ func TestPathsCSV(t *testing.T) {
 		for j, a := range res.Aggregates {
 			if v, err := strconv.ParseFloat(row[j+1], 64); err != nil || v != a.Values[i] {
 				t.Fatalf("path %d, %s: %q, want %v", i, rows[0][j+1], row[j+1], a.Values[i])
+			}
+			if strings.ContainsAny(row[j+1], "eE") {
+				t.Fatalf("path %d, %s: %q has an exponent", i, rows[0][j+1], row[j+1])
 			}
 		}
 	}

@@ -809,7 +809,10 @@ func PathsCSV(w io.Writer, res *sim.Result, h *hedge.Result) error {
 				if v := c[i]; counts[j] && v == math.Trunc(v) && math.Abs(v) < 1<<53 {
 					b = strconv.AppendInt(b, int64(v), 10)
 				} else {
-					b = strconv.AppendFloat(b, v, 'g', -1, 64)
+					// The shortest digits that read back to v, never with an
+					// exponent (a season's energy of 2.06e+07 GJ reads
+					// 20565659.072489783).
+					b = strconv.AppendFloat(b, v, 'f', -1, 64)
 				}
 			}
 			b = append(b, '\n')
@@ -896,11 +899,15 @@ func writeInSeason(e *errWriter, r *SimReport) {
 		rows = append(rows, []string{o.Period, fmt.Sprint(o.Days), numfmt.Fixed(o.Values[sim.HDD], 1), numfmt.Fixed(o.Values[sim.CDD], 1), energy})
 	}
 	deg := "°" + r.Manifest.Units + "·day"
-	energyHead := "energy so far"
+	header := []string{"period", "days observed", "HDD so far (" + deg + ")", "CDD so far (" + deg + ")"}
 	if u := demandUnitOf(r); u != "" {
-		energyHead += " (" + EnergyUnit(u) + ")"
+		header = append(header, "energy so far ("+EnergyUnit(u)+")")
+	} else {
+		for i := range rows { // no demand model: no energy column
+			rows[i] = rows[i][:len(header)]
+		}
 	}
-	e.table([]string{"period", "days observed", "HDD so far (" + deg + ")", "CDD so far (" + deg + ")", energyHead}, rows)
+	e.table(header, rows)
 }
 
 // ExceedText writes an exceedance probability with its Monte Carlo s.e.,
