@@ -688,3 +688,14 @@ func TestReadMonthGapWarned(t *testing.T) {
 		}
 	}
 }
+
+// TestReadSemicolonFile: a file separated by semicolons is read as one
+// column; the error says so rather than only that no date column was found.
+func TestReadSemicolonFile(t *testing.T) {
+	t.Parallel()
+	_, err := ReadCSV(strings.NewReader("date;tavg\n2020-01-01;3.5\n"), "semi.csv", ReadOptions{})
+	if err == nil || !strings.Contains(err.Error(), "semi.csv:1: no date column") ||
+		!strings.Contains(err.Error(), "reads like values separated by semicolons") {
+		t.Errorf("error %v", err)
+	}
+}

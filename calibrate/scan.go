@@ -321,6 +321,15 @@ func (s *rowScanner) listColumns() string {
 	if len(s.header) > n {
 		list += fmt.Sprintf(" (and %d more)", len(s.header)-n)
 	}
+	if len(s.header) == 1 {
+		for _, c := range []struct{ sep, name string }{{";", "semicolons"}, {"\t", "tabs"}, {"|", "bars"}} {
+			if sep, name := c.sep, c.name; strings.Contains(s.header[0], sep) {
+				list += fmt.Sprintf(": one column only, with %s inside; the file reads like values separated by %s, "+
+					"and these files must be comma-separated", name, name)
+				break
+			}
+		}
+	}
 	return list
 }
 
