@@ -1,6 +1,10 @@
 package model
 
-import "fmt"
+import (
+	"fmt"
+	"strconv"
+	"strings"
+)
 
 // Bounds Validate puts on a model file, in the data's units (°C or °F). They
 // are far outside anything a fit of a real station record gives, and chosen
@@ -71,9 +75,19 @@ func CheckPhi(phi []float64) error {
 	}
 	switch r := SpectralRadius(phi); {
 	case r >= 1:
-		return fmt.Errorf("φ = %v is not stationary (largest root modulus %.4f ≥ 1)", phi, r)
+		return fmt.Errorf("φ = %s is not stationary (largest root modulus %.4f ≥ 1)", phiText(phi), r)
 	case r > MaxRootModulus:
-		return fmt.Errorf("φ = %v is too persistent (largest root modulus %.5f > %g): anomalies would last for years", phi, r, MaxRootModulus)
+		return fmt.Errorf("φ = %s is too persistent (largest root modulus %.5f > %g): anomalies would last for years",
+			phiText(phi), r, MaxRootModulus)
 	}
 	return nil
+}
+
+// phiText writes AR coefficients for a message: "1.4327", "0.6, −0.2".
+func phiText(phi []float64) string {
+	parts := make([]string, len(phi))
+	for i, v := range phi {
+		parts[i] = strconv.FormatFloat(v, 'g', 5, 64)
+	}
+	return strings.Join(parts, ", ")
 }

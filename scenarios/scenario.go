@@ -328,12 +328,23 @@ func (s *Scenario) DescribeFor(m *model.File, year int) []string {
 	if units.Valid() {
 		out = s.describe(s.factor(units), units.Symbol()) // the model's degrees
 	}
-	t := s.Trend
-	if t == nil || t.TargetYear == nil {
-		return out
-	}
 	applied, err := s.Apply(m, year)
 	if err != nil {
+		return out
+	}
+	// What the changes make of this model's persistence and shocks.
+	if s.Persistence != nil {
+		line := fmt.Sprintf("on this model: fast-part φ %s → %s", numList(m.AR.Phi), numList(applied.AR.Phi))
+		if s.Persistence.KeepVariance {
+			line += fmt.Sprintf(", σ × %.3f", applied.Volatility.Monthly[0]/m.Volatility.Monthly[0])
+		}
+		out = append(out, line)
+	}
+	if s.Tails != nil {
+		out = append(out, "on this model: shocks "+shockText(m.Shocks)+" → "+shockText(applied.Shocks))
+	}
+	t := s.Trend
+	if t == nil || t.TargetYear == nil {
 		return out
 	}
 	base := m.Trend.Intercept + m.Trend.Slope()*calendar.YearStart(year).ModelTime()
@@ -370,4 +381,25 @@ func times(x []float64, f float64) []float64 {
 		out[i] = f * v
 	}
 	return out
+}
+
+// numList writes coefficients for a description: "0.716", "0.62, 0.11".
+func numList(v []float64) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = fmt.Sprintf("%.3f", x)
+	}
+	return strings.Join(parts, ", ")
+}
+
+// shockText words a shock family with its parameters: "skewed Student-t
+// (ν 10.4, ξ 0.85)".
+func shockText(sh model.Shocks) string {
+	switch sh.Family {
+	case model.FamilySkewT:
+		return fmt.Sprintf("skewed Student-t (ν %.1f, ξ %.2f)", sh.DF, sh.Skew)
+	case model.FamilyStudentT:
+		return fmt.Sprintf("Student-t (ν %.1f)", sh.DF)
+	}
+	return sh.Family
 }

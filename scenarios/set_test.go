@@ -14,11 +14,11 @@ import (
 func TestPhiCheckSharedWithApply(t *testing.T) {
 	t.Parallel()
 	cases := []struct{ src, want string }{
-		{"name = \"p\"\n[persistence]\nphi = [1.2]\n", "bad.toml:3: key persistence.phi: φ = [1.2] is not stationary"},
-		{"name = \"p\"\n[persistence]\nphi = [0.5]\nscale = 2.5\n", "bad.toml:3: key persistence.phi: φ = [1.25] is not stationary"},
-		{"name = \"p\"\n[persistence]\nphi = [0.9995]\n", "bad.toml:3: key persistence.phi: φ = [0.9995] is too persistent"},
+		{"name = \"p\"\n[persistence]\nphi = [1.2]\n", "bad.toml:3: key persistence.phi: φ = 1.2 is not stationary"},
+		{"name = \"p\"\n[persistence]\nphi = [0.5]\nscale = 2.5\n", "bad.toml:3: key persistence.phi: φ = 1.25 is not stationary"},
+		{"name = \"p\"\n[persistence]\nphi = [0.9995]\n", "bad.toml:3: key persistence.phi: φ = 0.9995 is too persistent"},
 		// AR(2) with a root of modulus 1.0639 (see model.TestSpectralRadius).
-		{"name = \"p\"\n[persistence]\nphi = [0.5, 0.6]\n", "bad.toml:3: key persistence.phi: φ = [0.5 0.6] is not stationary"},
+		{"name = \"p\"\n[persistence]\nphi = [0.5, 0.6]\n", "bad.toml:3: key persistence.phi: φ = 0.5, 0.6 is not stationary"},
 	}
 	for _, c := range cases {
 		_, err := Parse([]byte(c.src), "bad.toml")
@@ -29,7 +29,7 @@ func TestPhiCheckSharedWithApply(t *testing.T) {
 	// Apply refuses the same φ, in the same words, for a model.
 	s := &Scenario{Name: "p", Persistence: &Persistence{Phi: []float64{1.2}}}
 	_, err := s.Apply(coldModel(), 2025)
-	if err == nil || !strings.Contains(err.Error(), "φ = [1.2] is not stationary") {
+	if err == nil || !strings.Contains(err.Error(), "φ = 1.2 is not stationary") {
 		t.Errorf("Apply: %v", err)
 	}
 	if _, err := Parse([]byte("[persistence]\nphi = [0.82]\nscale = 1.1\n"), "ok.toml"); err != nil {
@@ -79,6 +79,27 @@ func TestLookupAllRefusesRepeatedNames(t *testing.T) {
 		_, err := LookupAll(c.args)
 		if err == nil || !strings.HasPrefix(err.Error(), c.want) {
 			t.Errorf("%v: error %v, want %q", c.args, err, c.want)
+		}
+	}
+}
+
+// TestDescribeForNamesTheModelsChange: for a model, a persistence or tails
+// scenario says what it makes of that model's φ and shocks, so a skewed-t
+// model's kept skew is visible.
+func TestDescribeForNamesTheModelsChange(t *testing.T) {
+	t.Parallel()
+	m := coldModel()
+	for _, c := range []struct{ name, want string }{
+		{"persistent", "on this model: fast-part φ "},
+		{"fat-tails", "on this model: shocks "},
+	} {
+		s, err := Lookup(c.name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := strings.Join(s.DescribeFor(m, 2025), "\n")
+		if !strings.Contains(got, c.want) || !strings.Contains(got, "→") {
+			t.Errorf("%s: %q", c.name, got)
 		}
 	}
 }
