@@ -90,6 +90,12 @@ func (p *outputPlan) check(paths ...string) error {
 		if err := outputs.Check(path, p.inputs, p.force); err != nil {
 			return err
 		}
+		// A missing directory is made, one level only: a path whose
+		// directory's parent is missing too is more likely a typo than a
+		// tree to create.
+		if dir := filepath.Dir(path); !exists(dir) && !exists(filepath.Dir(dir)) {
+			return &outputs.RefusedError{Path: path, Reason: fmt.Sprintf("neither its directory %s nor that directory's parent exists", dir)}
+		}
 		abs, err := filepath.Abs(path)
 		if err != nil {
 			return err
@@ -120,12 +126,18 @@ func (p *outputPlan) checkDir(dir string, names ...string) error {
 func (p *outputPlan) add(path string, fill func(io.Writer) error) error {
 	dir := filepath.Dir(path)
 	if _, err := os.Stat(dir); errors.Is(err, fs.ErrNotExist) {
-		if err := os.MkdirAll(dir, 0o755); err != nil {
+		if err := os.Mkdir(dir, 0o755); err != nil { // one level, as check allowed
 			return err
 		}
 		p.made = append(p.made, dir)
 	}
 	return p.set.Add(path, func(w io.Writer) error { return fill(&ctxWriter{w: w, ctx: p.ctx}) })
+}
+
+// exists reports whether path names anything (a broken link counts).
+func exists(path string) bool {
+	_, err := os.Lstat(path)
+	return err == nil
 }
 
 // ctxWriter fails its writes once ctx is done, so that writing a large

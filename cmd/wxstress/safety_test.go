@@ -369,3 +369,25 @@ func TestPerPathIsAskedFor(t *testing.T) {
 		t.Error("the refused run replaced tails.json")
 	}
 }
+
+// TestOutputDirectoryOneLevel: a missing output directory is made when its
+// parent exists, and nothing is made when the parent is missing too (a
+// typo rather than a tree to create): the run is refused before any work.
+func TestOutputDirectoryOneLevel(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	dir := t.TempDir()
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "20",
+		"--report", filepath.Join(dir, "typo", "deeper", "r.html"))
+	if code != exitFailure || !strings.Contains(stderr, "nor that directory's parent exists") {
+		t.Errorf("two missing levels: exit %d, stderr %q", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "typo")); err == nil {
+		t.Error("a refused run made a directory")
+	}
+	code, _, stderr = call(t, context.Background(), "simulate", "--model", m, "--paths", "20",
+		"--report", filepath.Join(dir, "reports", "r.html"))
+	if _, err := os.Stat(filepath.Join(dir, "reports", "r.html")); code != 0 || err != nil {
+		t.Errorf("one missing level: exit %d, %v, stderr %q", code, err, stderr)
+	}
+}
