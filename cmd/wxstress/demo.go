@@ -133,7 +133,13 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	rep.Manifest.Scenarios = demoScenarios
 	rep.Manifest.ParameterUncertainty = rep.Uncertainty
 	rep.Manifest.Warnings = res.Warnings
-	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = demandPath, bytesSHA(demandJSON)
+	rep.Manifest.DemandModel, rep.Manifest.DemandSHA256 = filepath.Base(demandPath), bytesSHA(demandJSON)
+	// The built-in record serves as the history and the season so far; the
+	// demand history is its loads.
+	rep.Manifest.Inputs = []render.ManifestInput{
+		{Role: "station record (history, season under way)", File: demo.StationFile, SHA256: series.SHA256},
+		{Role: "demand history (loads so far)", File: demo.DemandFile, SHA256: dem.SHA256},
+	}
 	reportPath := filepath.Join(o.dir, "report.html")
 	meta := report.Meta{
 		Title:   fmt.Sprintf("%s and %s: %s synthetic years of %d (invented data)", demo.StationName, demo.Retailer, numfmt.Number(float64(o.paths)), year),
