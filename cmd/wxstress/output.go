@@ -6,6 +6,7 @@ package main
 // the pipeline (package stress) and prints through these.
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -339,5 +340,36 @@ func fileSHA(path string) string {
 
 // addReport stages the HTML report of a run.
 func addReport(p *outputPlan, path string, res *stress.Result, meta report.Meta) error {
-	return p.add(path, func(w io.Writer) error { return report.Write(w, report.New(res, meta)) })
+	return p.add(path, func(w io.Writer) error {
+		// The page's figures take seconds for a million paths and do not
+		// look at the context: build it aside, so that an interrupt ends
+		// the run at once (the abandoned build dies with the process).
+		type page struct {
+			b   []byte
+			err error
+		}
+		ctx := p.ctx
+		if ctx == nil {
+			ctx = context.Background()
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		done := make(chan page, 1)
+		go func() {
+			var b bytes.Buffer
+			err := report.Write(&b, report.New(res, meta))
+			done <- page{b.Bytes(), err}
+		}()
+		select {
+		case pg := <-done:
+			if pg.err != nil {
+				return pg.err
+			}
+			_, err := w.Write(pg.b)
+			return err
+		case <-ctx.Done():
+			return ctx.Err()
+		}
+	})
 }
