@@ -182,7 +182,7 @@ func runDemoCmd(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		}
 		fmt.Fprintf(stdout, "\nModel written to %s\n", modelPath)
 		fmt.Fprintf(stdout, "\n== 2. Demand model: %s ==\n\n", demo.Retailer)
-		if err := emitDemand(stdout, io.Discard, d, "table"); err != nil {
+		if err := emitDemand(stdout, io.Discard, d, "table", nil); err != nil {
 			return err
 		}
 		fmt.Fprintf(stdout, "\nDemand model written to %s\n", demandPath)

@@ -9,7 +9,6 @@ import (
 	"github.com/spf13/pflag"
 
 	"wxstress/calibrate"
-	"wxstress/internal/render"
 	"wxstress/model"
 	"wxstress/stress"
 )
@@ -159,15 +158,11 @@ func runFitDemandCmd(ctx context.Context, args []string, stdout, stderr io.Write
 	if err := plan.commit(ctx); err != nil {
 		return err
 	}
-	if err := emitDemand(stdout, stderr, m, o.format); err != nil {
+	if err := emitDemand(stdout, stderr, m, o.format, out.Normals); err != nil {
 		return err
 	}
 	if o.out != "" && o.format != "json" {
 		fmt.Fprintf(stdout, "\nDemand model written to %s\n", o.out)
 	}
-	if !job.Normals {
-		return nil
-	}
-	normals := out.Normals
-	return render.NormalsTable(stdout, normals, m.Unit)
+	return nil
 }

@@ -183,3 +183,28 @@ func TestFitDemandErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestFitDemandWithModel: with --model, the weather-normalized history
+// stands in the summary before the warnings and the caution, and with
+// --format json the output is the model file's JSON alone (the table used
+// to follow it and break it).
+func TestFitDemandWithModel(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day", "--model", m)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	table, caution := strings.Index(stdout, "Weather-normalized demand by historical year"), strings.Index(stdout, "not forecasts")
+	if table < 0 || caution < table {
+		t.Errorf("the weather-normalized table (at %d) is not before the caution (at %d)", table, caution)
+	}
+	code, stdout, stderr = callFitDemand(t, "--temps", demoTemps, "--demand", demoDemand, "--load-unit", "GJ/day", "--model", m,
+		"--format", "json")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if _, err := model.DecodeDemand([]byte(stdout), "stdout"); err != nil {
+		t.Errorf("the JSON output is not a model file: %v", err)
+	}
+}

@@ -37,8 +37,8 @@ func emitFit(stdout, stderr io.Writer, m *model.File, format string, checks ...s
 
 // emitDemand prints the demand summary or JSON, with the fit's warnings on
 // stderr.
-func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string) error {
-	return emit(stdout, stderr, m.Warnings, format, m.MarshalIndent, func() error { return render.DemandSummary(stdout, m) })
+func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string, normals []sim.YearNormal) error {
+	return emit(stdout, stderr, m.Warnings, format, m.MarshalIndent, func() error { return render.DemandSummaryWith(stdout, m, normals) })
 }
 
 // emit prints a fitted model: its warnings on stderr, then its file's JSON

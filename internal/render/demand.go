@@ -8,6 +8,7 @@ import (
 
 	"wxstress/internal/numfmt"
 	"wxstress/model"
+	"wxstress/sim"
 )
 
 // bandText lists the noise's σ by temperature band.
@@ -29,7 +30,12 @@ func bandText(n model.DemandNoise, u string, dec int, unit string) string {
 }
 
 // DemandSummary writes the readable summary of a fitted demand model.
-func DemandSummary(w io.Writer, m *model.Demand) error {
+func DemandSummary(w io.Writer, m *model.Demand) error { return DemandSummaryWith(w, m, nil) }
+
+// DemandSummaryWith is DemandSummary with the weather-normalized history
+// (NormalsTable) before the warnings and the caution; nil normals leave it
+// out.
+func DemandSummaryWith(w io.Writer, m *model.Demand, normals []sim.YearNormal) error {
 	e := &errWriter{w: w}
 	u := "°" + m.TemperatureUnits
 	d := m.Data
@@ -138,11 +144,12 @@ func DemandSummary(w io.Writer, m *model.Demand) error {
 		}
 		e.table([]string{"test", "statistic", "df", "p-value", "at 5 %"}, rows)
 		if dg.LjungBoxInnovations.P < 0.05 {
-			e.printf("  the AR(1) innovations are still autocorrelated: some day-to-day structure (for example weekday\n" +
-				"  effects that change with the season) is not in the model\n")
+			e.printf("  the AR(1) innovations are still autocorrelated: some day-to-day structure (for example weekday " +
+				"effects that change with the season) is not in the model\n")
 		}
 	}
 
+	writeNormals(e, normals, m.Unit)
 	if len(m.Warnings) > 0 {
 		e.printf("\nWarnings\n")
 		for _, w := range m.Warnings {
