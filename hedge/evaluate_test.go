@@ -161,7 +161,7 @@ func TestMinimumVarianceQuantity(t *testing.T) {
 		t.Fatal(err)
 	}
 	dec := normalPaths(n, 520, 60, 13)
-	values := map[Key][]float64{{"energy", "heating"}: energy, {"hdd", "heating"}: hdd, {"hdd", "dec"}: dec}
+	values := map[Key][]float64{{"energy", "heating"}: energy, {"hdd", "heating"}: hdd, {"hdd", "jan"}: dec}
 	r, err := Evaluate(f, values, nil)
 	if err != nil {
 		t.Fatal(err)
@@ -284,12 +284,12 @@ func TestEvaluateRefusesBadValues(t *testing.T) {
 		t.Fatal(err)
 	}
 	ok := func() map[Key][]float64 {
-		return map[Key][]float64{{"energy", "heating"}: {1, 2}, {"hdd", "heating"}: {1, 2}, {"hdd", "dec"}: {1, 2}}
+		return map[Key][]float64{{"energy", "heating"}: {1, 2}, {"hdd", "heating"}: {1, 2}, {"hdd", "jan"}: {1, 2}}
 	}
 	missing := ok()
-	delete(missing, Key{"hdd", "dec"})
+	delete(missing, Key{"hdd", "jan"})
 	short := ok()
-	short[Key{"hdd", "dec"}] = []float64{1}
+	short[Key{"hdd", "jan"}] = []float64{1}
 	nan := ok()
 	nan[Key{"hdd", "heating"}] = []float64{1, math.NaN()}
 	cases := []struct {
@@ -298,13 +298,13 @@ func TestEvaluateRefusesBadValues(t *testing.T) {
 		opt    *Options
 		want   string
 	}{
-		{"missing key", missing, nil, "hedge: no simulated values for hdd/dec"},
-		{"unequal lengths", short, nil, "hedge: hdd/dec has 1 paths but energy/heating has 2"},
+		{"missing key", missing, nil, "hedge: no simulated values for hdd/jan"},
+		{"unequal lengths", short, nil, "hedge: hdd/jan has 1 paths but energy/heating has 2"},
 		{"NaN", nan, nil, "hedge: hdd/heating: path 2 is NaN"},
 		{"bad level", ok(), &Options{Loading: 0.2, Level: 1}, "hedge: quantile level 1"},
 		{"bad loading", ok(), &Options{Loading: -1, Level: 0.9}, "hedge: loading λ = -1"},
-		{"NaN history", ok(), &Options{Loading: 0.2, Level: 0.9, History: map[Key][]float64{{"hdd", "dec"}: {math.Inf(1)}}},
-			"hedge: hdd/dec: historical season 1 is +Inf"},
+		{"NaN history", ok(), &Options{Loading: 0.2, Level: 0.9, History: map[Key][]float64{{"hdd", "jan"}: {math.Inf(1)}}},
+			"hedge: hdd/jan: historical season 1 is +Inf"},
 	}
 	for _, c := range cases {
 		_, err := Evaluate(f, c.values, c.opt)

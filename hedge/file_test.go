@@ -136,7 +136,7 @@ func TestExampleFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []Key{{"energy", "heating"}, {"hdd", "heating"}, {"hdd", "dec"}}
+	want := []Key{{"energy", "heating"}, {"hdd", "heating"}, {"hdd", "jan"}}
 	if got := f.Needs(); !reflect.DeepEqual(got, want) {
 		t.Errorf("Needs() = %v, want %v", got, want)
 	}

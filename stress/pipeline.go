@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strconv"
+	"strings"
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
@@ -373,6 +374,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		for _, w := range res.Hedge.Warnings {
 			res.Warnings = append(res.Warnings, "hedge file: "+w)
 		}
+		res.Warnings = append(res.Warnings, hedgeOverlap(job.Hedge, set.Base.Periods)...)
 	}
 	return res, nil
 }
@@ -387,6 +389,35 @@ func withHedgePeriods(periods []string, h *hedge.File) []string {
 	for _, k := range h.Needs() {
 		if !slices.Contains(out, k.Period) {
 			out = append(out, k.Period)
+		}
+	}
+	return out
+}
+
+// hedgeOverlap warns of the contracts whose period shares no day with the
+// exposure's: they hedge another season (a "dec" contract in a book for
+// heating Y reads December of Y, the next winter's).
+func hedgeOverlap(f *hedge.File, periods []sim.Period) []string {
+	if f.Exposure == nil {
+		return nil
+	}
+	find := func(name string) (sim.Period, bool) {
+		for _, p := range periods {
+			if strings.EqualFold(p.Name, name) {
+				return p, true
+			}
+		}
+		return sim.Period{}, false
+	}
+	e, ok := find(f.Exposure.Period)
+	if !ok {
+		return nil
+	}
+	var out []string
+	for _, c := range f.Contracts {
+		if p, ok := find(c.Period); ok && (p.To < e.From || p.From > e.To) {
+			out = append(out, fmt.Sprintf("hedge file: contract %q reads %s (%s to %s), which shares no day with the exposure's "+
+				"%s (%s to %s): it hedges another season", c.Name, p.Name, p.From, p.To, e.Name, e.From, e.To))
 		}
 	}
 	return out

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -178,12 +179,27 @@ func solveCapacities(res *sim.Result, targets []CapacityTarget) []CapacityRow {
 	var out []CapacityRow
 	for p, period := range res.Periods {
 		top := res.Top[p]
+		// The peak days in full precision (the kept days are float32):
+		// a peak or any capacity is then the tail table's quantile itself.
+		var peaks []float64
+		for _, a := range res.Aggregates {
+			if a.Index == sim.PeakDemand && a.Period.Name == period.Name {
+				peaks = slices.Sorted(slices.Values(a.Values))
+			}
+		}
 		for _, t := range targets {
+			if q, ok := t.peakQuantile(); ok && peaks != nil {
+				est := evidence.QuantileSorted(peaks, q)
+				above := len(peaks) - sort.SearchFloat64s(peaks, math.Nextafter(est.Value, math.Inf(1)))
+				out = append(out, CapacityRow{Target: t.Text, Period: period.Name, Capacity: est.Value,
+					Achieved: float64(above) / float64(len(peaks)), SE: est.SE})
+				continue
+			}
 			c := solveOne(top, k, 0, n, t)
 			row := CapacityRow{Target: t.Text, Period: period.Name, Capacity: c}
 			row.Achieved, row.Saturated = achieved(top, k, 0, n, t, c)
-			if p, ok := t.peakQuantile(); ok {
-				row.SE = evidence.QuantileSorted(sortedPeaks(top, k, 0, n), p).SE
+			if q, ok := t.peakQuantile(); ok {
+				row.SE = evidence.QuantileSorted(sortedPeaks(top, k, 0, n), q).SE
 			} else if n >= 10*capacityBatches {
 				var sols []float64
 				for b := range capacityBatches {

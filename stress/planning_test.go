@@ -65,12 +65,12 @@ func TestCapacityTargets(t *testing.T) {
 		caps[c.Target] = c
 		t.Logf("%s: capacity %.0f ± %.0f, achieved %.4f", c.Target, c.Capacity, c.SE, c.Achieved)
 	}
-	if c := caps["peak:1-in-20"]; math.Abs(c.Capacity-peak20) > 1e-5*peak20 {
+	if c := caps["peak:1-in-20"]; c.Capacity != peak20 { // the same number, not only to float32
 		t.Errorf("peak:1-in-20 capacity %.2f, the 1-in-20 peak-day demand is %.2f", c.Capacity, peak20)
 	}
 	// The same quantity carries the same Monte Carlo error in the design
-	// table and the capacity table (up to the float32 of the kept days).
-	if c := caps["peak:1-in-20"]; !(math.Abs(c.SE-peak20SE) <= 1e-4*peak20SE) {
+	// table and the capacity table.
+	if c := caps["peak:1-in-20"]; c.SE != peak20SE {
 		t.Errorf("peak:1-in-20 capacity ± %.2f, the 1-in-20 peak-day demand ± %.2f", c.SE, peak20SE)
 	}
 	if c := caps["days:1"]; !(c.SE > 0) {

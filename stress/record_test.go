@@ -6,7 +6,9 @@ import (
 
 	"wxstress/calendar"
 	"wxstress/calibrate"
+	"wxstress/hedge"
 	"wxstress/model"
+	"wxstress/sim"
 )
 
 // TestCheckRecord: a record beside a model is refused when it sits many of
@@ -41,5 +43,22 @@ func TestCheckRecord(t *testing.T) {
 	}
 	if err := checkRecord(m, series(-20)); err == nil || !strings.Contains(err.Error(), "another station") {
 		t.Errorf("a record 30 °C off (not a unit mix-up): %v", err)
+	}
+}
+
+// TestHedgeOverlap: a contract whose period shares no day with the
+// exposure's (December of the target year, in a book for the heating season
+// that ends in March of it) is named; one inside it is not.
+func TestHedgeOverlap(t *testing.T) {
+	ps := []sim.Period{
+		{Name: "heating", From: calendar.FromYMD(2025, 11, 1), To: calendar.FromYMD(2026, 3, 31)},
+		{Name: "dec", From: calendar.FromYMD(2026, 12, 1), To: calendar.FromYMD(2026, 12, 31)},
+		{Name: "jan", From: calendar.FromYMD(2026, 1, 1), To: calendar.FromYMD(2026, 1, 31)},
+	}
+	f := &hedge.File{Exposure: &hedge.Exposure{Index: "energy", Period: "heating"},
+		Contracts: []hedge.Contract{{Name: "dec swap", Period: "dec"}, {Name: "jan swap", Period: "jan"}}}
+	got := hedgeOverlap(f, ps)
+	if len(got) != 1 || !strings.Contains(got[0], `"dec swap" reads dec (2026-12-01 to 2026-12-31), which shares no day`) {
+		t.Errorf("warnings %q", got)
 	}
 }
