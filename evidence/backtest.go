@@ -54,8 +54,9 @@ type PITSummary struct {
 	Above, Untied int
 	AboveP        float64
 	// KS is the one-sample Kolmogorov–Smirnov test of the PITs against the
-	// uniform distribution on [0, 1] (diagnose.KolmogorovSmirnov: asymptotic
-	// p-value, approximate because mid-rank PITs are discrete).
+	// uniform distribution on [0, 1] (diagnose.KolmogorovSmirnovExact: the
+	// exact p-value below 100 seasons, as R's ks.test, the asymptotic one
+	// above; approximate in either case because mid-rank PITs are discrete).
 	KS model.Test
 	// ProbitSD is the sample standard deviation (divisor n − 1) of Φ⁻¹(PIT),
 	// each PIT first clamped to [½/m, 1 − ½/m] for its sample size m. It is
@@ -117,7 +118,7 @@ func summarizePIT(pits []float64, sizes []int) PITSummary {
 	if s.Untied > 0 {
 		s.AboveP = BinomialTest(s.Above, s.Untied, 0.5)
 	}
-	s.KS = diagnose.KolmogorovSmirnov(pits, func(u float64) float64 { return min(max(u, 0), 1) })
+	s.KS = diagnose.KolmogorovSmirnovExact(pits, func(u float64) float64 { return min(max(u, 0), 1) })
 	s.ProbitSD = math.NaN()
 	if n >= 2 {
 		s.ProbitSD = stat.StdDev(probits, nil)
