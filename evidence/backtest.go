@@ -130,7 +130,11 @@ func summarizePIT(pits []float64, sizes []int) PITSummary {
 // verdict applies the rule documented in doc.go.
 func verdict(s PITSummary) string {
 	if s.Cases < MinCases {
-		return fmt.Sprintf("too few cases to judge: %d (at least %d needed)", s.Cases, MinCases)
+		few := fmt.Sprintf("too few cases to judge the spread: %d (at least %d needed)", s.Cases, MinCases)
+		if s.AboveP < VerdictLevel { // the sign test is exact at any size
+			return few + "; " + biasText(s)
+		}
+		return few
 	}
 	c90, c50 := s.Central90, s.Central50
 	expect := func(c Coverage) string {
@@ -152,18 +156,25 @@ func verdict(s PITSummary) string {
 		spread = fmt.Sprintf("too wide: realised values fall outside the central %s band only %d of %d times (expected %s)",
 			band(c50), c50.Outside(), c50.Cases, expect(c50))
 	default:
-		spread = fmt.Sprintf("spread about right: realised values fall outside the %s band %d of %d times (expected %s)",
-			band(c90), c90.Outside(), c90.Cases, expect(c90))
+		// Not "about right": with few cases the tests have little power.
+		spread = fmt.Sprintf("no evidence against the spread at %g %%: realised values fall outside the %s band %d of %d times (expected %s)",
+			100*VerdictLevel, band(c90), c90.Outside(), c90.Cases, expect(c90))
 	}
 	if s.AboveP >= VerdictLevel {
 		return spread
 	}
+	return spread + "; " + biasText(s)
+}
+
+// biasText words a rejected sign test: "forecast too low: realised values
+// fall above the forecast median 9 of 9 times (expected 4.5, p 0.0039)".
+func biasText(s PITSummary) string {
 	side, where, count := "low", "above", s.Above
 	if 2*s.Above < s.Untied {
 		side, where, count = "high", "below", s.Untied-s.Above
 	}
-	return fmt.Sprintf("%s; forecast too %s: realised values fall %s the forecast median %d of %d times (expected %s)",
-		spread, side, where, count, s.Untied, strconv.FormatFloat(float64(s.Untied)/2, 'f', -1, 64))
+	return fmt.Sprintf("forecast too %s: realised values fall %s the forecast median %d of %d times (expected %s, p %.2g)",
+		side, where, count, s.Untied, strconv.FormatFloat(float64(s.Untied)/2, 'f', -1, 64), s.AboveP)
 }
 
 // Case is one forecast of a backtest: the model's sample for a period that

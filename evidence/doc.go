@@ -43,13 +43,15 @@
 //
 // The verdict, with M cases and level VerdictLevel = 0.05:
 //
-//   - M < MinCases (10): "too few cases to judge".
+//   - M < MinCases (10): "too few cases to judge the spread" (and, if the
+//     sign test below rejects, which it can from 6 cases on, its words);
 //   - else if the 90 % band test rejects: "too narrow" when fewer than 90 %
 //     of the PITs are inside (realised values fall outside the band more
 //     often than M·0.1), "too wide" when more are;
 //   - else if the 50 % band test rejects: "too narrow" or "too wide" in the
 //     same way with the central 50 % band;
-//   - else "spread about right";
+//   - else "no evidence against the spread at 5 %" (not "about right":
+//     with a few cases the tests have little power);
 //   - and, whatever the spread, if the sign test rejects, the verdict adds
 //     "forecast too low" (realised values above the forecast median more
 //     often than M′/2) or "forecast too high".

@@ -200,7 +200,7 @@ func TestVerdictBySimulation(t *testing.T) {
 		// A calibrated forecast: the share of clean verdicts is checked
 		// against the false-alarm rate of about 10 % stated in doc.go, less
 		// 3 binomial s.e. of a share from 300 repetitions (0.017 each).
-		{"calibrated", 0, 1, "spread about right", 0.85},
+		{"calibrated", 0, 1, "no evidence against the spread", 0.85},
 		{"narrow", 0, 0.5, "too narrow", 0.95},
 		{"wide", 0, 2, "too wide", 0.95},
 		{"biased", 1, 1, "", 0.9}, // checked below for "forecast too high"
@@ -437,5 +437,19 @@ func TestPathsNeededReachesTarget(t *testing.T) {
 	}
 	if got := Shortfall(draw(n), 0.05, true).SE; math.Abs(got/target-1) > tolReach {
 		t.Errorf("s.e. with %d paths %.4g, target %.4g", n, got, target)
+	}
+}
+
+// TestVerdictSmallSampleBias: below MinCases the spread is not judged, but
+// a sign test that rejects (9 of 9 realised values above the forecast
+// median, exact two-sided p = 2·0.5⁹ = 0.0039) is still reported.
+func TestVerdictSmallSampleBias(t *testing.T) {
+	got := verdict(PITSummary{Cases: 9, Above: 9, Untied: 9, AboveP: 2 * math.Pow(0.5, 9)})
+	if want := "too few cases to judge the spread: 9 (at least 10 needed); forecast too low: realised values fall " +
+		"above the forecast median 9 of 9 times (expected 4.5, p 0.0039)"; got != want {
+		t.Errorf("verdict %q,\nwant %q", got, want)
+	}
+	if got := verdict(PITSummary{Cases: 5, Above: 3, Untied: 5, AboveP: 1}); got != "too few cases to judge the spread: 5 (at least 10 needed)" {
+		t.Errorf("verdict %q", got)
 	}
 }

@@ -38,7 +38,8 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e.printf("\n%s\n", Wrap("A calibrated model puts about half the realised values inside its central 50 % band and nine in "+
 		"ten inside its 90 % band; the sd of probit(PIT), taken about its own mean, is then about 1 (above 1: too "+
 		"narrow; a bias shows in the verdict instead). CRPS (Gneiting & Raftery 2007) is lower for the better forecast; "+
-		"the climatology is the distribution of the earlier seasons, or of all the other tested seasons when fewer than "+
+		"the climatology is the distribution of the earlier seasons as they were (not moved along the trend, so part "+
+		"of the model's gain on a warming record is its trend), or of all the other tested seasons when fewer than "+
 		"two came before (it then sees later years).", ""))
 	for _, row := range r.Rows {
 		if row.Index >= sim.Energy {
