@@ -157,8 +157,11 @@ func (r *Result) Summarize(units model.Units, thresholds []Threshold) []Row {
 // usually far below IndependentSE, what two independent runs would give.
 type Change struct {
 	Mean, MeanSE, IndependentSE float64
-	P50, P95, P99               float64
-	ES95, RL20                  float64
+	// P50 is the median's change; VaR95 and VaR99 are the changes of the
+	// adverse 95 % and 99 % quantiles (the 1-in-20 and 1-in-100 levels: P5
+	// and P1 where low is adverse), on the same side as ES95 and RL20.
+	P50, VaR95, VaR99 float64
+	ES95, RL20        float64
 }
 
 // Compare returns the change of every row of scen against base; the results
@@ -187,8 +190,8 @@ func Compare(base, scen *Result, baseRows, scenRows []Row) []Change {
 		out[k] = Change{
 			Mean: st.Mean - bt.Mean, MeanSE: sd / math.Sqrt(n),
 			IndependentSE: math.Sqrt((bt.SD*bt.SD + st.SD*st.SD) / n),
-			P50:           st.Quantile(0.50) - bt.Quantile(0.50), P95: st.Quantile(0.95) - bt.Quantile(0.95),
-			P99: st.Quantile(0.99) - bt.Quantile(0.99), ES95: st.ES95 - bt.ES95,
+			P50:           st.Quantile(0.50) - bt.Quantile(0.50), VaR95: st.VaR95 - bt.VaR95,
+			VaR99: st.VaR99 - bt.VaR99, ES95: st.ES95 - bt.ES95,
 			RL20: st.ReturnLevel(20) - bt.ReturnLevel(20),
 		}
 	}

@@ -206,8 +206,8 @@ type jsonChange struct {
 	MeanSE        float64 `json:"mean_se"`
 	IndependentSE float64 `json:"independent_se"`
 	P50           float64 `json:"p50"`
-	P95           float64 `json:"p95"`
-	P99           float64 `json:"p99"`
+	VaR95         float64 `json:"var95"` // adverse 95 % quantile, as es95
+	VaR99         float64 `json:"var99"`
 	ES95          float64 `json:"es95"`
 	RL20          float64 `json:"return_level_20"`
 }
@@ -285,7 +285,7 @@ func SimJSON(w io.Writer, r *SimReport) error {
 	for i, sc := range r.Scenarios {
 		rows := toJSONRows(sc.Rows)
 		for k, c := range sc.Changes {
-			rows[k].Change = &jsonChange{c.Mean, c.MeanSE, c.IndependentSE, c.P50, c.P95, c.P99, c.ES95, c.RL20}
+			rows[k].Change = &jsonChange{c.Mean, c.MeanSE, c.IndependentSE, c.P50, c.VaR95, c.VaR99, c.ES95, c.RL20}
 		}
 		scen[i] = jsonScenario{sc.Name, sc.Description, sc.What, rows}
 	}
@@ -435,8 +435,9 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				for _, kv := range []struct {
 					k string
 					v float64
-				}{{"change_mean", c.Mean}, {"change_mean_se", c.MeanSE}, {"change_p50", c.P50}, {"change_p95", c.P95},
-					{"change_p99", c.P99}, {"change_es95", c.ES95}, {"change_rl20", c.RL20}} {
+				}{{"change_mean", c.Mean}, {"change_mean_se", c.MeanSE}, {"change_mean_independent_se", c.IndependentSE},
+					{"change_p50", c.P50}, {"change_var95", c.VaR95}, {"change_var99", c.VaR99}, {"change_es95", c.ES95},
+					{"change_rl20", c.RL20}} {
 					put(kv.k, kv.v)
 				}
 			}
