@@ -185,8 +185,8 @@ func ExtremesTable(checks []stress.ExtremeCheck, units string) (header []string,
 		}
 	}
 	notes = append(notes, fmt.Sprintf("The GEV is fitted by maximum likelihood to each season's coldest (or hottest) daily mean in "+
-		"the record, moved to the target year's trend level (°%s);", units),
-		"a model level outside the 95 % profile-likelihood interval is evidence that the model's extreme days are off.")
+		"the record, moved to the target year's trend level (°%s); a model level outside the 95 %% profile-likelihood "+
+		"interval is evidence that the model's extreme days are off.", units))
 	notes = append(notes, "The model levels come from a climate-start run (the record's seasons are climatology): a run "+
 		"from the state at the data end (conditional start) can differ, as its design days do.")
 	return header, rows, notes

@@ -17,18 +17,25 @@ import (
 
 // table writes a boxed terminal table with the header as given and the
 // body right-aligned except its first column. A table wider than wrapWidth
-// is written as several, each with the row's key (the first column, and
-// the period beside it) and as many of the other columns as fit.
+// is written as several, each with the row's key (the first column and the
+// keyHeaders columns) and as many of the other columns as fit.
 func table(w io.Writer, header []string, rows [][]string) error {
 	var b bytes.Buffer
 	if err := boxed(&b, header, rows); err != nil {
 		return err
 	}
-	keys := 1
-	if len(header) > 1 && header[1] == "period" {
-		keys = 2
+	// The row's key: the first column and any that names a period, a
+	// standard or a return period; these lead every part.
+	key := []int{0}
+	var rest []int
+	for c := 1; c < len(header); c++ {
+		if keyHeaders[header[c]] {
+			key = append(key, c)
+		} else {
+			rest = append(rest, c)
+		}
 	}
-	if width(b.String()) <= wrapWidth || len(header) <= keys+1 {
+	if width(b.String()) <= wrapWidth || len(rest) <= 1 {
 		_, err := w.Write(b.Bytes())
 		return err
 	}
@@ -48,29 +55,25 @@ func table(w io.Writer, header []string, rows [][]string) error {
 		}
 		return h, rs
 	}
-	var key []int
-	for c := range keys {
-		key = append(key, c)
-	}
-	for next := keys; next < len(header); {
+	for next := 0; next < len(rest); {
 		// As many further columns as fit (at least one).
-		cols := append(slices.Clone(key), next)
+		cols := append(slices.Clone(key), rest[next])
 		next++
 		var part bytes.Buffer
 		h, rs := pick(cols)
 		if err := boxed(&part, h, rs); err != nil {
 			return err
 		}
-		for next < len(header) {
+		for next < len(rest) {
 			var wider bytes.Buffer
-			h, rs := pick(append(slices.Clone(cols), next))
+			h, rs := pick(append(slices.Clone(cols), rest[next]))
 			if err := boxed(&wider, h, rs); err != nil {
 				return err
 			}
 			if width(wider.String()) > wrapWidth {
 				break
 			}
-			cols, part = append(cols, next), wider
+			cols, part = append(cols, rest[next]), wider
 			next++
 		}
 		if _, err := w.Write(part.Bytes()); err != nil {
@@ -79,6 +82,10 @@ func table(w io.Writer, header []string, rows [][]string) error {
 	}
 	return nil
 }
+
+// keyHeaders are the column titles that, beside the first column, identify
+// a row: a split table repeats them in every part.
+var keyHeaders = map[string]bool{"period": true, "T": true, "standard": true, "target": true}
 
 // width is the widest line of s, in runes.
 func width(s string) int {

@@ -135,6 +135,16 @@ func TestWideTableSplits(t *testing.T) {
 			t.Errorf("cell %q appears %d times", cell, strings.Count(out, cell))
 		}
 	}
+	// A key column anywhere (a return period T) leads every part.
+	b.Reset()
+	wide := strings.Repeat("w", 40)
+	if err := table(&b, []string{"index", "seasons", "T", "a " + wide, "b " + wide, "c " + wide},
+		[][]string{{"coldest day", "70", "50", "1", "2", "3"}}); err != nil {
+		t.Fatal(err)
+	}
+	if parts := strings.Count(b.String(), "┌"); parts < 2 || strings.Count(b.String(), " T ") != parts {
+		t.Errorf("the T column is not in each of %d parts:\n%s", parts, b.String())
+	}
 	// A narrow table is left whole.
 	b.Reset()
 	table(&b, []string{"index", "value"}, [][]string{{"HDD", "1"}})
