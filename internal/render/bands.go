@@ -20,11 +20,13 @@ func BandTable(rows []sim.Row, bands []stress.RowBands, refits int) (title strin
 	// both (the JSON has both).
 	header = []string{"index", "period", "mean", "ES 95%", "1-in-20", "1-in-50"}
 	cell := func(v float64, b stress.Band) string {
-		d := 1
-		if math.Abs(v) >= 100 {
-			d = 0
+		// To the precision the band supports: its width's twentieth
+		// (a band of ±220 000 GJ shows ten-thousands, not units).
+		p := (b.Hi - b.Lo) / 20
+		if !(p > 0) {
+			p = math.NaN()
 		}
-		return fmt.Sprintf("%s [%s, %s]", numfmt.Fixed(v, d), numfmt.Fixed(b.Lo, d), numfmt.Fixed(b.Hi, d))
+		return fmt.Sprintf("%s [%s to %s]", numfmt.Value(v, p), numfmt.Value(b.Lo, p), numfmt.Value(b.Hi, p))
 	}
 	for k, r := range rows {
 		if k >= len(bands) || r.Index == sim.PeakDay || rare(r.Tail) {

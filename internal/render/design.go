@@ -23,16 +23,17 @@ func DesignTable(rows []stress.DesignRow, snapDays int, units, demandUnit string
 		}
 		return numfmt.ValueSE(v, se)
 	}
-	band := func(b stress.Band, d int) string {
+	band := func(b stress.Band, se float64) string { // to the value's own precision
 		if math.IsNaN(b.Lo) {
 			return ""
 		}
-		return " [" + numfmt.Fixed(b.Lo, d) + ", " + numfmt.Fixed(b.Hi, d) + "]"
+		return " [" + numfmt.Value(b.Lo, se) + " to " + numfmt.Value(b.Hi, se) + "]"
 	}
 	for _, r := range rows {
-		line := []string{"1-in-" + periodKey(r.T), r.Period, cell(r.Coldest, r.ColdestSE) + band(r.ColdestBand, 1), cell(r.Snap, r.SnapSE)}
+		line := []string{"1-in-" + periodKey(r.T), r.Period, cell(r.Coldest, r.ColdestSE) + band(r.ColdestBand, r.ColdestSE),
+			cell(r.Snap, r.SnapSE)}
 		if withDemand {
-			line = append(line, cell(r.Peak, r.PeakSE)+band(r.PeakBand, 0), cell(r.SnapEnergy, r.SnapEnerSE))
+			line = append(line, cell(r.Peak, r.PeakSE)+band(r.PeakBand, r.PeakSE), cell(r.SnapEnergy, r.SnapEnerSE))
 		}
 		cells = append(cells, line)
 	}
@@ -71,7 +72,14 @@ func cell2(v, se float64) string {
 func writeDesign(e *errWriter, r *SimReport) {
 	if len(r.Design) > 0 {
 		header, cells := DesignTable(r.Design, r.Manifest.SnapDays, r.Manifest.Units, demandUnitOf(r))
-		e.printf("\nDesign day at the planning standards (1-in-T levels on the adverse side, ± Monte Carlo s.e.)\n")
+		title := "Design day at the planning standards (1-in-T levels on the adverse side, ± Monte Carlo s.e."
+		for _, d := range r.Design {
+			if !math.IsNaN(d.ColdestBand.Lo) {
+				title += "; [90" + Glue + "%" + Glue + "parameter" + Glue + "band]"
+				break
+			}
+		}
+		e.printf("\n%s)\n", title)
 		e.table(header, cells)
 	}
 	if len(r.Capacities) > 0 {

@@ -1,11 +1,13 @@
 package render
 
 import (
+	"math"
 	"strings"
 	"testing"
 	"unicode/utf8"
 
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // TestWrap checks that wrapping keeps every word in order, breaks only at
@@ -201,5 +203,21 @@ func TestWrapKeepsUnits(t *testing.T) {
 				break
 			}
 		}
+	}
+}
+
+// TestBandCellsReadUnambiguously: a band beside a value reads "[lo to hi]"
+// (a comma would clash with the thousands separators) at the value's own
+// precision.
+func TestBandCellsReadUnambiguously(t *testing.T) {
+	nan := math.NaN()
+	_, cells := DesignTable([]stress.DesignRow{{Period: "heating", T: 20, Coldest: -15.2741, ColdestSE: 0.062,
+		Snap: -12.25, SnapSE: 0.048, Peak: 130657.4, PeakSE: 204, SnapEnergy: nan, SnapEnerSE: nan,
+		ColdestBand: stress.Band{Lo: -15.8312, Hi: -14.6461}, PeakBand: stress.Band{Lo: 128879.2, Hi: 132324.6}}}, 3, "C", "GJ/day")
+	if got := cells[0][2]; got != "-15.27 ± 0.062 [-15.83 to -14.65]" {
+		t.Errorf("design day cell %q", got)
+	}
+	if got := cells[0][4]; got != "130,700 ± 200 [128,900 to 132,300]" {
+		t.Errorf("design-day demand cell %q", got)
 	}
 }
