@@ -138,9 +138,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 			if !occurs(row) && x.Prob == 0 {
 				continue // "the coldest day of summer below −15: 0 ± 0" says nothing
 			}
-			sm.Notes = append(sm.Notes, fmt.Sprintf("P(%s, %s %s %s %s) = %s", row.Name, row.Period,
-				map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse], numfmt.Number(x.Threshold), row.Unit,
-				ExceedText(x, row.Tail.N)))
+			sm.Notes = append(sm.Notes, ExceedLine(row, x))
 		}
 	}
 

@@ -630,8 +630,7 @@ func SimTables(w io.Writer, r *SimReport) error {
 		}
 		for _, row := range group {
 			for _, x := range row.Tail.Exceedances {
-				e.printf("  P(%s %s %s) = %s\n", row.Name, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
-					numfmt.Number(x.Threshold), ExceedText(x, row.Tail.N))
+				e.printf("  %s\n", ExceedLine(row, x))
 			}
 		}
 	}
@@ -909,6 +908,13 @@ func writeInSeason(e *errWriter, r *SimReport) {
 		}
 	}
 	e.table(header, rows)
+}
+
+// ExceedLine words an exceedance with its index, period, threshold and
+// unit: "P(HDD, heating > 2,300 °C·day) = 0.082 ± 0.0019".
+func ExceedLine(row sim.Row, x sim.Exceedance) string {
+	return fmt.Sprintf("P(%s, %s %s %s%s%s) = %s", row.Name, row.Period, map[bool]string{true: ">", false: "<"}[row.Info.HighIsAdverse],
+		numfmt.Number(x.Threshold), Glue, row.Unit, ExceedText(x, row.Tail.N))
 }
 
 // ExceedText writes an exceedance probability with its Monte Carlo s.e.,
