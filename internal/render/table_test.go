@@ -4,8 +4,10 @@ import (
 	"math"
 	"strings"
 	"testing"
+	"time"
 	"unicode/utf8"
 
+	"wxstress/calendar"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -219,5 +221,24 @@ func TestBandCellsReadUnambiguously(t *testing.T) {
 	}
 	if got := cells[0][4]; got != "130,700 ± 200 [128,900 to 132,300]" {
 		t.Errorf("design-day demand cell %q", got)
+	}
+}
+
+// TestDatesText: the months under 1 % are summed, not dropped, and a
+// period whose peaks fall in separate runs of months (a calendar year's
+// two winters) gets no median date.
+func TestDatesText(t *testing.T) {
+	row := sim.Row{Name: "day of the peak", Dates: &sim.DateSpread{Median: calendar.FromYMD(2026, 2, 9),
+		Months: []sim.MonthShare{{Month: time.January, Share: 0.408}, {Month: time.February, Share: 0.302},
+			{Month: time.March, Share: 0.082}, {Month: time.April, Share: 0.0057}, {Month: time.November, Share: 0.017},
+			{Month: time.December, Share: 0.1863}}}}
+	if got, want := DatesText(row), "Day of the peak: in separate parts of the period (no single median); by month "+
+		"Jan 40.8%, Feb 30.2%, Mar 8.2%, Nov 1.7%, Dec 18.6%, other months 0.57%"; got != want {
+		t.Errorf("got  %q\nwant %q", got, want)
+	}
+	row.Dates.Months = []sim.MonthShare{{Month: time.December, Share: 0.2}, {Month: time.January, Share: 0.5},
+		{Month: time.February, Share: 0.3}}
+	if got := DatesText(row); !strings.HasPrefix(got, "Day of the peak: median 9 Feb 2026; by month Dec 20.0%") {
+		t.Errorf("a winter across the year end: %q", got)
 	}
 }

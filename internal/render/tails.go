@@ -11,6 +11,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"time"
 
 	"golang.org/x/sync/errgroup"
 
@@ -1050,11 +1051,27 @@ func (r *SimReport) periodSpan(name string) string {
 func DatesText(r sim.Row) string {
 	d := r.Dates
 	var parts []string
+	var shown []time.Month
+	rest := 0.0
 	for _, m := range d.Months {
 		if m.Share >= 0.01 {
 			parts = append(parts, fmt.Sprintf("%s %s", m.Month.String()[:3], numfmt.Percent(m.Share)))
+			shown = append(shown, m.Month)
+		} else {
+			rest += m.Share
 		}
 	}
-	return fmt.Sprintf("%s: median %s; by month %s", strings.ToUpper(r.Name[:1])+r.Name[1:],
-		d.Median.Time().Format("2 Jan 2006"), strings.Join(parts, ", "))
+	if rest > 0 {
+		parts = append(parts, "other months "+numfmt.Percent(rest))
+	}
+	// A median date means something only when the peaks fall in one run
+	// of months: a calendar year's fall at both its ends (two winters).
+	where := "median " + d.Median.Time().Format("2 Jan 2006")
+	for i := 1; i < len(shown); i++ {
+		if shown[i] != shown[i-1]%12+1 {
+			where = "in separate parts of the period (no single median)"
+			break
+		}
+	}
+	return fmt.Sprintf("%s: %s; by month %s", strings.ToUpper(r.Name[:1])+r.Name[1:], where, strings.Join(parts, ", "))
 }
