@@ -22,7 +22,7 @@ var builtins = []Scenario{
 		Volatility: &Volatility{MonthlyScale: []float64{1.25, 1.25, 1.1, 1, 1, 1, 1, 1, 1, 1, 1.1, 1.25}}},
 	{Name: "persistent", Units: "C", Description: "anomalies that last longer: φ × 1.1 with the daily variance kept",
 		Persistence: &Persistence{Scale: ptr(1.1), KeepVariance: true}},
-	{Name: "fat-tails", Units: "C", Description: "heavier-tailed shocks: Student-t with ν = 5",
+	{Name: "fat-tails", Units: "C", Description: "heavier-tailed shocks: ν = 5 (a skewed model keeps its skew)",
 		Tails: &Tails{DF: ptr(5.0)}},
 	{Name: "cold-spell-10d", Units: "C", Description: "a 10-day spell 8 °C colder than simulated, starting at random in Dec–Feb, every year",
 		Events: []Event{{Kind: "cold", Days: 10, Anomaly: 8, Window: "12-01:02-28"}}},

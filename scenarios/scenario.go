@@ -273,10 +273,17 @@ func (s *Scenario) describe(f float64, u string) []string {
 		}
 	}
 	if v := s.Volatility; v != nil {
-		if v.Scale != nil {
+		switch {
+		case v.Scale != nil && v.MonthlyScale != nil: // the product, as Apply takes it
+			var combined []float64
+			for _, m := range v.MonthlyScale {
+				combined = append(combined, *v.Scale*m)
+			}
+			add("fast-part volatility σ by month × %s (%.2f all year times the monthly factors; slow part unchanged)",
+				monthList(combined, "%.4g"), *v.Scale)
+		case v.Scale != nil:
 			add("fast-part volatility σ × %.2f (slow part unchanged)", *v.Scale)
-		}
-		if v.MonthlyScale != nil {
+		case v.MonthlyScale != nil:
 			add("fast-part volatility σ by month × %s (slow part unchanged)", monthList(v.MonthlyScale, "%.2f"))
 		}
 	}
