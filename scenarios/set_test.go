@@ -103,3 +103,17 @@ func TestDescribeForNamesTheModelsChange(t *testing.T) {
 		}
 	}
 }
+
+// TestDescribeCombinedVolatility: a scale and monthly factors together are
+// described by their product, the σ factor Apply uses.
+func TestDescribeCombinedVolatility(t *testing.T) {
+	t.Parallel()
+	s, err := Parse([]byte("name = \"s\"\n[volatility]\nscale = 1.05\nmonthly_scale = [1.3, 1.3, 1, 1, 1, 1, 1, 1, 1, 1, 1, 1.3]\n"), "s.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := strings.Join(s.Describe(), "\n")
+	if !strings.Contains(got, "Jan 1.365") || !strings.Contains(got, "Mar 1.05,") || !strings.Contains(got, "Dec 1.365") {
+		t.Errorf("description %q", got)
+	}
+}
