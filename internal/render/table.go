@@ -200,16 +200,16 @@ const Glue = "\u00a0"
 // glueUnits joins to its neighbour each word wrap must not stand alone at a
 // line's start or end: a unit of degrees or a per cent sign goes with the
 // number before it ("+0.174 °C/decade", "5 %"), a "±" with the error after
-// it, a "×" with both its factors.
+// it, a "×" or "=" with the words on both sides.
 func glueUnits(words []string) []string {
 	out := words[:0:0]
 	for i := 0; i < len(words); i++ {
 		w := words[i]
-		if (w == "±" || w == "×") && i+1 < len(words) {
+		if (w == "±" || w == "×" || w == "=") && i+1 < len(words) {
 			w += Glue + words[i+1]
 			i++
 		}
-		if n := len(out); n > 0 && (strings.HasPrefix(w, "°") || w == "%" || strings.HasPrefix(w, "%") || strings.HasPrefix(w, "×")) {
+		if n := len(out); n > 0 && (strings.HasPrefix(w, "°") || w == "%" || strings.HasPrefix(w, "%") || strings.HasPrefix(w, "×") || strings.HasPrefix(w, "=")) {
 			out[n-1] += Glue + w
 			continue
 		}
