@@ -288,8 +288,10 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			return nil, fmt.Errorf("%w: a season under way needs the observed record", ErrJob)
 		}
 		if job.Temps.End() < res.Model.Data.LastDate {
-			return nil, fmt.Errorf("%w: the observed record ends on %s, before the model's data end %s", ErrJob,
-				job.Temps.End(), res.Model.Data.LastDate)
+			// The file's days: bad data (exit 1), named like a day missing
+			// inside the season.
+			return nil, fmt.Errorf("%s: the observed record ends on %s, before the model's data end %s: a season "+
+				"under way needs every day to it", job.Temps.Name, job.Temps.End(), res.Model.Data.LastDate)
 		}
 		cfg.Start = sim.StartConditional
 		cfg.Observed = &sim.Observed{From: job.Temps.Start, Temps: job.Temps.Temps}

@@ -191,8 +191,12 @@ func solveCapacities(res *sim.Result, targets []CapacityTarget) []CapacityRow {
 			if q, ok := t.peakQuantile(); ok && peaks != nil {
 				est := evidence.QuantileSorted(peaks, q)
 				above := len(peaks) - sort.SearchFloat64s(peaks, math.Nextafter(est.Value, math.Inf(1)))
+				se := est.SE
+				if math.IsInf(se, 0) {
+					se = math.NaN() // too few paths beyond it to bound the error (the table says so)
+				}
 				out = append(out, CapacityRow{Target: t.Text, Period: period.Name, Capacity: est.Value,
-					Achieved: float64(above) / float64(len(peaks)), SE: est.SE})
+					Achieved: float64(above) / float64(len(peaks)), SE: se})
 				continue
 			}
 			c := solveOne(top, k, 0, n, t)

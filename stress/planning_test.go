@@ -270,3 +270,27 @@ func TestRunWarnings(t *testing.T) {
 		t.Errorf("demand model from another file: %q", ws)
 	}
 }
+
+// TestCapacityErrorUnbounded: a target so far in the tail that no path
+// lies beyond the order-statistic interval (any:0.001 of 300 paths) has no
+// Monte Carlo error (NaN, which the tables word), not an infinite one.
+func TestCapacityErrorUnbounded(t *testing.T) {
+	const n, k = 300, 40
+	heating := sim.Period{Name: "heating"}
+	res := &sim.Result{Config: sim.Config{Paths: n, TopDays: k}, Periods: []sim.Period{heating}, Top: [][]float32{make([]float32, n*k)}}
+	peaks := make([]float64, n)
+	for i := range peaks {
+		peaks[i] = 1000 + float64((i*7919)%n) // a permutation of 1000..1299
+		res.Top[0][i*k] = float32(peaks[i])
+	}
+	res.Aggregates = []sim.Aggregate{{Index: sim.PeakDemand, Period: heating, Values: peaks}}
+	far, _ := ParseCapacityTarget("any:0.001")
+	near, _ := ParseCapacityTarget("peak:1-in-2")
+	rows := solveCapacities(res, []CapacityTarget{far, near})
+	if !math.IsNaN(rows[0].SE) || rows[0].Capacity < 1298 {
+		t.Errorf("any:0.001 of 300 paths: capacity %v ± %v, want the top of the range and no error", rows[0].Capacity, rows[0].SE)
+	}
+	if se := rows[1].SE; !(se > 0) || math.IsInf(se, 0) {
+		t.Errorf("peak:1-in-2: error %v, want a finite one", se)
+	}
+}

@@ -116,11 +116,11 @@ func TestExitCodes(t *testing.T) {
 	}
 }
 
-// TestJobErrorsAreUsage checks that inputs which do not go together, found
-// only once the pipeline has read them (stress.ErrJob), exit 2 like the
-// other usage errors: here an observed record that ends before the model's
-// data.
-func TestJobErrorsAreUsage(t *testing.T) {
+// TestObservedEndingEarlyIsData: an observed record that ends before the
+// model's data end lacks days a season under way needs: bad data (exit 1)
+// naming the file, like a day missing inside the season (the usage errors
+// of inputs that do not go together are TestMismatchedInputsAreUsage's).
+func TestObservedEndingEarlyIsData(t *testing.T) {
 	t.Parallel()
 	m := demoModel(t)
 	src, err := os.ReadFile("../../demo/kestrel_bay_daily.csv")
@@ -132,9 +132,9 @@ func TestJobErrorsAreUsage(t *testing.T) {
 	os.WriteFile(short, []byte(strings.Join(lines[:20000], "")), 0o644)
 	code, _, stderr := call(t, context.Background(), "simulate", "--model", m, "--observed", short,
 		"--start", "conditional", "--period", "heating", "--paths", "100")
-	if code != exitUsage || !strings.Contains(stderr, "wxstress: the observed record ends on 2009-10-02, before the model's data end") ||
+	if code != exitFailure || !strings.Contains(stderr, "wxstress: "+short+": the observed record ends on 2009-10-02, before the model's data end") ||
 		strings.Contains(stderr, "bad job") {
-		t.Errorf("exit %d, stderr %q: want exit 2 and the reason without the error's kind", code, stderr)
+		t.Errorf("exit %d, stderr %q: want exit 1 naming the file", code, stderr)
 	}
 }
 
@@ -812,7 +812,8 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 	dir := filepath.Dir(demoModel(t))
 	args := []string{"simulate", "--model", filepath.Join(dir, "model.json"), "--demand", filepath.Join(dir, "demand.json"),
 		"--paths", "300", "--period", "heating", "--hedge", "../../hedge/example.toml", "--exceed", "hdd:heating:2300",
-		"--capacity-target", "days:1", "--uncertainty", "20", "--history", "../../demo/kestrel_bay_daily.csv"}
+		"--capacity-target", "days:1", "--uncertainty", "20", "--history", "../../demo/kestrel_bay_daily.csv",
+		"--scenario", "warm-1c"}
 	code, js, stderr := call(t, context.Background(), append(args, "--format", "json")...)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
@@ -874,7 +875,7 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 		k := func(stat string) key { return key{r.Key, r.Period, stat} }
 		same("mean", k("mean"), r.Mean)
 		if r.Key == "peak-date" {
-			if r.VaR95 != nil || r.ReturnLevels != nil || r.Adverse != "none" {
+			if r.VaR95 != nil || r.ReturnLevels != nil || r.Adverse != "none" || r.Band != nil {
 				t.Errorf("the day of the peak has an adverse side in the JSON: %+v", r)
 			}
 			if _, ok := csvVal[k("var95")]; ok {
@@ -912,6 +913,29 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 	same("hedged ES 99%", key{"hedge", "", "net_cost:hedged:es99"}, j.Hedge.Hedged.ES99)
 	if u := csvUnit[key{"capacity", "heating", "days:1:achieved"}]; u != "days a year" {
 		t.Errorf("capacity achieved unit %q", u)
+	}
+	// Nor in a scenario's rows: its change of the date's median, no VaR.
+	for _, line := range strings.Split(cs, "\n") {
+		if strings.HasPrefix(line, "warm-1c,peak-date,") && (strings.Contains(line, ",change_var") ||
+			strings.Contains(line, ",change_es95,") || strings.Contains(line, ",var95,")) {
+			t.Errorf("a scenario's day of the peak has an adverse side in the CSV: %s", line)
+		}
+	}
+	var sj struct {
+		Scenarios []struct {
+			Indices []struct {
+				Key    string
+				Change map[string]any `json:"change_vs_baseline"`
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(js), &sj); err != nil || len(sj.Scenarios) != 1 {
+		t.Fatalf("scenarios in the JSON: %v", err)
+	}
+	for _, r := range sj.Scenarios[0].Indices {
+		if _, ok := r.Change["var95"]; r.Key == "peak-date" && ok {
+			t.Errorf("a scenario's day of the peak has a VaR change in the JSON: %v", r.Change)
+		}
 	}
 }
 

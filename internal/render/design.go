@@ -52,6 +52,10 @@ func CapacityTable(rows []stress.CapacityRow, demandUnit string) (header []strin
 			achieved = numfmt.Prob(r.Achieved) + " of years"
 		}
 		cells = append(cells, []string{r.Target, r.Period, cell2(r.Capacity, r.SE), achieved})
+		if math.IsNaN(r.SE) {
+			notes = append(notes, r.Target+", "+r.Period+": too few paths beyond this capacity to bound its Monte Carlo "+
+				"error; run more paths (--paths)")
+		}
 		if r.Saturated > 0 {
 			notes = append(notes, r.Target+", "+r.Period+": "+numfmt.Percent(r.Saturated)+
 				" of the years have more days over the capacity than the run keeps; the mean is a lower bound")

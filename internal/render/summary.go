@@ -173,8 +173,12 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		}
 	}
 	for _, c := range bindingCapacities(r.Capacities) {
-		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s", capacityWords(c.Target), c.Period,
-			cell2(c.Capacity, c.SE), peakUnit))
+		unbounded := ""
+		if math.IsNaN(c.SE) {
+			unbounded = " (too few paths beyond it to bound its Monte Carlo error: run more)"
+		}
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s%s", capacityWords(c.Target), c.Period,
+			cell2(c.Capacity, c.SE), peakUnit, unbounded))
 	}
 	if h := r.Hedge; h != nil {
 		sm.Notes = append(sm.Notes, fmt.Sprintf("Hedged position (%s): ES 95%% of the net cost %s unhedged, %s hedged; the hedges %s",

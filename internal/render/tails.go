@@ -207,10 +207,11 @@ type jsonChange struct {
 	MeanSE        float64 `json:"mean_se"`
 	IndependentSE float64 `json:"independent_se"`
 	P50           float64 `json:"p50"`
-	VaR95         float64 `json:"var95"` // adverse 95 % quantile, as es95
-	VaR99         float64 `json:"var99"`
-	ES95          float64 `json:"es95"`
-	RL20          float64 `json:"return_level_20"`
+	// The adverse side's changes, left out for the day of the peak.
+	VaR95 *float64 `json:"var95,omitempty"` // adverse 95 % quantile, as es95
+	VaR99 *float64 `json:"var99,omitempty"`
+	ES95  *float64 `json:"es95,omitempty"`
+	RL20  *float64 `json:"return_level_20,omitempty"`
 }
 
 type jsonScenario struct {
@@ -242,7 +243,7 @@ func AdverseSide(r sim.Row) string {
 func baseRows(r *SimReport) []jsonRow {
 	rows := toJSONRows(r.Rows)
 	for k := range rows {
-		if k < len(r.Bands) {
+		if k < len(r.Bands) && r.Rows[k].Index != sim.PeakDay { // a date has no band of its VaR
 			rows[k].Band = toJSONBands(r.Bands[k])
 		}
 	}
@@ -286,7 +287,11 @@ func SimJSON(w io.Writer, r *SimReport) error {
 	for i, sc := range r.Scenarios {
 		rows := toJSONRows(sc.Rows)
 		for k, c := range sc.Changes {
-			rows[k].Change = &jsonChange{c.Mean, c.MeanSE, c.IndependentSE, c.P50, c.VaR95, c.VaR99, c.ES95, c.RL20}
+			ch := &jsonChange{Mean: c.Mean, MeanSE: c.MeanSE, IndependentSE: c.IndependentSE, P50: c.P50}
+			if sc.Rows[k].Index != sim.PeakDay { // a date has no adverse side
+				ch.VaR95, ch.VaR99, ch.ES95, ch.RL20 = &c.VaR95, &c.VaR99, &c.ES95, &c.RL20
+			}
+			rows[k].Change = ch
 		}
 		scen[i] = jsonScenario{sc.Name, sc.Description, sc.What, rows}
 	}
@@ -439,6 +444,10 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				}{{"change_mean", c.Mean}, {"change_mean_se", c.MeanSE}, {"change_mean_independent_se", c.IndependentSE},
 					{"change_p50", c.P50}, {"change_var95", c.VaR95}, {"change_var99", c.VaR99}, {"change_es95", c.ES95},
 					{"change_rl20", c.RL20}} {
+					if date && kv.k != "change_mean" && kv.k != "change_mean_se" && kv.k != "change_mean_independent_se" &&
+						kv.k != "change_p50" {
+						continue // a date has no adverse side
+					}
 					put(kv.k, kv.v)
 				}
 			}
@@ -472,7 +481,9 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	}
 	for _, c := range r.Capacities {
 		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target, g(c.Capacity)})
-		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
+		if !math.IsNaN(c.SE) && !math.IsInf(c.SE, 0) {
+			cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
+		}
 		achievedUnit := "fraction of years" // peak and any targets
 		if strings.HasPrefix(c.Target, "days:") {
 			achievedUnit = "days a year"
