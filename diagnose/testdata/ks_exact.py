@@ -16,4 +16,8 @@ for n in (1, 2, 3, 4, 5, 7, 10, 15, 20, 30, 50, 75, 99):
         if d <= 1 / (2 * n):
             continue  # D_n >= 1/(2n) always: P = 1
         cases.append({"n": n, "d": d, "sf": float(kstwo.sf(d, n))})
-print(json.dumps({"source": "scipy.stats.kstwo.sf, SciPy " + scipy.__version__, "cases": cases}, indent=1))
+# The far upper tail, where 1 - P(D_n < d) cancels: compared relatively.
+tail = []
+for n, d in ((50, 0.62), (99, 0.5), (10, 0.9), (20, 0.7), (99, 0.3), (30, 0.6), (75, 0.45), (5, 0.99), (60, 0.4)):
+    tail.append({"n": n, "d": d, "sf": float(kstwo.sf(d, n))})
+print(json.dumps({"source": "scipy.stats.kstwo.sf, SciPy " + scipy.__version__, "cases": cases, "tail": tail}, indent=1))
