@@ -342,8 +342,11 @@ func (s *Scenario) DescribeFor(m *model.File, year int) []string {
 	// What the changes make of this model's persistence and shocks.
 	if s.Persistence != nil {
 		line := fmt.Sprintf("on this model: fast-part φ %s → %s", numList(m.AR.Phi), numList(applied.AR.Phi))
-		if s.Persistence.KeepVariance {
-			line += fmt.Sprintf(", σ × %.3f", applied.Volatility.Monthly[0]/m.Volatility.Monthly[0])
+		// The keep-variance rescale alone: the persistence change applied
+		// by itself (the file's volatility changes would mix in otherwise).
+		alone := &Scenario{Name: s.Name, Units: s.Units, Persistence: s.Persistence}
+		if p, err := alone.Apply(m, year); err == nil && s.Persistence.KeepVariance {
+			line += fmt.Sprintf(", σ × %.3f to keep the daily variance", p.Volatility.Monthly[0]/m.Volatility.Monthly[0])
 		}
 		out = append(out, line)
 	}

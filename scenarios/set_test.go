@@ -2,6 +2,8 @@ package scenarios
 
 import (
 	"errors"
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -115,5 +117,20 @@ func TestDescribeCombinedVolatility(t *testing.T) {
 	got := strings.Join(s.Describe(), "\n")
 	if !strings.Contains(got, "Jan 1.365") || !strings.Contains(got, "Mar 1.05,") || !strings.Contains(got, "Dec 1.365") {
 		t.Errorf("description %q", got)
+	}
+}
+
+// TestDescribeForPersistenceAlone: the σ factor a keep-variance persistence
+// change shows is its own, √((1 − φ′²)/(1 − φ²)) for an AR(1) (φ 0.7 → 0.77:
+// 0.8837), not mixed with a volatility change in the same file.
+func TestDescribeForPersistenceAlone(t *testing.T) {
+	t.Parallel()
+	s, err := Parse([]byte("name = \"mix\"\n[persistence]\nscale = 1.1\nkeep_variance = true\n[volatility]\nscale = 2\n"), "mix.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprintf("σ × %.3f to keep the daily variance", math.Sqrt((1-0.77*0.77)/(1-0.7*0.7)))
+	if got := strings.Join(s.DescribeFor(coldModel(), 2025), "\n"); !strings.Contains(got, "φ 0.700 → 0.770, "+want) {
+		t.Errorf("description %q, want %q", got, want)
 	}
 }
