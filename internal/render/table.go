@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"wxstress/internal/numfmt"
@@ -199,8 +200,9 @@ const Glue = "\u00a0"
 
 // glueUnits joins to its neighbour each word wrap must not stand alone at a
 // line's start or end: a unit of degrees or a per cent sign goes with the
-// number before it ("+0.174 °C/decade", "5 %"), a "±" with the error after
-// it, a "×" or "=" with the words on both sides.
+// number before it ("+0.174 °C/decade", "5 %"), and so does a unit-like
+// word ("1,200 GJ/day", "40 TJ"); a "±" goes with the error after it, a
+// "×" or "=" with the words on both sides.
 func glueUnits(words []string) []string {
 	out := words[:0:0]
 	for i := 0; i < len(words); i++ {
@@ -209,13 +211,34 @@ func glueUnits(words []string) []string {
 			w += Glue + words[i+1]
 			i++
 		}
-		if n := len(out); n > 0 && (strings.HasPrefix(w, "°") || w == "%" || strings.HasPrefix(w, "%") || strings.HasPrefix(w, "×") || strings.HasPrefix(w, "=")) {
+		if n := len(out); n > 0 && (strings.HasPrefix(w, "°") || w == "%" || strings.HasPrefix(w, "%") || strings.HasPrefix(w, "×") ||
+			strings.HasPrefix(w, "=") || endsInDigit(out[n-1]) && unitLike(w)) {
 			out[n-1] += Glue + w
 			continue
 		}
 		out = append(out, w)
 	}
 	return out
+}
+
+// endsInDigit reports whether a word ends in a digit (a number).
+func endsInDigit(w string) bool {
+	return w != "" && w[len(w)-1] >= '0' && w[len(w)-1] <= '9'
+}
+
+// unitLike reports whether a word reads as a unit after a number: a rate
+// ("GJ/day", "EUR/GJ") or a short capitalised symbol ("GJ", "TJ", "EUR",
+// "MWh"), possibly followed by punctuation.
+func unitLike(w string) bool {
+	w = strings.TrimRight(w, ".,;:)")
+	if strings.Contains(w, "/") {
+		return true
+	}
+	if n := utf8.RuneCountInString(w); n == 0 || n > 4 {
+		return false
+	}
+	r, _ := utf8.DecodeRuneInString(w)
+	return unicode.IsUpper(r)
 }
 
 // wrap breaks text at spaces into lines of at most width columns (a word

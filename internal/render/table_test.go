@@ -194,6 +194,8 @@ func TestWrapKeepsUnits(t *testing.T) {
 		{"trend-2050: climate of 2050 along the trend: level +0.42 °C against 2026 (fitted trend +0.174 °C/decade)", "+0.174 °C/decade"},
 		{"the model's spread of annual means would be wider by about 12.5 % than it is now without", "12.5 %"},
 		{"Monte Carlo error: the ES 99% of coldest day is -20.5 ± 0.20 from 20,000 paths", "± 0.20"},
+		{"Capacity with a 0.10% chance a year of any day over it, 11-15:03-15: 158,403 ± 1,200 GJ/day", "1,200 GJ/day"},
+		{"Demand energy of the heating season: 11,431 TJ, far above plan", "11,431 TJ,"},
 	} {
 		for width := 10; width <= len(c.text); width++ {
 			got := wrap(c.text, width, "  ")
