@@ -13,6 +13,7 @@ import (
 	"wxstress/internal/numfmt"
 
 	"github.com/olekukonko/tablewriter"
+	"github.com/olekukonko/tablewriter/pkg/twwidth"
 	"github.com/olekukonko/tablewriter/tw"
 )
 
@@ -88,11 +89,12 @@ func table(w io.Writer, header []string, rows [][]string) error {
 // a row: a split table repeats them in every part.
 var keyHeaders = map[string]bool{"period": true, "T": true, "standard": true, "target": true}
 
-// width is the widest line of s, in runes.
+// width is the widest line of s, in terminal columns (a wide character
+// takes two, as the tables pad it).
 func width(s string) int {
 	n := 0
 	for line := range strings.SplitSeq(s, "\n") {
-		n = max(n, utf8.RuneCountInString(line))
+		n = max(n, twwidth.Width(line))
 	}
 	return n
 }
@@ -173,7 +175,7 @@ func (e *errWriter) printf(format string, a ...any) {
 		for line := range strings.SplitAfterSeq(s, "\n") {
 			text := strings.TrimSuffix(line, "\n")
 			body := strings.TrimLeft(text, " ")
-			if utf8.RuneCountInString(text) <= wrapWidth || strings.ContainsAny(body[:min(len(body), 3)], "┌│├└") {
+			if twwidth.Width(text) <= wrapWidth || strings.ContainsAny(body[:min(len(body), 3)], "┌│├└") {
 				b.WriteString(strings.ReplaceAll(line, Glue, " "))
 				continue
 			}
@@ -251,12 +253,12 @@ func wrap(text string, width int, indent string) string {
 	col := len(lead)
 	for i, word := range glueUnits(strings.FieldsFunc(text, func(r rune) bool { return r == ' ' || r == '\t' || r == '\n' })) {
 		word = strings.ReplaceAll(word, Glue, " ")
-		n := utf8.RuneCountInString(word)
+		n := twwidth.Width(word)
 		switch {
 		case i == 0:
 		case col+1+n > width:
 			b.WriteString("\n" + indent)
-			col = utf8.RuneCountInString(indent)
+			col = twwidth.Width(indent)
 		default:
 			b.WriteByte(' ')
 			col++

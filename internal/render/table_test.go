@@ -7,6 +7,8 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"github.com/olekukonko/tablewriter/pkg/twwidth"
+
 	"wxstress/calendar"
 	"wxstress/sim"
 	"wxstress/stress"
@@ -242,5 +244,21 @@ func TestDatesText(t *testing.T) {
 		{Month: time.February, Share: 0.3}}
 	if got := DatesText(row); !strings.HasPrefix(got, "Day of the peak: median 9 Feb 2026; by month Dec 20.0%") {
 		t.Errorf("a winter across the year end: %q", got)
+	}
+}
+
+// TestWideCharactersSplit: a table is split by terminal columns, not
+// runes: wide characters (a contract named in CJK script in a user's file)
+// take two columns each.
+func TestWideCharactersSplit(t *testing.T) {
+	name := strings.Repeat("冬", 20) // 20 runes, 40 columns
+	var b strings.Builder
+	if err := table(&b, []string{"contract", "a " + name, "b " + name, "c"}, [][]string{{name, "1", "2", "3"}}); err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range strings.Split(b.String(), "\n") {
+		if w := twwidth.Width(l); w > wrapWidth {
+			t.Errorf("a line of %d columns: %q", w, l)
+		}
 	}
 }
