@@ -396,13 +396,12 @@ func TestOutputDirectoryOneLevel(t *testing.T) {
 	}
 }
 
-// TestReportStopsOnInterrupt: a report asked for after the interrupt is not
-// built (building one for a million paths takes seconds and does not look
-// at the context; addReport waits for it aside, on the context), and
-// nothing is left. Measured by hand: Ctrl-C while the report of a 10⁶-path
-// demand run is being built exits within 0.1 s.
+// TestReportStopsOnInterrupt: an interrupt while the report is being built
+// (seconds for a million paths; the page builder does not look at the
+// context) ends addReport at once, and nothing is left. A stand-in builder
+// blocks until the test ends, so the interrupt is sure to come mid-build.
+// Not parallel: it replaces writeReport.
 func TestReportStopsOnInterrupt(t *testing.T) {
-	t.Parallel()
 	m, err := model.Read(demoModel(t))
 	if err != nil {
 		t.Fatal(err)
@@ -412,16 +411,35 @@ func TestReportStopsOnInterrupt(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	started, release := make(chan struct{}), make(chan struct{})
+	defer close(release)
+	saved := writeReport
+	defer func() { writeReport = saved }()
+	writeReport = func(w io.Writer, in *report.Input) error {
+		close(started)
+		<-release // a build that outlasts the interrupt
+		return saved(w, in)
+	}
 	dir := t.TempDir()
 	ctx, cancel := context.WithCancel(context.Background())
-	cancel()
 	plan := newOutputPlan(ctx, false)
 	target := filepath.Join(dir, "r.html")
 	if err := plan.check(target); err != nil {
 		t.Fatal(err)
 	}
-	if err := addReport(plan, target, res, report.Meta{Title: "t"}); !errors.Is(err, context.Canceled) {
-		t.Fatalf("the report was built after the interrupt: %v", err)
+	go func() {
+		<-started
+		cancel() // Ctrl-C mid-build
+	}()
+	errc := make(chan error, 1)
+	go func() { errc <- addReport(plan, target, res, report.Meta{Title: "t"}) }()
+	select {
+	case err := <-errc:
+		if !errors.Is(err, context.Canceled) {
+			t.Fatalf("addReport after the interrupt: %v", err)
+		}
+	case <-time.After(30 * time.Second): // the build never ends: only the interrupt can
+		t.Fatal("addReport waited for the build past the interrupt")
 	}
 	plan.abort()
 	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
