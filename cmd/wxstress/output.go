@@ -361,6 +361,11 @@ func addReport(p *outputPlan, path string, res *stress.Result, meta report.Meta)
 		}
 		done := make(chan page, 1)
 		go func() {
+			defer func() { // a failure here must still let the run clean up its staging
+				if r := recover(); r != nil {
+					done <- page{nil, fmt.Errorf("building the report failed: %v", r)}
+				}
+			}()
 			var b bytes.Buffer
 			err := writeReport(&b, report.New(res, meta))
 			done <- page{b.Bytes(), err}
