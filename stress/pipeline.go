@@ -255,34 +255,8 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			}
 		}
 	}
-	if res.Demand != nil {
-		cfg.Demand = res.Demand
-		if err := job.holidays(res, &cfg); err != nil {
-			return nil, err
-		}
-		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
-			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
-				"has no holidays (--holidays FILE gives them): its years are simulated without any",
-				numfmt.Number(res.Demand.Holiday), res.Demand.Unit))
-		}
-		if job.Growth != 0 {
-			if !(job.Growth > -50 && job.Growth < 100) {
-				return nil, fmt.Errorf("%w: demand growth %v %% a year: want −50 to 100", ErrJob, job.Growth)
-			}
-			years := cfg.Year - res.Demand.Data.LastDate.Year()
-			cfg.Growth = math.Pow(1+job.Growth/100, float64(years))
-			if years < 0 {
-				res.Warnings = append(res.Warnings, fmt.Sprintf("demand growth of %s %% a year runs backwards: the target year %d is "+
-					"%d years before the demand record's end (%d), so demand is scaled by %.3f",
-					strconv.FormatFloat(job.Growth, 'f', -1, 64), cfg.Year, -years, res.Demand.Data.LastDate.Year(), cfg.Growth))
-			}
-		}
-		if a, b := res.Demand.Data.TemperatureSHA256, res.Model.Data.SHA256; a != "" && b != "" && a != b {
-			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model was fitted with another temperature file (%s) than "+
-				"the temperature model (%s): its change points and slopes hold for that file's station",
-				filepath.Base(res.Demand.Data.TemperatureFile), filepath.Base(res.Model.Data.File)))
-		}
-	}
+	// A season under way first: the holidays below need the run's span,
+	// which starts at the season's first day.
 	if job.Observed {
 		if job.Temps == nil {
 			return nil, fmt.Errorf("%w: a season under way needs the observed record", ErrJob)
@@ -310,6 +284,34 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 				}
 			}
 			cfg.Observed.Loads = loads
+		}
+	}
+	if res.Demand != nil {
+		cfg.Demand = res.Demand
+		if err := job.holidays(res, &cfg); err != nil {
+			return nil, err
+		}
+		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
+				"has no holidays (--holidays FILE gives them): its years are simulated without any",
+				numfmt.Number(res.Demand.Holiday), res.Demand.Unit))
+		}
+		if job.Growth != 0 {
+			if !(job.Growth > -50 && job.Growth < 100) {
+				return nil, fmt.Errorf("%w: demand growth %v %% a year: want −50 to 100", ErrJob, job.Growth)
+			}
+			years := cfg.Year - res.Demand.Data.LastDate.Year()
+			cfg.Growth = math.Pow(1+job.Growth/100, float64(years))
+			if years < 0 {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("demand growth of %s %% a year runs backwards: the target year %d is "+
+					"%d years before the demand record's end (%d), so demand is scaled by %.3f",
+					strconv.FormatFloat(job.Growth, 'f', -1, 64), cfg.Year, -years, res.Demand.Data.LastDate.Year(), cfg.Growth))
+			}
+		}
+		if a, b := res.Demand.Data.TemperatureSHA256, res.Model.Data.SHA256; a != "" && b != "" && a != b {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model was fitted with another temperature file (%s) than "+
+				"the temperature model (%s): its change points and slopes hold for that file's station",
+				filepath.Base(res.Demand.Data.TemperatureFile), filepath.Base(res.Model.Data.File)))
 		}
 	}
 	detail := job.Detail

@@ -987,3 +987,21 @@ func TestMismatchedInputsAreUsage(t *testing.T) {
 		}
 	}
 }
+
+// TestSeasonUnderWayWithHolidays: a season under way with demand, its loads
+// and a holiday list, started explicitly from the data end, runs (the
+// holidays were computed over a span that did not yet know the season
+// under way, and the run was refused as a conditional start of a season
+// already begun).
+func TestSeasonUnderWayWithHolidays(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	hol := filepath.Join(t.TempDir(), "holidays.txt")
+	os.WriteFile(hol, []byte("2026-01-01\n2026-03-14\n"), 0o644)
+	code, _, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"),
+		"--demand", filepath.Join(dir, "demand.json"), "--holidays", hol, "--observed", "../../demo/kestrel_bay_daily.csv",
+		"--observed-load", "../../demo/lanternfield_demand.csv", "--start", "conditional", "--paths", "100")
+	if code != 0 {
+		t.Errorf("exit %d: %s", code, stderr)
+	}
+}
