@@ -104,6 +104,7 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--loading", "0.3"}, exitUsage, "--loading goes with --hedge"},
 		{[]string{"simulate", "--model", "m.json", "--title", "X"}, exitUsage, "--title goes with --report"},
 		{[]string{"simulate", "--model", "m.json", "--detail", "--format", "json"}, exitUsage, "--detail is for --format table"},
+		{[]string{"simulate", "--model", "m.json", "--observed", "o.csv", "--start", "climate"}, exitUsage, "--start climate contradicts it"},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := call(t, context.Background(), c.args...)

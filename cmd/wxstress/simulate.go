@@ -161,6 +161,9 @@ func (o *simulateOptions) validate() error {
 			return usagef("simulate: --%s goes with --%s", f.flag, f.needs)
 		}
 	}
+	if o.observed != "" && o.fs.Changed("start") && o.start == sim.StartClimate {
+		return usagef("simulate: --observed starts the run from the data end (a season under way): --start climate contradicts it")
+	}
 	if o.detail && o.format != "table" {
 		return usagef("simulate: --detail is for --format table (csv and json always hold every table)")
 	}

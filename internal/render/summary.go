@@ -242,10 +242,16 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 	}
 	if h := r.History; h != nil {
 		for _, row := range h.Rows {
-			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD) {
-				warns = append(warns, fmt.Sprintf("%s, %s: the record's sd %s lies outside the model's band %s–%s (%s)",
-					row.Index.Info().Name, row.Period, numfmt.Fixed(row.SD, 1), numfmt.Fixed(row.SDBand[0], 1),
-					numfmt.Fixed(row.SDBand[1], 1), row.SDVerdict))
+			// The indices the key figures show.
+			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
+				d := 1
+				if lo := min(row.SD, row.SDBand[0]); lo > 0 {
+					d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
+				}
+				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
+				warns = append(warns, fmt.Sprintf("%s, %s: the record's sd %s%s%s lies outside the model's band %s–%s %s (%s)",
+					row.Index.Info().Name, row.Period, numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d),
+					numfmt.Fixed(row.SDBand[1], d), unit, row.SDVerdict))
 			}
 		}
 	}
