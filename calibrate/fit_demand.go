@@ -342,7 +342,7 @@ func demandData(days *DemandDays, n int) model.DemandData {
 	return model.DemandData{
 		DemandFile: d.Name, DemandSHA256: d.SHA256,
 		TemperatureFile: days.Temps.Name, TemperatureSHA256: days.Temps.SHA256,
-		HolidaysFile: d.HolidaysFile, HolidayListDates: d.HolidayListDates, HolidayRules: d.HolidayRules,
+		HolidaysFile: d.HolidaysFile, HolidayColumn: d.HolidayColumn, HolidayListDates: d.HolidayListDates, HolidayRules: d.HolidayRules,
 		FirstDate: days.Dates[0], LastDate: days.Dates[n-1],
 		Rows: len(d.Dates), Days: n, MissingLoad: d.Missing, MissingTemperature: days.MissingTemperature,
 		Holidays: hol,

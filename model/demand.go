@@ -238,16 +238,18 @@ type GuidelineCheck struct {
 
 // DemandData describes the records the model was fitted to.
 type DemandData struct {
-	DemandFile        string        `json:"demand_file"`
-	DemandSHA256      string        `json:"demand_sha256"`
-	TemperatureFile   string        `json:"temperature_file"`
-	TemperatureSHA256 string        `json:"temperature_sha256"`
-	HolidaysFile      string        `json:"holidays_file,omitempty"`
-	FirstDate         calendar.Date `json:"first_date"` // first day used
-	LastDate          calendar.Date `json:"last_date"`  // last day used
-	Rows              int           `json:"rows"`       // data rows of the demand file
-	Days              int           `json:"days"`       // days used in the fit
-	MissingLoad       int           `json:"missing_load"`
+	DemandFile        string `json:"demand_file"`
+	DemandSHA256      string `json:"demand_sha256"`
+	TemperatureFile   string `json:"temperature_file"`
+	TemperatureSHA256 string `json:"temperature_sha256"`
+	HolidaysFile      string `json:"holidays_file,omitempty"`
+	// HolidayColumn is the demand file's holiday column, "" without one.
+	HolidayColumn string        `json:"holiday_column,omitempty"`
+	FirstDate     calendar.Date `json:"first_date"` // first day used
+	LastDate      calendar.Date `json:"last_date"`  // last day used
+	Rows          int           `json:"rows"`       // data rows of the demand file
+	Days          int           `json:"days"`       // days used in the fit
+	MissingLoad   int           `json:"missing_load"`
 	// MissingTemperature counts days with a load but no temperature,
 	// dropped from the fit.
 	MissingTemperature int `json:"missing_temperature"`

@@ -208,3 +208,39 @@ func TestFitDemandWithModel(t *testing.T) {
 		t.Errorf("the JSON output is not a model file: %v", err)
 	}
 }
+
+// TestFitDemandHolidaySources: the summary names where the holidays came
+// from, the file's column or the list or both, and claims no column a
+// file lacks.
+func TestFitDemandHolidaySources(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	src, err := os.ReadFile(demoDemand)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var noCol []string // the demo loads without their holiday column
+	for _, l := range strings.Split(strings.TrimSpace(string(src)), "\n") {
+		f := strings.Split(l, ",")
+		noCol = append(noCol, f[0]+","+f[1])
+	}
+	loads := filepath.Join(dir, "load.csv")
+	os.WriteFile(loads, []byte(strings.Join(noCol, "\n")+"\n"), 0o644)
+	hol := filepath.Join(dir, "holidays.txt")
+	os.WriteFile(hol, []byte("2023-01-01\n"), 0o644)
+	for _, c := range []struct {
+		demand, want, not string
+	}{
+		{loads, "(from " + hol + ")", "column"},
+		{demoDemand, "(column holiday and " + hol + ")", ""},
+	} {
+		code, stdout, stderr := callFitDemand(t, "--temps", demoTemps, "--demand", c.demand, "--load-unit", "GJ/day", "--holidays", hol)
+		if code != exitOK {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		first, _, _ := strings.Cut(stdout, "loads in")
+		if !strings.Contains(stdout, c.want) || c.not != "" && strings.Contains(first, c.not) {
+			t.Errorf("%s: summary lacks %q or has %q:\n%s", c.demand, c.want, c.not, first)
+		}
+	}
+}

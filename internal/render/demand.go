@@ -43,8 +43,13 @@ func DemandSummaryWith(w io.Writer, m *model.Demand, normals []sim.YearNormal) e
 	e.printf("%s\n", Wrap(fmt.Sprintf("Demand record  %s, with temperatures from %s (%s)", d.DemandFile, d.TemperatureFile, u), "  "))
 	line := fmt.Sprintf("  %s to %s: %d rows, %d days fitted; %d without a load, %d without a temperature; %d holidays",
 		d.FirstDate, d.LastDate, d.Rows, d.Days, d.MissingLoad, d.MissingTemperature, d.Holidays)
-	if d.HolidaysFile != "" {
-		line += fmt.Sprintf(" (column and %s)", d.HolidaysFile)
+	switch {
+	case d.HolidaysFile != "" && d.HolidayColumn != "":
+		line += fmt.Sprintf(" (column %s and %s)", d.HolidayColumn, d.HolidaysFile)
+	case d.HolidaysFile != "":
+		line += fmt.Sprintf(" (from %s)", d.HolidaysFile)
+	case d.HolidayColumn != "":
+		line += fmt.Sprintf(" (column %s)", d.HolidayColumn)
 	}
 	e.printf("%s\n", Wrap(line+"; loads in "+m.Unit, "    "))
 	if list := HolidayListText(d); list != "" {
