@@ -264,7 +264,30 @@ func Evaluate(cases []Case) (*Backtest, error) {
 	b.MeanCRPS = stat.Mean(b.CRPS, nil)
 	b.MeanRefCRPS = stat.Mean(b.RefCRPS, nil)
 	b.Skill = 1 - b.MeanCRPS/b.MeanRefCRPS
+	b.Verdict += fewCaseSigns(b)
 	return b, nil
+}
+
+// fewCaseSigns adds to a verdict that does not judge the spread (fewer than
+// MinCases cases) what its few cases still show plainly, without a test:
+// every realised value on one side of the forecast median, and a CRPS well
+// above the climatology's (more than half as large again).
+func fewCaseSigns(b *Backtest) string {
+	if b.Cases >= MinCases {
+		return ""
+	}
+	var out string
+	if u := b.Untied; u >= 3 && b.AboveP >= VerdictLevel && (b.Above == u || b.Above == 0) {
+		side := "above"
+		if b.Above == 0 {
+			side = "below"
+		}
+		out += fmt.Sprintf("; all %d realised values fell %s the forecast median", u, side)
+	}
+	if b.MeanRefCRPS > 0 && b.MeanCRPS > 1.5*b.MeanRefCRPS {
+		out += fmt.Sprintf("; the model's CRPS is %.1f times the climatology's", b.MeanCRPS/b.MeanRefCRPS)
+	}
+	return out
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

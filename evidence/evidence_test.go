@@ -453,3 +453,28 @@ func TestVerdictSmallSampleBias(t *testing.T) {
 		t.Errorf("verdict %q", got)
 	}
 }
+
+// TestFewCaseSigns: with too few cases to judge the spread, a backtest
+// still says that every realised value fell on one side of the median and
+// that its CRPS is far above the climatology's.
+func TestFewCaseSigns(t *testing.T) {
+	var cases []Case
+	for i := range 4 {
+		sample := make([]float64, 200)
+		for j := range sample {
+			sample[j] = float64(j) / 200 // uniform on [0, 1)
+		}
+		// Realised values far above the forecasts, spread like them: the
+		// climatology of the other cases beats the model.
+		cases = append(cases, Case{Sample: sample, Observed: 5 + 0.1*float64(i)})
+	}
+	b, err := Evaluate(cases)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.HasPrefix(b.Verdict, "too few cases to judge the spread: 4") ||
+		!strings.Contains(b.Verdict, "all 4 realised values fell above the forecast median") ||
+		!strings.Contains(b.Verdict, "times the climatology's") {
+		t.Errorf("verdict %q", b.Verdict)
+	}
+}
