@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -837,6 +838,11 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 		k := key{f[1], f[2], f[5]}
 		csvVal[k], csvUnit[k] = v, f[3]
 	}
+	for _, line := range strings.Split(cs, "\n") {
+		if f := strings.Split(line, ","); len(f) == 7 && f[6] != "value" && strings.ContainsAny(f[6], "eE") {
+			t.Errorf("a value with an exponent: %s", line)
+		}
+	}
 	same := func(what string, k key, want float64) {
 		t.Helper()
 		got, ok := csvVal[k]
@@ -889,9 +895,9 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 			same("VaR 95% s.e.", k("var95:se"), *r.MonteCarloSE.VaR95)
 		}
 		for _, e := range r.Exceedance {
-			ek := k(fmt.Sprintf("exceed:%g", e.Threshold))
+			ek := k("exceed:" + strconv.FormatFloat(e.Threshold, 'f', -1, 64))
 			same("exceedance", ek, e.Probability)
-			same("exceedance s.e.", k(fmt.Sprintf("exceed:%g:se", e.Threshold)), e.SE)
+			same("exceedance s.e.", k("exceed:"+strconv.FormatFloat(e.Threshold, 'f', -1, 64)+":se"), e.SE)
 			if csvUnit[ek] != "probability" {
 				t.Errorf("exceedance unit %q", csvUnit[ek])
 			}

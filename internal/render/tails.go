@@ -404,7 +404,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 			unit := row.Unit
 			put := func(stat string, v float64) {
 				cw.Write([]string{scenario, row.Info.Key, row.Period, unit, AdverseSide(row), stat,
-					strconv.FormatFloat(v, 'g', -1, 64)})
+					strconv.FormatFloat(v, 'f', -1, 64)}) // shortest digits, never an exponent
 			}
 			date := row.Index == sim.PeakDay // a date: no adverse side
 			for _, s := range stats {
@@ -431,7 +431,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 			}
 			unit = "probability" // of a year beyond the threshold, which is in the index's unit
 			for _, e := range row.Tail.Exceedances {
-				key := "exceed:" + strconv.FormatFloat(e.Threshold, 'g', -1, 64)
+				key := "exceed:" + strconv.FormatFloat(e.Threshold, 'f', -1, 64)
 				put(key, e.Prob)
 				put(key+":se", e.SE)
 			}
@@ -457,7 +457,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	for _, sc := range r.Scenarios {
 		write(sc.Name, sc.Rows, sc.Changes, nil)
 	}
-	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	g := func(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 	units := "°" + r.Manifest.Units
 	demandUnit := demandUnitOf(r)
 	for _, d := range r.Design { // the planner's design figures, each with its Monte Carlo s.e.
