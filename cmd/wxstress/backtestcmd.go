@@ -56,7 +56,7 @@ func newBacktestFlags(o *backtestOptions) *pflag.FlagSet {
 	fs.StringVar(&o.temps, "temps", "", "daily temperature CSV (required)")
 	fs.StringVar(&o.units, "units", "", "units of the data: C or F (default C; data that look like °F are flagged: a warning, or an error past ±60)")
 	fs.IntVar(&o.origins, "origins", backtest.DefaultOrigins, "the last N complete periods of each kind")
-	fs.StringArrayVar(&o.periods, "period", nil, "period to backtest, repeatable (default: year, heating); "+sim.PeriodForms)
+	fs.StringArrayVar(&o.periods, "period", nil, "period `P` to backtest, repeatable (default: year, heating); "+sim.PeriodForms)
 	fs.IntVar(&o.paths, "paths", backtest.DefaultPaths, "simulated years per origin")
 	fs.Uint64Var(&o.seed, "seed", 1, "random seed")
 	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F)")

@@ -106,6 +106,8 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--title", "X"}, exitUsage, "--title goes with --report"},
 		{[]string{"simulate", "--model", "m.json", "--detail", "--format", "json"}, exitUsage, "--detail is for --format table"},
 		{[]string{"simulate", "--model", "m.json", "--observed", "o.csv", "--start", "climate"}, exitUsage, "--start climate contradicts it"},
+		{[]string{"simulate", "--model", "m.json", "--snap-days", "5"}, exitUsage, "--snap-days goes with --design"},
+		{[]string{"simulate", "--model", "m.json", "--uncertainty-mode", "mix"}, exitUsage, "--uncertainty-mode goes with --uncertainty"},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := call(t, context.Background(), c.args...)
@@ -1010,5 +1012,32 @@ func TestSeasonUnderWayWithHolidays(t *testing.T) {
 		"--observed-load", "../../demo/lanternfield_demand.csv", "--start", "conditional", "--paths", "100")
 	if code != 0 {
 		t.Errorf("exit %d: %s", code, stderr)
+	}
+}
+
+// TestHelpWithin100Columns: every help page keeps within 100 columns (flag
+// usages wrapped, long example commands continued with a backslash), and
+// no flag shows a Go type name.
+func TestHelpWithin100Columns(t *testing.T) {
+	t.Parallel()
+	for _, c := range []string{"", "simulate", "fit", "fit-demand", "backtest", "scenarios", "demo"} {
+		args := []string{"help"}
+		if c != "" {
+			args = append(args, c)
+		}
+		code, out, stderr := call(t, context.Background(), args...)
+		if code != 0 {
+			t.Fatalf("help %s: exit %d, %s", c, code, stderr)
+		}
+		for _, l := range strings.Split(out, "\n") {
+			if n := utf8.RuneCountInString(l); n > 100 {
+				t.Errorf("help %s: a line of %d columns: %q", c, n, l)
+			}
+			for _, typ := range []string{"stringArray", "float64Slice", "stringSlice", " strings "} {
+				if strings.Contains(l, typ) {
+					t.Errorf("help %s: a Go type name: %q", c, l)
+				}
+			}
+		}
 	}
 }

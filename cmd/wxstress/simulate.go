@@ -103,12 +103,12 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.IntVar(&o.workers, "workers", 0, "worker goroutines (default: all cores); never changes results")
 	fs.IntVar(&o.year, "year", 0, "target year (default: the season under way at the data end)")
 	fs.StringVar(&o.start, "start", sim.StartClimate, "start state: climate (stationary, after a burn-in) or conditional (the last observed anomalies)")
-	fs.StringArrayVar(&o.periods, "period", nil, "index period, repeatable (default: year, heating, cooling)")
+	fs.StringArrayVar(&o.periods, "period", nil, "index period `P`, repeatable (default: year, heating, cooling)")
 	fs.Float64Var(&o.hddBase, "hdd-base", 0, "HDD base temperature (default 18 °C or 65 °F, by the model's units)")
 	fs.Float64Var(&o.cddBase, "cdd-base", 0, "CDD base temperature (default 18 °C or 65 °F)")
 	fs.Float64Var(&o.coldBelow, "cold-below", 0, "a cold day has a mean below this (default 0 °C or 32 °F)")
-	fs.StringArrayVar(&o.exceed, "exceed", nil, "report P(worse than a threshold): INDEX:VALUE or INDEX:PERIOD:VALUE, repeatable")
-	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate a scenario (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
+	fs.StringArrayVar(&o.exceed, "exceed", nil, "report P(worse than a threshold) for `INDEX[:PERIOD]:VALUE`, repeatable")
+	fs.StringArrayVar(&o.scenarios, "scenario", nil, "also simulate scenario `NAME|FILE` (a built-in name or a TOML file), repeatable; see 'wxstress scenarios'")
 	fs.StringVar(&o.demand, "demand", "", "demand model from 'wxstress fit-demand': adds energy, peak-day demand, the day of the peak and planning tables")
 	fs.Float64Var(&o.capacity, "capacity", 0, "with --demand: also count the days with demand above this (in the demand's unit)")
 	fs.StringVar(&o.history, "history", "", "the station record (CSV, as for fit): set its own complete seasons, moved along the trend to the target year, beside the model")
@@ -116,12 +116,12 @@ func newSimulateFlags(o *simulateOptions) *pflag.FlagSet {
 	fs.StringVar(&o.mode, "uncertainty-mode", stress.UncertaintyBand, "band: a 90% band beside the mean, VaR 95%, ES 95%, 1-in-20 and 1-in-50; mix: spread the paths over the refitted models (predictive tables)")
 	fs.StringVar(&o.observed, "observed", "", "the station record (CSV, as for fit) to the model's data end: seasons under way count their observed days and simulate the rest from the data end (conditional start)")
 	fs.StringVar(&o.obsLoad, "observed-load", "", "with --observed and --demand: the daily demand CSV whose loads the seasons under way count as they were")
-	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the T (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100")
+	fs.Float64SliceVar(&o.periodsT, "return-periods", nil, "the `T,…` (years, > 1) of the 1-in-T return levels the tables list, e.g. 2,5,10,20,30,50,100")
 	fs.Lookup("return-periods").DefValue = "2,5,10,20,50,100" // nil means these; shown as the default
-	fs.StringSliceVar(&o.design, "design", nil, "planning standards of the design day, e.g. 1-in-20,1-in-50: the 1-in-T coldest day, k-day cold snap, peak-day demand and snap energy")
+	fs.StringSliceVar(&o.design, "design", nil, "planning `STANDARDS` of the design day, e.g. 1-in-20,1-in-50: the 1-in-T coldest day, k-day cold snap, peak-day demand and snap energy")
 	fs.Float64Var(&o.growth, "growth", 0, "with --demand: load growth in per cent a year from the demand record's end to the target year")
 	fs.IntVar(&o.snapDays, "snap-days", stress.DefaultSnapDays, "with --design: the length k of the design cold snap, in days")
-	fs.StringArrayVar(&o.targets, "capacity-target", nil, "with --demand: solve the capacity for peak:1-in-T, days:x (days over a year) or any:p (probability of any day over); repeatable")
+	fs.StringArrayVar(&o.targets, "capacity-target", nil, "with --demand: solve the capacity for `TARGET` peak:1-in-T, days:x (days over a year) or any:p (probability of any day over); repeatable")
 	fs.StringVar(&o.hedgeFile, "hedge", "", "evaluate the exposure and contracts of this hedge file (TOML) on the simulated years; its periods are simulated too")
 	fs.Float64Var(&o.loading, "loading", 0.2, "with --hedge: λ of the loaded price, mean + λ·sd of the payout")
 	fs.StringVar(&o.holidays, "holidays", "", "with --demand: holiday list as for fit-demand; dates repeat every simulated year by month and day, rules give their own day")
@@ -160,6 +160,12 @@ func (o *simulateOptions) validate() error {
 		if o.fs.Changed(f.flag) && f.given == "" {
 			return usagef("simulate: --%s goes with --%s", f.flag, f.needs)
 		}
+	}
+	if o.fs.Changed("snap-days") && len(o.design) == 0 {
+		return usagef("simulate: --snap-days goes with --design")
+	}
+	if o.fs.Changed("uncertainty-mode") && o.refits == 0 {
+		return usagef("simulate: --uncertainty-mode goes with --uncertainty")
 	}
 	if o.observed != "" && o.fs.Changed("start") && o.start == sim.StartClimate {
 		return usagef("simulate: --observed starts the run from the data end (a season under way): --start climate contradicts it")
