@@ -192,7 +192,7 @@ func fitAnomaly(s *Series, x []float64, set *Settings, start statespace.Params, 
 	case SlowNone:
 		ch.Rule = "slow part not requested (--slow none)"
 	case SlowOn:
-		ch.Kept, ch.Rule = true, "slow part requested (--slow on)"
+		ch.Kept, ch.Rule = true, "kept as requested (--slow on)"
 	default:
 		switch {
 		case ch.P < SlowLevel:

@@ -410,9 +410,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 				return err
 			}
 		}
-		if job.Temps.End() > m.Data.LastDate {
-			fmt.Fprintf(stderr, "wxstress: warning: %s goes on past the model's data end %s; the run starts there (refit the model to use the later days)\n",
-				o.observed, m.Data.LastDate)
+		if job.Temps.End() > m.Data.LastDate { // with the run's other cautions: summary, stderr, manifest
+			baseWarnings = append(baseWarnings, fmt.Sprintf("%s goes on past the model's data end %s; the run starts there "+
+				"(refit the model to use the later days)", filepath.Base(o.observed), m.Data.LastDate))
 		}
 		job.Observed = true
 		if o.obsLoad != "" {

@@ -167,7 +167,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 				continue
 			}
 			t := row.Tail
-			sm.Notes = append(sm.Notes, fmt.Sprintf("Days a year over the %s%s capacity, %s: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
+			sm.Notes = append(sm.Notes, fmt.Sprintf("Days over the %s%s capacity, %s, per simulated year: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
 				numfmt.Number(mf.Capacity), peakUnit, row.Period, numfmt.Value(t.Mean, t.MeanSE), numfmt.Number(t.Quantile(0.5)),
 				numfmt.Number(t.ReturnLevel(20)), numfmt.Number(t.ReturnLevel(50))))
 		}
@@ -241,6 +241,7 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		warns = append(warns, w)
 	}
 	if h := r.History; h != nil {
+		var outside []string // in one warning, as the Monte Carlo one
 		for _, row := range h.Rows {
 			// The indices the key figures show.
 			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
@@ -249,10 +250,13 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 					d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
 				}
 				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
-				warns = append(warns, fmt.Sprintf("%s, %s: the record's sd %s%s%s lies outside the model's band %s–%s %s (%s)",
-					row.Index.Info().Name, row.Period, numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d),
-					numfmt.Fixed(row.SDBand[1], d), unit, row.SDVerdict))
+				outside = append(outside, fmt.Sprintf("%s, %s %s%s%s against %s–%s%s%s (%s)", row.Index.Info().Name, row.Period,
+					numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d), numfmt.Fixed(row.SDBand[1], d), Glue, unit,
+					row.SDVerdict))
 			}
+		}
+		if len(outside) > 0 {
+			warns = append(warns, "the record's sd lies outside the model's band for "+strings.Join(outside, "; "))
 		}
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)

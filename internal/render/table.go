@@ -209,7 +209,7 @@ func glueUnits(words []string) []string {
 	out := words[:0:0]
 	for i := 0; i < len(words); i++ {
 		w := words[i]
-		if (w == "±" || w == "×" || w == "=") && i+1 < len(words) {
+		if (w == "±" || w == "×" || w == "=" || w == "≤" || w == "≥" || w == "<" || w == ">") && i+1 < len(words) {
 			w += Glue + words[i+1]
 			i++
 		}
