@@ -8,6 +8,7 @@ import (
 
 	"wxstress/backtest"
 	"wxstress/internal/numfmt"
+	"wxstress/model"
 	"wxstress/sim"
 )
 
@@ -20,17 +21,21 @@ func BacktestTables(w io.Writer, r *backtest.Result, file, units string) error {
 	e.printf("%s\n", Wrap(fmt.Sprintf("Backtest of %s: the last %d complete periods of each kind, each fitted on the data "+
 		"to the day before it and simulated %s times from that day (conditional start); bases HDD %s, CDD %s °%s",
 		file, o.Origins, numfmt.Number(float64(o.Paths)), numfmt.Number(o.Bases.HDD), numfmt.Number(o.Bases.CDD), units), "  "))
+	demandUnit := ""
+	if o.Demand != nil {
+		demandUnit = o.Demand.Unit
+	}
 	rows := [][]string{}
 	for _, row := range r.Rows {
 		ev := row.Evidence
 		rows = append(rows, []string{
-			row.Index.Info().Name, row.Period, fmt.Sprint(len(row.Origins)),
+			row.Index.Info().Name, row.Period, row.Index.Info().Unit(model.Units(units), demandUnit), fmt.Sprint(len(row.Origins)),
 			fmt.Sprintf("%d/%d (p %s)", ev.Central50.Inside, ev.Cases, PValue(ev.Central50.P)),
 			fmt.Sprintf("%d/%d (p %s)", ev.Central90.Inside, ev.Cases, PValue(ev.Central90.P)),
 			PValue(ev.KS.P), Num(ev.ProbitSD, 2), TableNum(ev.MeanCRPS), TableNum(ev.MeanRefCRPS),
 		})
 	}
-	e.table([]string{"index", "period", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",
+	e.table([]string{"index", "period", "unit", "origins", "inside 50% band", "inside 90% band", "KS p (PIT)", "sd of probit(PIT)",
 		"CRPS model", "CRPS climatology"}, rows)
 	for _, row := range r.Rows {
 		e.printf("%s\n", Wrap(fmt.Sprintf("  %s, %s: %s", row.Index.Info().Name, row.Period, strings.ReplaceAll(row.Evidence.Verdict, "(expected ", "(expected"+Glue)), "    "))

@@ -18,7 +18,7 @@ func BandTable(rows []sim.Row, bands []stress.RowBands, refits int) (title strin
 		int(math.Round(100*stress.BandLevel)), refits)
 	// VaR 95 % is the 1-in-20 level of a yearly index: one column serves
 	// both (the JSON has both).
-	header = []string{"index", "period", "mean", "ES 95%", "1-in-20", "1-in-50"}
+	header = []string{"index", "period", "unit", "mean", "ES 95%", "1-in-20", "1-in-50"}
 	cell := func(v float64, b stress.Band) string {
 		// To the precision the band supports: its width's twentieth
 		// (a band of ±220 000 GJ shows ten-thousands, not units).
@@ -33,7 +33,7 @@ func BandTable(rows []sim.Row, bands []stress.RowBands, refits int) (title strin
 			continue
 		}
 		b, t := bands[k], r.Tail
-		cells = append(cells, []string{r.Name, r.Period, cell(t.Mean, b.Mean), cell(t.ES95, b.ES95),
+		cells = append(cells, []string{r.Name, r.Period, r.Unit, cell(t.Mean, b.Mean), cell(t.ES95, b.ES95),
 			cell(t.ReturnLevel(20), b.RL20), cell(t.ReturnLevel(50), b.RL50)})
 	}
 	return title, header, cells

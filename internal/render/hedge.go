@@ -23,8 +23,11 @@ func money(v float64) string {
 // report show the same cells.
 func HedgeTables(h *hedge.Result, f *hedge.File) (contracts, position [][]string, contractHead, positionHead []string) {
 	cur := f.Currency
-	contractHead = []string{"contract", "reads", "mean payout (" + cur + ")", "sd", "P5 / P50 / P95 / P99",
-		"P(payout > 0)", fmt.Sprintf("loaded (λ = %g)", h.Options.Loading), fmt.Sprintf("%g quantile", h.Options.Level), "burn (seasons)"}
+	// Every money column names the currency: a wide table is printed in
+	// parts, and each part must read alone.
+	contractHead = []string{"contract", "reads", "mean payout (" + cur + ")", "sd (" + cur + ")", "P5 / P50 / P95 / P99 (" + cur + ")",
+		"P(payout > 0)", fmt.Sprintf("loaded, %s (λ = %g)", cur, h.Options.Loading), fmt.Sprintf("%g quantile (%s)", h.Options.Level, cur),
+		"burn, " + cur + " (seasons)"}
 	for _, c := range h.Contracts {
 		burn := "—"
 		if c.Seasons > 0 {

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"wxstress/internal/numfmt"
+	"wxstress/model"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -29,7 +30,7 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 	if h.ClimateRun {
 		title += "; the model side from a climate-start run, as the record's seasons are draws from the climate"
 	}
-	header = []string{"index", "period", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
+	header = []string{"index", "period", "unit", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
 		"model mean", "model sd", "sd band", "record sd vs band"}
 	for _, r := range h.Rows {
 		if !historyShown(r) {
@@ -45,7 +46,7 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		if lo := min(r.SD, r.ModelSD, r.SDBand[0]); lo > 0 {
 			d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
 		}
-		rows = append(rows, []string{r.Index.Info().Name, r.Period, fmt.Sprint(len(r.Values)),
+		rows = append(rows, []string{r.Index.Info().Name, r.Period, r.Index.Info().Unit(model.Units(units), ""), fmt.Sprint(len(r.Values)),
 			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, d), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
 			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, d),
 			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict})

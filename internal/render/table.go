@@ -87,7 +87,7 @@ func table(w io.Writer, header []string, rows [][]string) error {
 
 // keyHeaders are the column titles that, beside the first column, identify
 // a row: a split table repeats them in every part.
-var keyHeaders = map[string]bool{"period": true, "T": true, "standard": true, "target": true}
+var keyHeaders = map[string]bool{"period": true, "unit": true, "T": true, "standard": true, "target": true}
 
 // width is the widest line of s, in terminal columns (a wide character
 // takes two, as the tables pad it).
