@@ -120,7 +120,8 @@ func exitCode(err error, ctx context.Context, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "wxstress: interrupted; no output was written")
 		return exitInterrupted
 	case errors.As(err, &ue):
-		fmt.Fprintf(stderr, "wxstress: %s\n(run 'wxstress help' for usage)\n", cleanMessage(err.Error()))
+		msg := cleanMessage(err.Error())
+		fmt.Fprintf(stderr, "wxstress: %s\n(run '%s' for usage)\n", msg, helpFor(msg))
 		return exitUsage
 	case errors.Is(err, stress.ErrJob): // inputs that do not go together: how the tool was called
 		msg := strings.Replace(cleanMessage(err.Error()), strings.TrimPrefix(stress.ErrJob.Error(), "stress: ")+": ", "", 1)
@@ -129,6 +130,18 @@ func exitCode(err error, ctx context.Context, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stderr, "wxstress: %s\n", cleanMessage(err.Error()))
 	return exitFailure
+}
+
+// helpFor is the help command for a usage message: the command's own page
+// when the message starts with the command's name ("simulate: ...").
+func helpFor(msg string) string {
+	if cmd, _, ok := strings.Cut(msg, ": "); ok {
+		switch cmd {
+		case "simulate", "fit", "fit-demand", "backtest", "scenarios", "demo":
+			return "wxstress help " + cmd
+		}
+	}
+	return "wxstress help"
 }
 
 // internalPackages are the package names library errors start with; a
