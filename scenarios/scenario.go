@@ -327,6 +327,9 @@ func (s *Scenario) describe(f float64, u string) []string {
 	return out
 }
 
+// File is the file a scenario was read from ("" for a built-in).
+func (s *Scenario) File() string { return s.file }
+
 // DescribeFor is Describe with the model-dependent changes worked out for m
 // and target year year: the level change a move along the trend brings.
 func (s *Scenario) DescribeFor(m *model.File, year int) []string {

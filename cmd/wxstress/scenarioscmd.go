@@ -88,12 +88,18 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		}
 		describe = func(s *scenarios.Scenario) []string { return s.DescribeFor(m, year) }
 	}
-	for _, s := range list {
+	for i, s := range list {
+		head := s.Name
 		if s.Description != "" {
-			fmt.Fprintf(stdout, "\n%s\n", render.Wrap(s.Name+" — "+s.Description, "  "))
-		} else {
-			fmt.Fprintf(stdout, "\n%s\n", s.Name)
+			head += " — " + s.Description
 		}
+		if f := s.File(); f != "" {
+			head += " (" + f + ")"
+		}
+		if i > 0 || fs.NArg() == 0 {
+			fmt.Fprintln(stdout) // a blank line between scenarios, and after the built-ins' title
+		}
+		fmt.Fprintf(stdout, "%s\n", render.Wrap(head, "  "))
 		for _, line := range describe(s) {
 			fmt.Fprintf(stdout, "%s\n", render.Wrap("  • "+line, "    "))
 		}
