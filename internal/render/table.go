@@ -26,8 +26,9 @@ func table(w io.Writer, header []string, rows [][]string) error {
 	if err := boxed(&b, header, rows); err != nil {
 		return err
 	}
-	// The row's key: the first column and any that names a period, a
-	// standard or a return period; these lead every part.
+	// The row's key: the first column and the keyHeaders ones (a period,
+	// a unit, a standard, a target, a return period); these lead every
+	// part.
 	key := []int{0}
 	var rest []int
 	for c := 1; c < len(header); c++ {
