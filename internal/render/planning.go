@@ -84,7 +84,8 @@ func writePlanning(e *errWriter, r *SimReport) {
 		e.table(header, rows)
 		if !slices.Contains(r.Manifest.Periods, "year") {
 			e.printf("%s\n", Wrap("  The curve is the calendar year's, simulated for it over the run's periods and the year: "+
-				"its busiest day is the year's peak, not the peak of the periods above, and its paths start from another day.", "  "))
+				"its busiest day is the year's peak, not the peak of the periods above, and its years are other draws than "+
+				"the tables' (a run starting on another day).", "  "))
 		}
 	}
 	writeNormals(e, p.Normals, p.Unit)
@@ -113,7 +114,7 @@ func writeNormals(e *errWriter, normals []sim.YearNormal, unit string) {
 		"weather effect"}, rows)
 	e.printf("%s\n", Wrap("  model, actual and model, normal: the demand model at the year's actual weather and at normal "+
 		"weather (the mean over climatological simulations of that year, with the trend at that year and the same calendar); "+
-		"weather-normalized = actual − model, actual + model, normal; weather effect = actual / weather-normalized − 1, "+
+		"weather-normalized = actual − (model, actual) + (model, normal); weather effect = actual / weather-normalized − 1, "+
 		"the share of the year's demand its weather added (+) or saved (−)", "  "))
 }
 

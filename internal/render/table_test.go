@@ -1,6 +1,7 @@
 package render
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
@@ -260,5 +261,17 @@ func TestWideCharactersSplit(t *testing.T) {
 		if w := twwidth.Width(l); w > wrapWidth {
 			t.Errorf("a line of %d columns: %q", w, l)
 		}
+	}
+}
+
+// TestPeriodMapOrder: return levels are written in increasing order of the
+// period ("2", "5", …, "100"), not of the text ("10", "100", "2").
+func TestPeriodMapOrder(t *testing.T) {
+	b, err := json.Marshal(periodMap[float64]{"100": 3, "2": 1, "10": 2, "2.5": 1.5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := string(b); got != `{"2":1,"2.5":1.5,"10":2,"100":3}` {
+		t.Errorf("%s", got)
 	}
 }

@@ -2,10 +2,12 @@ package render
 
 import (
 	"bytes"
+	"cmp"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"runtime"
 	"slices"
@@ -144,7 +146,7 @@ type jsonRow struct {
 	VaR99        *float64           `json:"var99,omitempty"`
 	ES95         *float64           `json:"es95,omitempty"`
 	ES99         *float64           `json:"es99,omitempty"`
-	ReturnLevels map[string]float64 `json:"return_levels,omitempty"`
+	ReturnLevels periodMap[float64] `json:"return_levels,omitempty"`
 	Exceedance   []jsonExceed       `json:"exceedance,omitempty"`
 	Change       *jsonChange        `json:"change_vs_baseline,omitempty"`
 	// MonteCarloSE holds the standard errors of the tail numbers from the
@@ -167,11 +169,41 @@ type jsonDates struct {
 // jsonMCSE is the Monte Carlo error of a row's tail numbers.
 type jsonMCSE struct {
 	Quantiles    map[string]*float64 `json:"quantiles"`
-	ReturnLevels map[string]*float64 `json:"return_levels,omitempty"`
+	ReturnLevels periodMap[*float64] `json:"return_levels,omitempty"`
 	VaR95        *float64            `json:"var95,omitempty"`
 	VaR99        *float64            `json:"var99,omitempty"`
 	ES95         *float64            `json:"es95,omitempty"`
 	ES99         *float64            `json:"es99,omitempty"`
+}
+
+// periodMap is a JSON object keyed by return period ("2", "20", "100"),
+// written in increasing order of the period rather than of the text.
+type periodMap[V any] map[string]V
+
+func (m periodMap[V]) MarshalJSON() ([]byte, error) {
+	keys := slices.Collect(maps.Keys(m))
+	slices.SortFunc(keys, func(a, b string) int {
+		x, _ := strconv.ParseFloat(a, 64)
+		y, _ := strconv.ParseFloat(b, 64)
+		return cmp.Compare(x, y)
+	})
+	var b bytes.Buffer
+	b.WriteByte('{')
+	for i, k := range keys {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		kb, _ := json.Marshal(k)
+		vb, err := json.Marshal(m[k])
+		if err != nil {
+			return nil, err
+		}
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(vb)
+	}
+	b.WriteByte('}')
+	return b.Bytes(), nil
 }
 
 // finitePtr is v, or nil (JSON null) when v is not finite.
@@ -194,7 +226,7 @@ func toJSONMCSE(t sim.Tail, date bool) *jsonMCSE {
 		return m
 	}
 	m.VaR95, m.VaR99, m.ES95, m.ES99 = finitePtr(t.VaR95SE), finitePtr(t.VaR99SE), finitePtr(t.ES95SE), finitePtr(t.ES99SE)
-	m.ReturnLevels = map[string]*float64{}
+	m.ReturnLevels = periodMap[*float64]{}
 	for i, T := range t.ReturnPeriods {
 		m.ReturnLevels[periodKey(T)] = finitePtr(t.ReturnLevelSE[i])
 	}
@@ -262,7 +294,7 @@ func toJSONRows(rows []sim.Row) []jsonRow {
 		}
 		if !date {
 			j.VaR95, j.VaR99, j.ES95, j.ES99 = &t.VaR95, &t.VaR99, &t.ES95, &t.ES99
-			j.ReturnLevels = map[string]float64{}
+			j.ReturnLevels = periodMap[float64]{}
 			for _, T := range t.ReturnPeriods {
 				j.ReturnLevels[periodKey(T)] = t.ReturnLevel(T)
 			}
