@@ -594,6 +594,7 @@ func TestDemoSummary(t *testing.T) {
 			ReturnLevels map[string]float64 `json:"return_levels"`
 			ES95         float64            `json:"es95"`
 			MCSE         struct {
+				Quantiles    map[string]float64 `json:"quantiles"`
 				ReturnLevels map[string]float64 `json:"return_levels"`
 				ES95         float64            `json:"es95"`
 			} `json:"monte_carlo_se"`
@@ -613,8 +614,10 @@ func TestDemoSummary(t *testing.T) {
 			continue
 		}
 		unit, f := map[string]string{"hdd": "°C·day", "energy": "TJ"}[x.Key], map[string]float64{"hdd": 1, "energy": 1000}[x.Key]
-		want := []string{numfmt.Value(x.ReturnLevels["20"]/f, x.MCSE.ReturnLevels["20"]/f),
-			numfmt.Value(x.ReturnLevels["50"]/f, x.MCSE.ReturnLevels["50"]/f), numfmt.Value(x.ES95/f, x.MCSE.ES95/f)}
+		// The row's precision is its largest Monte Carlo error (render.RowSE).
+		se := max(x.MCSE.Quantiles["0.50"], x.MCSE.ReturnLevels["20"], x.MCSE.ReturnLevels["50"], x.MCSE.ES95)
+		want := []string{numfmt.Value(x.ReturnLevels["20"]/f, se/f), numfmt.Value(x.ReturnLevels["50"]/f, se/f),
+			numfmt.Value(x.ES95/f, se/f)}
 		for _, l := range lines {
 			if strings.HasPrefix(l, "│ "+label+", heating ") {
 				checked++

@@ -116,13 +116,16 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 			}
 			t := row.Tail
 			f, unit := ScaleUnit(row.Unit, max(math.Abs(t.Quantile(0.5)), math.Abs(t.ES95)))
-			v := func(x, se float64) string { return numfmt.Value(x/f, se/f) }
+			// One precision for the row: that of its least precise figure
+			// (the largest Monte Carlo error), so that a row does not read
+			// "-9.31 | -14.9 | -16.6".
+			se := RowSE(t)
+			v := func(x float64) string { return numfmt.Value(x/f, se/f) }
 			line := []string{row.Name + ", " + row.Period, unit,
-				v(t.Quantile(0.5), t.QuantileSE[4]), v(t.ReturnLevel(20), t.ReturnLevelError(20)),
-				v(t.ReturnLevel(50), t.ReturnLevelError(50)), v(t.ES95, t.ES95SE)}
+				v(t.Quantile(0.5)), v(t.ReturnLevel(20)), v(t.ReturnLevel(50)), v(t.ES95)}
 			if bandCol {
-				b, se := r.Bands[k].RL20, t.ReturnLevelError(20)
-				line = append(line, fmt.Sprintf("%s to %s", v(b.Lo, se), v(b.Hi, se)))
+				b := r.Bands[k].RL20
+				line = append(line, fmt.Sprintf("%s to %s", v(b.Lo), v(b.Hi)))
 			}
 			sm.KeyRows = append(sm.KeyRows, line)
 		}
@@ -228,6 +231,19 @@ func scenarioKeys(rows []sim.Row) []int {
 		}
 	}
 	return keys
+}
+
+// RowSE is the precision of a summary row: the largest finite Monte Carlo
+// error among its P50, 1-in-20, 1-in-50 and ES 95 % (NaN when none is
+// known, which numfmt.Value prints to four significant digits).
+func RowSE(t sim.Tail) float64 {
+	se := math.NaN()
+	for _, e := range []float64{t.QuantileSE[4], t.ReturnLevelError(20), t.ReturnLevelError(50), t.ES95SE} {
+		if !math.IsNaN(e) && !math.IsInf(e, 0) && !(e <= se) {
+			se = e
+		}
+	}
+	return se
 }
 
 // summaryWarnings collects what should make a reader doubt the figures:
