@@ -157,8 +157,13 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		if d.Period != planning {
 			continue // the other periods' design days: --detail
 		}
+		// The two temperatures at one precision, the coarser of their errors'.
+		tse := d.ColdestSE
+		if !(d.SnapSE <= tse) && !math.IsNaN(d.SnapSE) && !math.IsInf(d.SnapSE, 0) {
+			tse = d.SnapSE
+		}
 		line := fmt.Sprintf("Design day 1-in-%s, %s: %s °%s, %d-day snap %s °%s", periodKey(d.T), d.Period,
-			numfmt.Value(d.Coldest, d.ColdestSE), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, d.SnapSE), mf.Units)
+			numfmt.Value(d.Coldest, tse), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, tse), mf.Units)
 		if !math.IsNaN(d.Peak) {
 			line += ", demand " + numfmt.Value(d.Peak, d.PeakSE) + peakUnit
 		}
