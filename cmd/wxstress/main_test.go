@@ -614,7 +614,7 @@ func TestDemoSummary(t *testing.T) {
 			continue
 		}
 		unit, f := map[string]string{"hdd": "°C·day", "energy": "TJ"}[x.Key], map[string]float64{"hdd": 1, "energy": 1000}[x.Key]
-		// The row's precision is its largest Monte Carlo error (render.RowSE).
+		// The row's precision is its largest Monte Carlo error (render.rowSE).
 		se := max(x.MCSE.Quantiles["0.50"], x.MCSE.ReturnLevels["20"], x.MCSE.ReturnLevels["50"], x.MCSE.ES95)
 		want := []string{numfmt.Value(x.ReturnLevels["20"]/f, se/f), numfmt.Value(x.ReturnLevels["50"]/f, se/f),
 			numfmt.Value(x.ES95/f, se/f)}

@@ -119,7 +119,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 			// One precision for the row: that of its least precise figure
 			// (the largest Monte Carlo error), so that a row does not read
 			// "-9.31 | -14.9 | -16.6".
-			se := RowSE(t)
+			se := rowSE(t)
 			v := func(x float64) string { return numfmt.Value(x/f, se/f) }
 			line := []string{row.Name + ", " + row.Period, unit,
 				v(t.Quantile(0.5)), v(t.ReturnLevel(20)), v(t.ReturnLevel(50)), v(t.ES95)}
@@ -238,10 +238,10 @@ func scenarioKeys(rows []sim.Row) []int {
 	return keys
 }
 
-// RowSE is the precision of a summary row: the largest finite Monte Carlo
+// rowSE is the precision of a summary row: the largest finite Monte Carlo
 // error among its P50, 1-in-20, 1-in-50 and ES 95 % (NaN when none is
 // known, which numfmt.Value prints to four significant digits).
-func RowSE(t sim.Tail) float64 {
+func rowSE(t sim.Tail) float64 {
 	se := math.NaN()
 	for _, e := range []float64{t.QuantileSE[4], t.ReturnLevelError(20), t.ReturnLevelError(50), t.ES95SE} {
 		if !math.IsNaN(e) && !math.IsInf(e, 0) && !(e <= se) {
