@@ -130,7 +130,9 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 			header, rows, notes := ExtremesTable(checks, f.Data.Units)
 			e.printf("\nExtreme days checked by extreme-value theory (the model simulated for %d)\n", checks[0].Year)
 			e.table(header, rows)
-			e.printf("%s\n", Wrap("  "+strings.Join(notes, " "), "  "))
+			// Not the last note: it compares with a simulation run from the
+			// data end, which a fit does not make.
+			e.printf("%s\n", Wrap("  "+strings.Join(notes[:len(notes)-1], " "), "  "))
 		}
 	}
 	if warns := FitWarnings(f, checks); len(warns) > 0 {

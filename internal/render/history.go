@@ -188,6 +188,7 @@ func ExtremesTable(checks []stress.ExtremeCheck, units string) (header []string,
 	notes = append(notes, fmt.Sprintf("The GEV is fitted by maximum likelihood to each season's coldest (or hottest) daily mean in "+
 		"the record, moved to the target year's trend level (°%s); a model level outside the 95 %% profile-likelihood "+
 		"interval is evidence that the model's extreme days are off.", units))
+	// Last, for fit's summary to leave out.
 	notes = append(notes, "The model levels come from a climate-start run (the record's seasons are climatology): a run "+
 		"from the state at the data end (conditional start) can differ, as its design days do.")
 	return header, rows, notes
