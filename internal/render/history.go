@@ -42,10 +42,7 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		}
 		// The sds and their band to two significant digits of the smallest,
 		// so that a verdict is visible in the numbers beside it.
-		d := 1
-		if lo := min(r.SD, r.ModelSD, r.SDBand[0]); lo > 0 {
-			d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
-		}
+		d := sdDecimals(min(r.SD, r.ModelSD, r.SDBand[0]))
 		rows = append(rows, []string{r.Index.Info().Name, r.Period, r.Index.Info().Unit(model.Units(units), ""), fmt.Sprint(len(r.Values)),
 			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, d), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
 			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, d),
@@ -82,6 +79,15 @@ func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
 	for _, n := range notes {
 		e.printf("  %s\n", n)
 	}
+}
+
+// sdDecimals is the decimals that show the smallest of a set of sds (lo)
+// to two significant digits: at least one, at most four.
+func sdDecimals(lo float64) int {
+	if !(lo > 0) {
+		return 1
+	}
+	return min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
 }
 
 // oneIn writes a probability as a return period in years: "137", or

@@ -266,10 +266,7 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		for _, row := range h.Rows {
 			// The indices the key figures show.
 			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
-				d := 1
-				if lo := min(row.SD, row.SDBand[0]); lo > 0 {
-					d = min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
-				}
+				d := sdDecimals(min(row.SD, row.SDBand[0]))
 				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
 				outside = append(outside, fmt.Sprintf("%s, %s %s%s%s against %s–%s%s%s (%s)", row.Index.Info().Name, row.Period,
 					numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d), numfmt.Fixed(row.SDBand[1], d), Glue, unit,
