@@ -50,7 +50,9 @@ func annualHDD(t *testing.T, m *model.File, paths int) (mean, sd float64) {
 // standard errors above), and the fitted slow part follows the record (sd
 // 0.75 against 0.6 °C). The model's annual HDD sd comes out about 8 % above the
 // generator's; the tolerance here is 10 %. That the estimator itself holds
-// ±7 % is checked over many records by TestSlowRecoveryOverRecords.
+// ±7 % is checked over many records by TestSlowRecoveryOverRecords and,
+// with the demo's own generator (16 records, this one the widest), by
+// TestRecoveryOverDemoRecords in demo/gen.
 func TestDemoAnnualHDDSpread(t *testing.T) {
 	if testing.Short() {
 		t.Skip("fits 71 years and simulates 20 000 paths")

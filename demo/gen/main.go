@@ -27,8 +27,10 @@ import (
 	"wxstress/calendar"
 )
 
-// seed is the PCG seed; stream 1 drives the temperatures, stream 2 the
-// demand noise, so either can change without disturbing the other.
+// seed is the PCG seed of the published files; stream 1 drives the
+// temperatures, stream 2 the demand noise, so either can change without
+// disturbing the other. Other seeds give other records of the same
+// generator (the recovery test in this directory draws some).
 const seed uint64 = 0x4b42_1955
 
 // Temperature model, °C. Time t counts days from calendar.Epoch (2000-01-01):
@@ -124,7 +126,7 @@ func main() {
 	flag.Parse()
 	log.SetFlags(0)
 
-	st := simulateTemperature()
+	st := simulateTemperature(seed)
 	must(writeFile(filepath.Join(*dir, "kestrel_bay_daily.csv"), st.stationCSV()))
 	must(writeFile(filepath.Join(*dir, "lanternfield_demand.csv"), st.demandCSV()))
 	must(writeFile(filepath.Join(*dir, "TRUTH.md"), st.truthMarkdown()))
@@ -162,7 +164,9 @@ type station struct {
 
 func (s *station) index(d calendar.Date) int { return int(d - firstDay) }
 
-func simulateTemperature() *station {
+// simulateTemperature draws a station record from the generator with the
+// given PCG seed (stream 1).
+func simulateTemperature(seed uint64) *station {
 	r := rand.New(rand.NewPCG(seed, 1))
 	n := int(lastDay-firstDay) + 1
 	s := &station{
