@@ -998,6 +998,18 @@ func TestMismatchedInputsAreUsage(t *testing.T) {
 			t.Errorf("%v: exit %d, stderr %q", c.args, code, stderr)
 		}
 	}
+	// Listing the built-ins against that model describes the others and
+	// marks trend-2050 (it used to stop at trend-2050 with a usage error);
+	// naming it is still a usage error, after the description.
+	code, out, stderr := call(t, context.Background(), "scenarios", "--model", flat)
+	if code != 0 || !strings.Contains(out, "trend-2050 — ") || !strings.Contains(out, "• not for this model: the model has no trend") ||
+		!strings.Contains(out, "cold-spell-10d — ") {
+		t.Errorf("scenarios --model (no trend): exit %d\n%s%s", code, out, stderr)
+	}
+	code, out, stderr = call(t, context.Background(), "scenarios", "--model", flat, "trend-2050", "warm-1c")
+	if code != exitUsage || !strings.Contains(out, "warm-1c — ") || !strings.Contains(stderr, "does not suit this model") {
+		t.Errorf("scenarios --model (no trend) trend-2050 warm-1c: exit %d\n%s%s", code, out, stderr)
+	}
 }
 
 // TestSeasonUnderWayWithHolidays: a season under way with demand, its loads

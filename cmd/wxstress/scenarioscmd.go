@@ -73,20 +73,32 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 		}
 	}
 	describe := (*scenarios.Scenario).Describe
+	var unsuited error // the first named built-in that does not suit the model
 	if o.modelPath != "" {
 		m, _, err := readModel(o.modelPath)
 		if err != nil {
 			return err
 		}
 		year := sim.TargetYear(m, o.year, nil)
+		why := map[*scenarios.Scenario]string{}
 		for _, s := range list {
 			if _, err := s.Apply(m, year); errors.Is(err, scenarios.ErrUnsuited) {
-				return usagef("scenarios: %s", strings.TrimPrefix(err.Error(), scenarios.ErrUnsuited.Error()+": "))
+				// Described as not for this model; an error only when named.
+				msg := strings.TrimPrefix(err.Error(), scenarios.ErrUnsuited.Error()+": ")
+				_, why[s], _ = strings.Cut(msg, "does not suit this model: ")
+				if unsuited == nil && fs.NArg() > 0 {
+					unsuited = usagef("scenarios: %s", msg)
+				}
 			} else if err != nil {
 				return err
 			}
 		}
-		describe = func(s *scenarios.Scenario) []string { return s.DescribeFor(m, year) }
+		describe = func(s *scenarios.Scenario) []string {
+			if w, ok := why[s]; ok {
+				return []string{"not for this model: " + w}
+			}
+			return s.DescribeFor(m, year)
+		}
 	}
 	for i, s := range list {
 		head := s.Name
@@ -104,5 +116,5 @@ func runScenariosCmd(_ context.Context, args []string, stdout, _ io.Writer) erro
 			fmt.Fprintf(stdout, "%s\n", render.Wrap("  • "+line, "    "))
 		}
 	}
-	return nil
+	return unsuited
 }
