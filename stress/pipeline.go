@@ -355,6 +355,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		defer func() { withDesignBands(res.Design, set.Rows, res.Bands, job.Design) }()
 	}
 	res.Set = set
+	res.Warnings = append(res.Warnings, underWayWarnings(res.Model, set.Config, set.Base.Periods)...)
 	if len(job.Design) > 0 {
 		res.Design = designRows(set.Rows, job.Design)
 	}
@@ -381,6 +382,28 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		res.Warnings = append(res.Warnings, hedgeOverlap(job.Hedge, set.Base.Periods)...)
 	}
 	return res, nil
+}
+
+// underWayWarnings names the periods that were under way at the data end
+// of a run that does not carry their recorded days (a climate start, no
+// season under way): those days are simulated afresh, so the tails are
+// those of a whole season in the target year's climate, not of this one
+// as it stands. (A conditional start refuses such periods.)
+func underWayWarnings(m *model.File, cfg sim.Config, periods []sim.Period) []string {
+	if cfg.Observed != nil || cfg.Start == sim.StartConditional {
+		return nil
+	}
+	end := m.Data.LastDate
+	var out []string
+	for _, p := range periods {
+		if p.From <= end && end < p.To {
+			out = append(out, fmt.Sprintf("%s (%s to %s) began before the data end (%s): a climate start simulates "+
+				"its first %d days afresh, so these are the tails of a whole season in the %d climate, not of this season "+
+				"as it stands (--observed FILE carries the recorded days; --year %d gives the next season)",
+				p.Name, p.From, p.To, end, int(end-p.From)+1, cfg.Year, cfg.Year+1))
+		}
+	}
+	return out
 }
 
 // withHedgePeriods returns periods (the defaults when empty) with the

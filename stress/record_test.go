@@ -62,3 +62,28 @@ func TestHedgeOverlap(t *testing.T) {
 		t.Errorf("warnings %q", got)
 	}
 }
+
+// TestUnderWayWarnings: a period that began before the data end is named,
+// with its recorded days, when a climate start simulates them afresh (a
+// record ending on 31 December and the default heating season of the next
+// year, the usual case); periods wholly after the data end or wholly in the
+// record, a conditional start and a season under way draw nothing.
+func TestUnderWayWarnings(t *testing.T) {
+	m := &model.File{Data: model.Data{LastDate: calendar.FromYMD(2025, 12, 31)}}
+	ps := []sim.Period{
+		{Name: "year", From: calendar.FromYMD(2026, 1, 1), To: calendar.FromYMD(2026, 12, 31)},
+		{Name: "heating", From: calendar.FromYMD(2025, 11, 1), To: calendar.FromYMD(2026, 3, 31)},
+		{Name: "nov", From: calendar.FromYMD(2025, 11, 1), To: calendar.FromYMD(2025, 11, 30)},
+	}
+	got := underWayWarnings(m, sim.Config{Year: 2026}, ps)
+	if len(got) != 1 || !strings.HasPrefix(got[0], "heating (2025-11-01 to 2026-03-31) began before the data end (2025-12-31): "+
+		"a climate start simulates its first 61 days afresh") || !strings.Contains(got[0], "--year 2027 gives the next season") {
+		t.Errorf("climate start: %q", got)
+	}
+	if got := underWayWarnings(m, sim.Config{Year: 2026, Start: sim.StartConditional}, ps); got != nil {
+		t.Errorf("conditional start: %q", got)
+	}
+	if got := underWayWarnings(m, sim.Config{Year: 2026, Observed: &sim.Observed{}}, ps); got != nil {
+		t.Errorf("season under way: %q", got)
+	}
+}
