@@ -260,7 +260,7 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		mean, sd := af.filtered.SlowState(prm)
 		f.Slow = &model.Slow{Phi: prm.PhiSlow, SD: prm.SDSlow, EFoldingDays: prm.EFolding(), State: mean, StateSD: sd,
 			PhiSE: finiteOr0(af.chosen.SE[p]), SDSE: finiteOr0(af.chosen.SE[p+1])}
-		if w := shortSlowAdvice(f.Slow, len(s.Temps), f.Data.Units, true); w != "" && d.SlowAdvice == "" {
+		if w := shortSlowAdvice(f.Slow, len(s.Temps), f.Data.Units, true, d.SlowChoice.SpreadTooNarrow); w != "" && d.SlowAdvice == "" {
 			d.SlowAdvice = w
 		}
 	}
@@ -683,27 +683,51 @@ func ShortSlowAdvice(m *model.File, conditional bool) string {
 	if m.Slow == nil {
 		return ""
 	}
-	return shortSlowAdvice(m.Slow, int(m.Data.LastDate-m.Data.FirstDate)+1, m.Data.Units, conditional)
+	var narrow []int
+	if m.Diagnostics != nil && m.Diagnostics.SlowChoice != nil {
+		narrow = m.Diagnostics.SlowChoice.SpreadTooNarrow
+	}
+	return shortSlowAdvice(m.Slow, int(m.Data.LastDate-m.Data.FirstDate)+1, m.Data.Units, conditional, narrow)
 }
 
 // shortSlowAdvice cautions about a slow part fitted to a record too short to
 // pin it down: its spread, and its state at the data end that a
 // conditional start carries forward, rest on a few of its own time spans.
-func shortSlowAdvice(sl *model.Slow, days int, units string, conditional bool) string {
+func shortSlowAdvice(sl *model.Slow, days int, units string, conditional bool, narrow []int) string {
 	years := float64(days) / calendar.DaysPerYear
 	spans := float64(days) / sl.EFoldingDays
 	if years >= SlowShortYears && spans >= SlowShortSpans {
 		return ""
 	}
-	if !conditional {
-		return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd "+
-			"(%.2f ± %.2f °%s), and with it the spread of seasons and years, is poorly determined; compare with --slow none",
-			years, spans, sl.EFoldingDays, sl.SD, sl.SDSE, units)
+	w := fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd (%.2f ± %.2f °%s)",
+		years, spans, sl.EFoldingDays, sl.SD, sl.SDSE, units)
+	if conditional {
+		// What the state does to the coming months: its expected effect on
+		// the mean of the next 90 days, state·mean(φ^t, t = 1..90).
+		phi, g := sl.Phi, 0.0
+		for t := 1; t <= 90; t++ {
+			g += math.Pow(phi, float64(t))
+		}
+		w += fmt.Sprintf(" and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward "+
+			"(%+.1f °%s on the mean of the next 90 days; a climate start does not use it), are poorly determined",
+			sl.State, sl.StateSD, units, sl.State*g/90, units)
+	} else {
+		w += ", and with it the spread of seasons and years, is poorly determined"
 	}
-	return fmt.Sprintf("the slow part rests on %.1f years, %.0f of its e-folding times (%.0f days): its sd (%.2f ± %.2f °%s) "+
-		"and its state at the data end (%+.2f ± %.2f °%s), which a conditional start carries forward, are poorly "+
-		"determined; compare with --slow none (a climate start, --start climate, does not use that state)", years, spans, sl.EFoldingDays,
-		sl.SD, sl.SDSE, units, sl.State, sl.StateSD, units)
+	if len(narrow) > 0 {
+		// The fast AR alone is no remedy: it fails the record's own spread.
+		days := fmt.Sprintf("%d-day spread lies", narrow[0])
+		if len(narrow) > 1 {
+			days = fmt.Sprintf("%d- and %d-day spreads lie", narrow[0], narrow[len(narrow)-1])
+			if len(narrow) > 2 {
+				days = fmt.Sprintf("spreads of %s days lie", joinInts(narrow))
+			}
+		}
+		return w + fmt.Sprintf("; the fast AR alone (--slow none) is no way out: without the slow part the record's %s "+
+			"above the model's band, so seasonal and annual tails are uncertain either way; read them with their "+
+			"parameter band (--uncertainty N with --history)", days)
+	}
+	return w + "; compare with --slow none"
 }
 
 // minMaxObserved returns the smallest and largest values of x, missing days

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -297,15 +298,33 @@ func TestShortSlowAdvice(t *testing.T) {
 		wants bool
 	}{{1461, 155, true}, {25933, 71, false}, {5479, 300, true}, {5479, 100, false}} {
 		sl := &model.Slow{EFoldingDays: c.tau, SD: 1.5, SDSE: 0.5, State: 3.1, StateSD: 0.9}
-		got := shortSlowAdvice(sl, c.days, "C", true)
+		got := shortSlowAdvice(sl, c.days, "C", true, nil)
 		if (got != "") != c.wants {
 			t.Errorf("%d days, e-folding %v days: advice %q", c.days, c.tau, got)
 		}
 		// A climate run's wording leaves out the state at the data end,
 		// which it does not use.
-		if clim := shortSlowAdvice(sl, c.days, "C", false); (clim != "") != c.wants || strings.Contains(clim, "state") {
+		if clim := shortSlowAdvice(sl, c.days, "C", false, nil); (clim != "") != c.wants || strings.Contains(clim, "state") {
 			t.Errorf("%d days, e-folding %v days: climate-start advice %q", c.days, c.tau, clim)
 		}
+	}
+	// The state's expected effect on the next 90 days' mean: the geometric
+	// sum state·φ(1 − φ⁹⁰)/(90(1 − φ)) (+2.4 °C for New York 2012–2015's
+	// +3.14 °C with an e-folding time of 155 days). Where the record's
+	// spread fails the fast-only band (New York's 151- and 365-day), the
+	// advice does not send the reader to --slow none.
+	phi := math.Exp(-1.0 / 155)
+	sl := &model.Slow{Phi: phi, EFoldingDays: 155, SD: 1.53, SDSE: 0.47, State: 3.14, StateSD: 0.88}
+	effect := 3.14 * phi * (1 - math.Pow(phi, 90)) / (90 * (1 - phi))
+	got := shortSlowAdvice(sl, 1461, "C", true, []int{151, 365})
+	if want := fmt.Sprintf("(%+.1f °C on the mean of the next 90 days;", effect); !strings.Contains(got, want) || want != "(+2.4 °C on the mean of the next 90 days;" {
+		t.Errorf("advice %q lacks %q", got, want)
+	}
+	if strings.Contains(got, "compare with --slow none") || !strings.Contains(got, "record's 151- and 365-day spreads lie above the model's band") {
+		t.Errorf("advice with the fast-only spread failing: %q", got)
+	}
+	if got := shortSlowAdvice(sl, 1461, "C", false, nil); !strings.HasSuffix(got, "compare with --slow none") {
+		t.Errorf("advice with the fast-only spread holding: %q", got)
 	}
 }
 
