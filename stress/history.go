@@ -56,6 +56,15 @@ type HistoryRow struct {
 	SDBand [2]float64
 	// SDVerdict is "inside", "model too narrow" or "model too wide".
 	SDVerdict string
+	// MeanBand is the 5–95 % range of the mean of len(Values) seasons
+	// drawn at random from the simulated years: a record mean outside it
+	// is evidence that the model's level is wrong for this index (the
+	// design-day temperature of a model whose coldest days are too mild).
+	MeanBand [2]float64
+	// MeanVerdict is "inside", "model too mild" (the record's seasons are
+	// on average worse, on the index's adverse side, than the band allows)
+	// or "model too severe".
+	MeanVerdict string
 }
 
 // HistoricalSeasons is the record's own seasons beside the model.
@@ -173,18 +182,33 @@ func summarizeHistory(row *HistoryRow, sims []float64, high bool, seed uint64) {
 		row.Worst = append(row.Worst, WorstSeason{Year: row.Years[i], Value: v[i], Prob: p, ProbSE: math.Sqrt(p * (1 - p) / n)})
 	}
 
-	// The sampling range of the sd of len(v) seasons under the model.
+	// The sampling ranges of the mean and sd of len(v) seasons under the
+	// model.
 	r := rand.New(rand.NewPCG(seed, 0x4157))
-	sds := make([]float64, sdBandDraws)
+	means, sds := make([]float64, sdBandDraws), make([]float64, sdBandDraws)
 	draw := make([]float64, len(v))
 	for b := range sds {
 		for j := range draw {
 			draw[j] = sims[r.IntN(len(sims))]
 		}
-		sds[b] = stat.StdDev(draw, nil)
+		means[b], sds[b] = stat.MeanStdDev(draw, nil)
 	}
+	slices.Sort(means)
 	slices.Sort(sds)
+	row.MeanBand = [2]float64{stat.Quantile(0.05, stat.LinInterp, means, nil), stat.Quantile(0.95, stat.LinInterp, means, nil)}
 	row.SDBand = [2]float64{stat.Quantile(0.05, stat.LinInterp, sds, nil), stat.Quantile(0.95, stat.LinInterp, sds, nil)}
+	worse, better := row.Mean > row.MeanBand[1], row.Mean < row.MeanBand[0]
+	if !high {
+		worse, better = better, worse
+	}
+	switch {
+	case worse:
+		row.MeanVerdict = "model too mild"
+	case better:
+		row.MeanVerdict = "model too severe"
+	default:
+		row.MeanVerdict = "inside"
+	}
 	switch {
 	case row.SD > row.SDBand[1]:
 		row.SDVerdict = "model too narrow"

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"math"
+	"math/rand/v2"
 	"strconv"
 	"testing"
 	"time"
@@ -176,6 +177,48 @@ func TestHistoryAgainstClimateRun(t *testing.T) {
 					t.Errorf("conditional heating HDD sd %.1f not below the climate run's %.1f", row.Tail.SD, c.Tail.SD)
 				}
 			}
+		}
+	}
+}
+
+// TestHistoryMeanBand checks the level check against the central limit
+// theorem: the mean of n seasons drawn from simulated years with sd s has
+// sd s/√n, so its 5–95 % band is about ±1.645·s/√n around the model mean
+// (30 seasons from 200 000 standard normal years: ±0.300). A record whose
+// seasons average below the band is "model too mild" for a low-adverse
+// index (the coldest day) and "model too severe" for a high-adverse one.
+func TestHistoryMeanBand(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	sims := make([]float64, 200000)
+	for i := range sims {
+		sims[i] = r.NormFloat64()
+	}
+	season := func(mean float64) HistoryRow {
+		row := HistoryRow{Values: make([]float64, 30)}
+		for i := range row.Values {
+			row.Values[i] = mean + r.NormFloat64()
+			row.Years = append(row.Years, 1990+i)
+		}
+		return row
+	}
+	row := season(0)
+	summarizeHistory(&row, sims, true, 1)
+	// The band's ends come from 2 000 resampled means: each has a Monte
+	// Carlo sd of about √(0.05·0.95/2000)/φ(1.645)·(1/√30) ≈ 0.0086, so
+	// 0.035 is four of them.
+	half := 1.645 / math.Sqrt(30)
+	if math.Abs(row.MeanBand[0]+half) > 0.035 || math.Abs(row.MeanBand[1]-half) > 0.035 {
+		t.Errorf("mean band %v, want about ±%.3f", row.MeanBand, half)
+	}
+	for _, c := range []struct {
+		shift float64
+		high  bool
+		want  string
+	}{{-1, false, "model too mild"}, {-1, true, "model too severe"}, {1, true, "model too mild"}, {1, false, "model too severe"}} {
+		row := season(c.shift)
+		summarizeHistory(&row, sims, c.high, 1)
+		if row.MeanVerdict != c.want {
+			t.Errorf("record mean %.2f, band %v, high adverse %v: %q, want %q", row.Mean, row.MeanBand, c.high, row.MeanVerdict, c.want)
 		}
 	}
 }

@@ -30,8 +30,8 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 	if h.ClimateRun {
 		title += "; the model side from a climate-start run, as the record's seasons are draws from the climate"
 	}
-	header = []string{"index", "period", "unit", "seasons", "record mean", "record sd", "record P5 / P95", "worst (year)",
-		"model mean", "model sd", "sd band", "record sd vs band"}
+	header = []string{"index", "period", "unit", "seasons", "record mean", "model mean", "mean band", "record mean vs band",
+		"record sd", "model sd", "sd band", "record sd vs band", "record P5 / P95", "worst (year)"}
 	for _, r := range h.Rows {
 		if !historyShown(r) {
 			continue
@@ -44,12 +44,14 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		// so that a verdict is visible in the numbers beside it.
 		d := sdDecimals(min(r.SD, r.ModelSD, r.SDBand[0]))
 		rows = append(rows, []string{r.Index.Info().Name, r.Period, r.Index.Info().Unit(model.Units(units), ""), fmt.Sprint(len(r.Values)),
-			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.SD, d), numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst,
-			numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.ModelSD, d),
-			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict})
+			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.MeanBand[0], 1) + " to " + numfmt.Fixed(r.MeanBand[1], 1),
+			r.MeanVerdict, numfmt.Fixed(r.SD, d), numfmt.Fixed(r.ModelSD, d),
+			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict,
+			numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst})
 	}
-	notes = append(notes, "sd band: 5–95 % of the sd of that many seasons drawn from the simulated years; a record sd outside it "+
-		"says the model's spread is wrong for that index.")
+	notes = append(notes, "mean band and sd band: 5–95 % of the mean and of the sd of that many seasons drawn from the simulated "+
+		"years; a record mean outside its band says the model's level is wrong for that index (too mild: the record's "+
+		"seasons are worse on average), a record sd outside its band that the model's spread is.")
 	for _, r := range h.Rows {
 		if !historyShown(r) || (r.Index != sim.HDD && r.Index != sim.CDD && r.Index != sim.Coldest) {
 			continue
@@ -122,6 +124,8 @@ type jsonHistoryRow struct {
 	P95       float64           `json:"p95"`
 	ModelMean float64           `json:"model_mean"`
 	ModelSD   float64           `json:"model_sd"`
+	MeanBand  [2]float64        `json:"mean_band_90"`
+	MeanVerd  string            `json:"mean_verdict"`
 	SDBand    [2]float64        `json:"sd_band_90"`
 	Verdict   string            `json:"sd_verdict"`
 	Worst     []jsonWorstSeason `json:"worst"`
@@ -147,7 +151,8 @@ func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
 	j := &jsonHistory{TargetYear: h.TargetYear, ShiftPerYear: h.ShiftPerYear, ClimateRun: h.ClimateRun, Seasons: map[string][]jsonSeason{}}
 	for _, r := range h.Rows {
 		row := jsonHistoryRow{Index: r.Index.Info().Key, Period: r.Period, Seasons: len(r.Values), Mean: r.Mean, SD: r.SD,
-			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, SDBand: r.SDBand, Verdict: r.SDVerdict}
+			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, MeanBand: r.MeanBand, MeanVerd: r.MeanVerdict, SDBand: r.SDBand,
+			Verdict: r.SDVerdict}
 		for _, w := range r.Worst {
 			row.Worst = append(row.Worst, jsonWorstSeason{w.Year, w.Value, w.Prob, w.ProbSE})
 		}

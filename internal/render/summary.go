@@ -254,8 +254,9 @@ func rowSE(t sim.Tail) float64 {
 // summaryWarnings collects what should make a reader doubt the figures:
 // the run's own cautions (the manifest's: a far target year, growth run
 // backwards, another station's demand model, the model's slow-part
-// caution), Monte Carlo error (in one line), the record's spread outside the model's
-// band, return levels outside the GEV interval, and the fit's spread check.
+// caution), Monte Carlo error (in one line), the record's mean or spread
+// outside the model's band, return levels outside the GEV interval, and the
+// fit's spread check.
 func summaryWarnings(r *SimReport, m *model.File) []string {
 	warns := slices.Clone(r.Manifest.Warnings)
 	if w := mcSummary(r.Rows); w != "" {
@@ -275,6 +276,48 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		}
 		if len(outside) > 0 {
 			warns = append(warns, "the record's sd lies outside the model's band for "+strings.Join(outside, "; "))
+		}
+		var level []string
+		for _, row := range h.Rows {
+			if historyShown(row) && row.MeanVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
+				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
+				level = append(level, fmt.Sprintf("%s, %s %s%s%s against %s to %s%s%s over %d seasons (%s)", row.Index.Info().Name,
+					row.Period, numfmt.Fixed(row.Mean, 1), Glue, unit, numfmt.Fixed(row.MeanBand[0], 1), numfmt.Fixed(row.MeanBand[1], 1),
+					Glue, unit, len(row.Values), row.MeanVerdict))
+			}
+		}
+		if len(level) > 0 {
+			warns = append(warns, "the record's mean lies outside the model's band for "+strings.Join(level, "; ")+
+				": the model's figures for that index are off in level")
+		}
+		// A record season beyond every simulated year. Under the model the
+		// worst of n seasons lies beyond all m paths with probability
+		// n/(n + m) (exchangeability), so it is said only where that is
+		// below 5 %: m ≥ 19n.
+		var beyond []string
+		chance := 0.0
+		for _, row := range h.Rows {
+			n := len(row.Values)
+			if !historyShown(row) || (row.Index != sim.HDD && row.Index != sim.CDD && row.Index != sim.Coldest) || h.Paths < 19*n {
+				continue
+			}
+			unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
+			for _, w := range row.Worst {
+				if w.Prob <= 0 {
+					beyond = append(beyond, fmt.Sprintf("%s, %s %d (%s%s%s)", row.Index.Info().Name, row.Period, w.Year,
+						numfmt.Fixed(w.Value, 1), Glue, unit))
+					chance = max(chance, float64(n)/float64(n+h.Paths))
+				}
+			}
+		}
+		if len(beyond) > 3 {
+			beyond = append(beyond[:3], fmt.Sprintf("%d more", len(beyond)-3))
+		}
+		if len(beyond) > 0 {
+			warns = append(warns, fmt.Sprintf("the record holds seasons beyond every one of the %s simulated years (each "+
+				"moved to the target year's trend level): %s; under the model that happens to a record this long %s of the "+
+				"time: a very rare season, or a model too narrow on that side", numfmt.Number(float64(h.Paths)),
+				strings.Join(beyond, "; "), numfmt.Percent(chance)))
 		}
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)

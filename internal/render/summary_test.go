@@ -1,9 +1,11 @@
 package render
 
 import (
+	"strings"
 	"testing"
 
 	"wxstress/sim"
+	"wxstress/stress"
 )
 
 // TestScaleUnit checks the units of large values: SI prefixes for joules
@@ -74,5 +76,34 @@ func TestCapacityWords(t *testing.T) {
 		if got := capacityWords(in); got != want {
 			t.Errorf("%s: %q, want %q", in, got, want)
 		}
+	}
+}
+
+// TestRecordWarnings: the summary warns of a record mean outside the
+// model's band (Seattle 2012–2015's coldest days, 2.4 °C colder on average
+// than the model's band allows) and of record seasons beyond every
+// simulated year, the latter only when the chance n/(n + m) that the worst
+// of n seasons lies beyond all m paths under the model is below 5 %.
+func TestRecordWarnings(t *testing.T) {
+	coldest := stress.HistoryRow{Period: "year", Index: sim.Coldest, Values: []float64{-1.9, -3.5, -3.8, -0.2}, P95: -0.5,
+		Mean: -2.35, ModelMean: -0.6, MeanBand: [2]float64{-2.0, 0.6}, MeanVerdict: "model too mild", SDVerdict: "inside"}
+	cdd := stress.HistoryRow{Period: "year", Index: sim.CDD, Values: make([]float64, 71), P95: 400, ModelMean: 309,
+		MeanVerdict: "inside", SDVerdict: "inside", Worst: []stress.WorstSeason{{Year: 2019, Value: 621.6}}}
+	r := &SimReport{Manifest: Manifest{Units: "C"}, History: &stress.HistoricalSeasons{Paths: 10000,
+		Rows: []stress.HistoryRow{coldest, cdd}}}
+	got := strings.Join(summaryWarnings(r, nil), "\n")
+	for _, want := range []string{
+		"the record's mean lies outside the model's band for coldest day, year -2.4" + Glue + "°C against -2.0 to 0.6" + Glue + "°C over 4 seasons (model too mild)",
+		"beyond every one of the 10,000 simulated years",
+		"CDD, year 2019 (621.6" + Glue + "°C·day)",
+		"this long 0.70% of the time", // 71/(71 + 10 000)
+	} {
+		if !strings.Contains(got, want) {
+			t.Errorf("warnings lack %q:\n%s", want, got)
+		}
+	}
+	r.History.Paths = 1000 // 71/1071 = 6.6 %: by chance too often to say
+	if got := strings.Join(summaryWarnings(r, nil), "\n"); strings.Contains(got, "beyond every") {
+		t.Errorf("warned of a season beyond 1 000 paths in a 71-season record:\n%s", got)
 	}
 }
