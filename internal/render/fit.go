@@ -19,6 +19,18 @@ const Caution = "These are statistical scenarios, not forecasts. Capacity, relia
 // FitSummary writes the readable summary of a fitted model.
 func FitSummary(w io.Writer, f *model.File) error { return FitSummaryWith(w, f, nil) }
 
+// AnnualSEText is the trend slope's standard error from the regression on
+// annual means, as ", 0.828 from 4 annual means (2 degrees of freedom)" ("" with
+// fewer than three complete years): on a few years its degrees of freedom
+// say how little it rests on.
+func AnnualSEText(est model.TrendEstimate) string {
+	if est.Years < 3 {
+		return ""
+	}
+	df := strings.Replace(Plural(est.Years-2, "degree"), " ", Glue, 1) // the number kept with its noun when wrapped
+	return fmt.Sprintf(", %.3f from %d annual means (%s of freedom)", est.SEAnnual, est.Years, df)
+}
+
 // FitSummaryWith is FitSummary with the GEV check of the model's extreme
 // days (from a short simulation of the fitted model) after the diagnostics.
 func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) error {
@@ -34,11 +46,8 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 	e.printf("  level a = %.3f %s; R² = %.4f\n", f.Trend.Intercept, u, f.Seasonal.R2)
 	est := f.Trend.Estimate
 	e.printf("  trend: %s; fitted slope %+.3f %s/decade\n", f.Trend.Kind, est.PerDecade, u)
-	e.printf("    s.e. %.3f OLS, %.3f allowing for day-to-day autocorrelation", est.SEOLS, est.SEAdjusted)
-	if est.Years >= 3 {
-		e.printf(", %.3f from %d annual means", est.SEAnnual, est.Years)
-	}
-	e.printf("\n")
+	e.printf("%s\n", Wrap(fmt.Sprintf("    s.e. %.3f OLS, %.3f allowing for day-to-day autocorrelation%s", est.SEOLS,
+		est.SEAdjusted, AnnualSEText(est)), "      "))
 	e.printf("%s\n", Wrap("  "+f.Trend.Rule, "    "))
 	rows := [][]string{}
 	for _, h := range f.Seasonal.Harmonics {

@@ -409,12 +409,8 @@ func paramRows(m *model.File) [][2]string {
 	}
 	est := m.Trend.Estimate
 	if m.Trend.Kind == "linear" {
-		annual := ""
-		if est.Years >= 3 {
-			annual = fmt.Sprintf(", %.3f from %d annual means", est.SEAnnual, est.Years)
-		}
 		rows = append(rows, [2]string{"trend b", fmt.Sprintf("%+.3f %s/decade (s.e. %.3f allowing for day-to-day autocorrelation%s)",
-			10*m.Trend.SlopePerYear, u, est.SEAdjusted, annual)})
+			10*m.Trend.SlopePerYear, u, est.SEAdjusted, render.AnnualSEText(est))})
 	} else {
 		rows = append(rows, [2]string{"trend b", fmt.Sprintf("none (fitted slope %+.3f %s/decade, s.e. %.3f, not used)",
 			est.PerDecade, u, est.SEAdjusted)})
