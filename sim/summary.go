@@ -29,6 +29,31 @@ type Row struct {
 	Dates *DateSpread
 }
 
+// Season tells what kind of period a run's period is, from its own rows: cold
+// (named heating, or its mean CDD under a twentieth of its mean HDD: a
+// winter month) or warm (named cooling, or the reverse: July). A period
+// where both matter (the year, a shoulder season) is neither. Heating
+// figures (HDD, the coldest day, the design day) of a warm period and
+// cooling figures of a cold one are small remainders nobody plans on.
+func Season(rows []Row, period string) (cold, warm bool) {
+	switch period {
+	case "heating":
+		return true, false
+	case "cooling":
+		return false, true
+	}
+	hdd, cdd := math.NaN(), math.NaN()
+	for _, r := range rows {
+		if r.Period == period && r.Index == HDD {
+			hdd = r.Tail.Mean
+		}
+		if r.Period == period && r.Index == CDD {
+			cdd = r.Tail.Mean
+		}
+	}
+	return cdd < hdd/20, hdd < cdd/20 // false when either is missing (NaN)
+}
+
 // DateSpread is the distribution of a date across paths: the median date
 // and the share of paths in each calendar month.
 type DateSpread struct {

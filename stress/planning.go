@@ -98,6 +98,9 @@ func designRows(rows []sim.Row, standards []float64) []DesignRow {
 	}
 	var out []DesignRow
 	for _, p := range periods {
+		if _, warm := sim.Season(rows, p); warm {
+			continue // the coldest day of a summer is no design day
+		}
 		for _, T := range standards {
 			d := DesignRow{Period: p, T: T, ColdestBand: Band{math.NaN(), math.NaN()}, PeakBand: Band{math.NaN(), math.NaN()}}
 			d.Coldest, d.ColdestSE = level(find(sim.Coldest, p), T)

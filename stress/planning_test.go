@@ -294,3 +294,26 @@ func TestCapacityErrorUnbounded(t *testing.T) {
 		t.Errorf("peak:1-in-2: error %v, want a finite one", se)
 	}
 }
+
+// TestDesignRowsSkipWarmPeriods: the design day is the coldest day at a
+// planning standard; a warm period (the cooling season, or July by its own
+// degree days) has none worth the name, the year and the heating season do.
+func TestDesignRowsSkipWarmPeriods(t *testing.T) {
+	tail := sim.Summarize([]float64{-9, -7, -5, -3, -1, 1, 3, 5, 7, 9}, false, nil)
+	mean := func(m float64) sim.Tail { t := tail; t.Mean = m; return t }
+	var rows []sim.Row
+	for _, p := range []struct {
+		name     string
+		hdd, cdd float64
+	}{{"year", 3026, 309}, {"heating", 2150, 0}, {"cooling", 220, 300}, {"jul", 4.8, 230}} {
+		rows = append(rows, sim.Row{Index: sim.HDD, Period: p.name, Tail: mean(p.hdd)}, sim.Row{Index: sim.CDD, Period: p.name, Tail: mean(p.cdd)},
+			sim.Row{Index: sim.Coldest, Period: p.name, Tail: tail})
+	}
+	var got []string
+	for _, d := range designRows(rows, []float64{20}) {
+		got = append(got, d.Period)
+	}
+	if !slices.Equal(got, []string{"year", "heating"}) {
+		t.Errorf("design rows for %v, want year and heating", got)
+	}
+}

@@ -19,18 +19,21 @@ import (
 var summaryIndices = []sim.Index{sim.HDD, sim.CDD, sim.Coldest, sim.Energy, sim.PeakDemand}
 
 // occurs reports whether an index means something in its period for the
-// summary: not rare, and a heating figure (HDD, the coldest day) not for
-// the cooling season nor a cooling figure (CDD) for the heating season,
-// where they are small remainders nobody plans on (a warm October day's
-// CDD); --detail shows them all.
-func occurs(r sim.Row) bool {
-	switch {
-	case rare(r.Tail):
+// summary: not rare, and a heating figure (HDD, the coldest day) not for a
+// warm period (the cooling season, July) nor a cooling figure (CDD) for a
+// cold one (the heating season, January), where they are small remainders
+// nobody plans on (a warm October day's CDD; sim.Season); rows are the
+// run's rows, which tell the period's kind. --detail shows them all.
+func occurs(r sim.Row, rows []sim.Row) bool {
+	if rare(r.Tail) {
 		return false
-	case r.Period == "cooling":
-		return r.Index != sim.Coldest && r.Index != sim.HDD
-	case r.Period == "heating":
-		return r.Index != sim.CDD
+	}
+	cold, warm := sim.Season(rows, r.Period)
+	switch r.Index {
+	case sim.HDD, sim.Coldest:
+		return !warm
+	case sim.CDD:
+		return !cold
 	}
 	return true
 }
@@ -111,7 +114,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	bandCol := len(r.Bands) > 0
 	for _, x := range summaryIndices {
 		for k, row := range r.Rows {
-			if row.Index != x || !occurs(row) {
+			if row.Index != x || !occurs(row, r.Rows) {
 				continue
 			}
 			t := row.Tail
@@ -138,7 +141,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	}
 	for _, row := range r.Rows {
 		for _, x := range row.Tail.Exceedances {
-			if !occurs(row) && x.Prob == 0 {
+			if !occurs(row, r.Rows) && x.Prob == 0 {
 				continue // "the coldest day of summer below −15: 0 ± 0" says nothing
 			}
 			sm.Notes = append(sm.Notes, ExceedLine(row, x))
@@ -229,7 +232,7 @@ func scenarioKeys(rows []sim.Row) []int {
 		}
 		hasHeating := slices.ContainsFunc(rows, func(q sim.Row) bool { return q.Index == x && q.Period == "heating" })
 		for k, row := range rows {
-			if row.Index == x && occurs(row) && (row.Period == "heating" || !hasHeating) {
+			if row.Index == x && occurs(row, rows) && (row.Period == "heating" || !hasHeating) {
 				keys = append(keys, k)
 				break
 			}
@@ -363,7 +366,7 @@ func SimSummary(w io.Writer, r *SimReport, m *model.File) error {
 func mcSummary(rows []sim.Row) string {
 	var shown []sim.Row
 	for _, row := range rows {
-		if slices.Contains(summaryIndices, row.Index) && occurs(row) {
+		if slices.Contains(summaryIndices, row.Index) && occurs(row, rows) {
 			shown = append(shown, row)
 		}
 	}

@@ -36,10 +36,18 @@ func TestScaleUnit(t *testing.T) {
 
 // TestOccurs checks which rows the summary keeps: heating figures not for
 // the cooling season, cooling figures not for the heating season, nothing
-// that is zero nineteen years in twenty, everything else.
+// that is zero nineteen years in twenty, everything else; and, by their own
+// degree days, heating figures not for July (HDD 4.8 against CDD 230, New
+// York 2016) nor cooling figures for January, both kinds for the year.
 func TestOccurs(t *testing.T) {
 	some := sim.Summarize([]float64{10, 20, 30, 40, 50, 60, 70, 80, 90, 100}, true, nil)
 	zero := sim.Summarize(make([]float64, 40), true, nil)
+	withMean := func(m float64) sim.Tail { t := some; t.Mean = m; return t }
+	rows := []sim.Row{
+		{Index: sim.HDD, Period: "jul", Tail: withMean(4.8)}, {Index: sim.CDD, Period: "jul", Tail: withMean(230)},
+		{Index: sim.HDD, Period: "jan", Tail: withMean(560)}, {Index: sim.CDD, Period: "jan", Tail: withMean(3)},
+		{Index: sim.HDD, Period: "year", Tail: withMean(3026)}, {Index: sim.CDD, Period: "year", Tail: withMean(309)},
+	}
 	for _, c := range []struct {
 		x      sim.Index
 		period string
@@ -55,8 +63,15 @@ func TestOccurs(t *testing.T) {
 		{sim.CDD, "dec", some, true},
 		{sim.CDD, "dec", zero, false},
 		{sim.Energy, "cooling", some, true},
+		{sim.HDD, "jul", some, false},
+		{sim.Coldest, "jul", some, false},
+		{sim.CDD, "jul", some, true},
+		{sim.CDD, "jan", some, false},
+		{sim.Coldest, "jan", some, true},
+		{sim.CDD, "year", some, true},
+		{sim.HDD, "year", some, true},
 	} {
-		if got := occurs(sim.Row{Index: c.x, Period: c.period, Tail: c.tail}); got != c.want {
+		if got := occurs(sim.Row{Index: c.x, Period: c.period, Tail: c.tail}, rows); got != c.want {
 			t.Errorf("%v, %s: occurs %v, want %v", c.x.Info().Key, c.period, got, c.want)
 		}
 	}

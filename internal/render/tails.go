@@ -740,8 +740,8 @@ func monteCarloFlags(group []sim.Row) []mcFlag {
 	var out []mcFlag
 	for _, r := range group {
 		t := r.Tail
-		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || rare(t) {
-			continue // no spread, a date, or an index that hardly occurs in the period
+		if len(t.ReturnLevelSE) == 0 || !(t.SD > 0) || r.Index == sim.PeakDay || !occurs(r, group) {
+			continue // no spread, a date, or an index that hardly occurs or means nothing in the period (July's HDD)
 		}
 		f := mcFlag{row: r, target: mcTolerance * t.SD}
 		for _, c := range []struct {
