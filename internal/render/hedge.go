@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"wxstress/hedge"
 	"wxstress/internal/numfmt"
@@ -50,6 +51,25 @@ func HedgeTables(h *hedge.Result, f *hedge.File) (contracts, position [][]string
 	return contracts, position, contractHead, positionHead
 }
 
+// BurnNote cautions about burn prices from fewer than 10 seasons: the mean
+// of n payouts has a standard error of about sd/√n (the model's payout sd
+// stands in for the record's). Empty when every burn price rests on 10
+// seasons or more.
+func BurnNote(h *hedge.Result) string {
+	var parts []string
+	for _, c := range h.Contracts {
+		if c.Seasons > 0 && c.Seasons < 10 {
+			parts = append(parts, fmt.Sprintf("%s from %d, ± %s", c.Contract.Name, c.Seasons,
+				money(c.SD/math.Sqrt(float64(c.Seasons)))))
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return "Burn prices from fewer than 10 seasons are a rough guide (" + strings.Join(parts, "; ") +
+		": the standard error sd/√n with the model's payout sd)."
+}
+
 // writeHedge writes the hedge evaluation to the terminal.
 func writeHedge(e *errWriter, r *SimReport) {
 	if r.Hedge == nil {
@@ -61,6 +81,9 @@ func writeHedge(e *errWriter, r *SimReport) {
 		e.table(ch, contracts)
 		e.printf("  Payouts are for one contract bought; the burn price is the mean payout over the record's seasons " +
 			"moved to the target year's trend level.\n")
+		if n := BurnNote(r.Hedge); n != "" {
+			e.printf("  %s\n", n)
+		}
 		if r.Manifest.Start == "conditional" {
 			e.printf("  This run starts from the data end (and the season so far, when observed), so its payouts are " +
 				"conditional on today's state; the burn price, from whole past seasons, is not.\n")

@@ -47,7 +47,14 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.MeanBand[0], 1) + " to " + numfmt.Fixed(r.MeanBand[1], 1),
 			r.MeanVerdict, numfmt.Fixed(r.SD, d), numfmt.Fixed(r.ModelSD, d),
 			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict,
-			numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1), worst})
+			recordP5P95(r), worst})
+	}
+	for _, r := range h.Rows {
+		if historyShown(r) && len(r.Values) < minQuantileSeasons {
+			notes = append(notes, fmt.Sprintf("record P5 / P95: not shown from fewer than %d seasons (a P5 of %d seasons is "+
+				"its lowest by another name).", minQuantileSeasons, len(r.Values)))
+			break
+		}
 	}
 	notes = append(notes, "mean band and sd band: 5–95 % of the mean and of the sd of that many seasons drawn from the simulated "+
 		"years; a record mean outside its band says the model's level is wrong for that index (too mild: the record's "+
@@ -83,6 +90,20 @@ func writeHistory(e *errWriter, h *stress.HistoricalSeasons, units string) {
 	}
 }
 
+// recordP5P95 is the record's P5 / P95, or "—" from fewer than
+// minQuantileSeasons seasons, where they are the extremes by another name.
+func recordP5P95(r stress.HistoryRow) string {
+	if len(r.Values) < minQuantileSeasons {
+		return "—"
+	}
+	return numfmt.Fixed(r.P5, 1) + " / " + numfmt.Fixed(r.P95, 1)
+}
+
+// minQuantileSeasons is the fewest seasons whose P5 and P95 the history
+// table shows: below 10, the 5 % and 95 % points fall within a season of
+// the ends (common practice).
+const minQuantileSeasons = 10
+
 // sdDecimals is the decimals that show the smallest of a set of sds (lo)
 // to two significant digits: at least one, at most four.
 func sdDecimals(lo float64) int {
@@ -99,7 +120,7 @@ func oneIn(p float64) string {
 	case p <= 0:
 		return "more than the paths run"
 	case p >= 0.5:
-		return "2 or less: not rare"
+		return "not rare: most simulated years are at least as bad"
 	}
 	return numfmt.Number(float64(int(1/p + 0.5)))
 }

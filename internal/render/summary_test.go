@@ -4,6 +4,7 @@ import (
 	"strings"
 	"testing"
 
+	"wxstress/hedge"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -120,5 +121,45 @@ func TestRecordWarnings(t *testing.T) {
 	r.History.Paths = 1000 // 71/1071 = 6.6 %: by chance too often to say
 	if got := strings.Join(summaryWarnings(r, nil), "\n"); strings.Contains(got, "beyond every") {
 		t.Errorf("warned of a season beyond 1 000 paths in a 71-season record:\n%s", got)
+	}
+}
+
+// TestTargetSE: the error a Monte Carlo warning aims at reads apart from
+// the one it has.
+func TestTargetSE(t *testing.T) {
+	for _, c := range []struct {
+		se, target float64
+		want       string
+	}{{11.4, 10.6, "± 10.6"}, {17, 10.6, "± 11"}, {0.0123, 0.0118, "± 0.0118"}, {2400, 1600, "± 1,600"}, {2440, 2360, "± 2,360"}} {
+		if got := targetSE(c.se, c.target); got != c.want {
+			t.Errorf("targetSE(%v, %v) = %q, want %q", c.se, c.target, got, c.want)
+		}
+	}
+}
+
+// TestSmallSampleCautions: figures from a handful of seasons say so. A burn
+// price from 3 seasons carries sd/√3; one from 30 none; the record's P5 /
+// P95 of 4 seasons is not shown; a worst season most simulated years match
+// is "not rare", not "1 in 2 or less".
+func TestSmallSampleCautions(t *testing.T) {
+	h := &hedge.Result{Contracts: []hedge.ContractResult{
+		{Contract: hedge.Contract{Name: "jan swap"}, SD: 120000, Seasons: 3},
+		{Contract: hedge.Contract{Name: "heating call"}, SD: 50000, Seasons: 30},
+	}}
+	if got := BurnNote(h); !strings.Contains(got, "jan swap from 3, ± 69,282") || strings.Contains(got, "heating call") {
+		t.Errorf("burn note %q", got) // 120 000/√3 = 69 282
+	}
+	h.Contracts = h.Contracts[1:]
+	if got := BurnNote(h); got != "" {
+		t.Errorf("burn note from 30 seasons: %q", got)
+	}
+	if got := recordP5P95(stress.HistoryRow{Values: make([]float64, 4), P5: -3.7, P95: -0.3}); got != "—" {
+		t.Errorf("P5 / P95 of 4 seasons: %q", got)
+	}
+	if got := recordP5P95(stress.HistoryRow{Values: make([]float64, 10), P5: -3.7, P95: -0.3}); got != "-3.7 / -0.3" {
+		t.Errorf("P5 / P95 of 10 seasons: %q", got)
+	}
+	if got := oneIn(0.954); !strings.HasPrefix(got, "not rare") {
+		t.Errorf("oneIn(0.954) = %q", got)
 	}
 }

@@ -777,9 +777,20 @@ func monteCarloWarnings(group []sim.Row) []string {
 			value = numfmt.Number(f.value) + ", with too few paths beyond it to estimate its error,"
 		}
 		out = append(out, fmt.Sprintf("Monte Carlo error: the %s of %s is %s from %s paths, more than a twentieth of its sd; %s would bring it to %s",
-			f.stat, f.row.Name, value, numfmt.Number(float64(f.row.Tail.N)), need, numfmt.SE(f.target)))
+			f.stat, f.row.Name, value, numfmt.Number(float64(f.row.Tail.N)), need, targetSE(f.se, f.target)))
 	}
 	return out
+}
+
+// targetSE writes the error a Monte Carlo warning aims at, told apart from
+// the error se it has: "± 11 … would bring it to ± 11" reads as no change,
+// so where the two round alike the target takes a third significant digit.
+func targetSE(se, target float64) string {
+	t := numfmt.SE(target)
+	if t == numfmt.SE(se) && target > 0 {
+		t = "± " + numfmt.Fixed(target, max(0, 2-int(math.Floor(math.Log10(target)))))
+	}
+	return t
 }
 
 // splitDemand separates the weather indices of a period from its demand

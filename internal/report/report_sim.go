@@ -362,6 +362,7 @@ type simulationView struct {
 	// HedgeContracts and HedgePosition are the hedge evaluation's tables;
 	// nil without a hedge file.
 	HedgeContracts, HedgePosition *textTable
+	HedgeBurnNote                 string // burn prices from few seasons (render.BurnNote)
 	HedgeFigures                  []*figView
 }
 
@@ -424,7 +425,7 @@ func (b *builder) simulationSection() (any, error) {
 			v.HedgeContracts = &t
 		}
 		t := newTextTable("hedge", "The position's net cost", ph, position, 1, 2, 3, 4, 5)
-		v.HedgePosition = &t
+		v.HedgePosition, v.HedgeBurnNote = &t, render.BurnNote(s.Hedge)
 		figs, err := hedgeFigures(s)
 		if err != nil {
 			return nil, err
