@@ -37,12 +37,17 @@ func TailReturnPeriods() []float64 {
 // and the scenario comparisons read the 1-in-20, 1-in-50 and 1-in-100 levels.
 var coreReturnPeriods = [...]float64{20, 50, 100}
 
-// CheckReturnPeriods checks a list of return periods: each finite and above 1
-// year, no repeats.
+// MaxReturnPeriod is the longest return period a run takes: a million
+// years, already ten times what 10⁷ paths can estimate. Beyond about 10¹⁶
+// the probability 1 − 1/T is 1 in floating point.
+const MaxReturnPeriod = 1e6
+
+// CheckReturnPeriods checks a list of return periods: each above 1 year and
+// at most MaxReturnPeriod, no repeats.
 func CheckReturnPeriods(ts []float64) error {
 	for i, T := range ts {
-		if !(T > 1) || math.IsInf(T, 0) {
-			return fmt.Errorf("sim: return period %v: want a number of years above 1", T)
+		if !(T > 1) || T > MaxReturnPeriod {
+			return fmt.Errorf("sim: return period %v: want a number of years above 1 and at most 1,000,000", T)
 		}
 		if slices.Contains(ts[:i], T) {
 			return fmt.Errorf("sim: return period %v listed twice", T)

@@ -46,8 +46,8 @@ type DesignRow struct {
 func ParseStandard(s string) (float64, error) {
 	t := strings.TrimPrefix(strings.TrimSpace(s), "1-in-")
 	T, err := strconv.ParseFloat(t, 64)
-	if err != nil || !(T > 1) || math.IsInf(T, 0) {
-		return 0, fmt.Errorf("stress: standard %q: want 1-in-T with T a number of years above 1, e.g. 1-in-20", s)
+	if err != nil || !(T > 1) || T > sim.MaxReturnPeriod {
+		return 0, fmt.Errorf("stress: standard %q: want 1-in-T with T a number of years above 1 and at most 1,000,000, e.g. 1-in-20", s)
 	}
 	return T, nil
 }

@@ -107,6 +107,10 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--detail", "--format", "json"}, exitUsage, "--detail is for --format table"},
 		{[]string{"simulate", "--model", "m.json", "--observed", "o.csv", "--start", "climate"}, exitUsage, "--start climate contradicts it"},
 		{[]string{"simulate", "--model", "m.json", "--snap-days", "5"}, exitUsage, "--snap-days goes with --design"},
+		// 1 − 1/T is 1 in floating point from about 10¹⁶: it once panicked.
+		{[]string{"simulate", "--model", "m.json", "--return-periods", "1e17"}, exitUsage, "at most 1,000,000"},
+		{[]string{"simulate", "--model", "m.json", "--design", "1-in-1e17"}, exitUsage, "at most 1,000,000"},
+		{[]string{"simulate", "--model", "m.json", "--capacity-target", "peak:1-in-1e17"}, exitUsage, "at most 1,000,000"},
 		{[]string{"simulate", "--model", "m.json", "--uncertainty-mode", "mix"}, exitUsage, "--uncertainty-mode goes with --uncertainty"},
 	}
 	for _, c := range cases {

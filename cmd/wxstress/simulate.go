@@ -207,7 +207,7 @@ func (o *simulateOptions) validate() error {
 	for _, d := range o.design {
 		T, err := stress.ParseStandard(d)
 		if err != nil {
-			return usagef("simulate: --design %q: want 1-in-T with T a number of years above 1, e.g. 1-in-20", d)
+			return usagef("simulate: --design %q: want 1-in-T with T a number of years above 1 and at most 1,000,000, e.g. 1-in-20", d)
 		}
 		o.standards = append(o.standards, T)
 	}
@@ -217,7 +217,7 @@ func (o *simulateOptions) validate() error {
 	for _, tg := range o.targets {
 		c, err := stress.ParseCapacityTarget(tg)
 		if err != nil {
-			return usagef("simulate: --capacity-target %q: want peak:1-in-T, days:x or any:p", tg)
+			return usagef("simulate: --capacity-target %q: want peak:1-in-T (T above 1, at most 1,000,000), days:x or any:p", tg)
 		}
 		o.capTarget = append(o.capTarget, c)
 	}
