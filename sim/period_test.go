@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"context"
 	"errors"
 	"slices"
 	"strings"
@@ -174,5 +175,20 @@ func TestTargetYear(t *testing.T) {
 	}
 	if got := TargetYear(m, 2031, nil); got != 2031 {
 		t.Errorf("an explicit year %d came back as %d", 2031, got)
+	}
+}
+
+// TestSnapLongerThanPeriod: a cold snap longer than a period has no window
+// in it (its lowest k-day mean would be +∞, which JSON cannot carry); the
+// run refuses it as a period error, which the command reports as a usage
+// error naming the window.
+func TestSnapLongerThanPeriod(t *testing.T) {
+	m := flatModel(10, 0.7, 2, model.FamilyNormal, 0)
+	_, err := Run(context.Background(), m, Config{Paths: 10, Periods: []string{"12-24:12-25"}, SnapDays: 3, Bases: BasesFor(model.Celsius)})
+	if !errors.Is(err, ErrPeriod) || !strings.Contains(err.Error(), `"12-24:12-25" has 2 days, fewer than the 3-day cold snap`) {
+		t.Errorf("error %v", err)
+	}
+	if _, err := Run(context.Background(), m, Config{Paths: 10, Periods: []string{"12-24:12-26"}, SnapDays: 3, Bases: BasesFor(model.Celsius)}); err != nil {
+		t.Errorf("a 3-day period with a 3-day snap: %v", err)
 	}
 }

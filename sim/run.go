@@ -269,6 +269,12 @@ func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
 		if err != nil {
 			return nil, err
 		}
+		if cfg.SnapDays > p.Days() {
+			// A k-day cold snap has no window in a shorter period: its
+			// lowest k-day mean would be +∞.
+			return nil, fmt.Errorf("%w %q has %d days, fewer than the %d-day cold snap (--snap-days)", ErrPeriod, name,
+				p.Days(), cfg.SnapDays)
+		}
 		periods[i] = p
 	}
 	return periods, nil
