@@ -1060,3 +1060,21 @@ func TestHelpWithin100Columns(t *testing.T) {
 		}
 	}
 }
+
+// TestCSVHasNoInfinity: a Monte Carlo error that cannot be bounded (10 paths,
+// a 1-in-50 design day) is null in the JSON and empty in the CSV, never
+// "+Inf" (which a spreadsheet reads as text and a JSON reader refuses).
+func TestCSVHasNoInfinity(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", "10", "--design", "1-in-50", "--format", "csv")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if strings.Contains(out, "Inf") || strings.Contains(out, "NaN") {
+		t.Errorf("CSV with a non-finite number:\n%s", out)
+	}
+	if !strings.Contains(out, "design-day:1-in-50:se,\n") {
+		t.Errorf("the unbounded design-day error is not an empty field")
+	}
+}

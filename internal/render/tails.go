@@ -416,6 +416,16 @@ func StatisticsFor(periods []float64) []Statistic {
 	return s
 }
 
+// csvNumber writes a value for the CSV: the shortest digits that read back
+// to it, never an exponent; empty where the JSON has null (a Monte Carlo
+// error that cannot be bounded, +∞, or a NaN).
+func csvNumber(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'f', -1, 64)
+}
+
 // SimCSV writes the report in long form, one number a line:
 // scenario,index,period,unit,adverse,statistic,value ("baseline" for the
 // fitted model), after "# key: value" manifest lines. A scenario's changes
@@ -435,8 +445,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 		for k, row := range rows {
 			unit := row.Unit
 			put := func(stat string, v float64) {
-				cw.Write([]string{scenario, row.Info.Key, row.Period, unit, AdverseSide(row), stat,
-					strconv.FormatFloat(v, 'f', -1, 64)}) // shortest digits, never an exponent
+				cw.Write([]string{scenario, row.Info.Key, row.Period, unit, AdverseSide(row), stat, csvNumber(v)})
 			}
 			date := row.Index == sim.PeakDay // a date: no adverse side
 			for _, s := range stats {
@@ -489,7 +498,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	for _, sc := range r.Scenarios {
 		write(sc.Name, sc.Rows, sc.Changes, nil)
 	}
-	g := func(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
+	g := csvNumber
 	units := "°" + r.Manifest.Units
 	demandUnit := demandUnitOf(r)
 	for _, d := range r.Design { // the planner's design figures, each with its Monte Carlo s.e.
