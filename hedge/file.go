@@ -386,6 +386,16 @@ func (f *File) Validate() error {
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
+// Bounds of a hedge file's amounts: far beyond any real book, and small
+// enough that payouts, their squares and their sums over a million paths
+// stay finite (a tick of 10³⁰⁰ made the variance NaN).
+const (
+	maxLevel    = 1e12 // a plan or strike, in the index's unit
+	maxPrice    = 1e9  // a tick or exposure price, currency per index unit
+	maxAmount   = 1e15 // a limit or premium, currency
+	maxQuantity = 1e6  // contracts held or sold
+)
+
 // check validates values; its KeyErrors carry the key
 // and the contract's index, Parse adds the file and line.
 func (f *File) check() error {
@@ -413,14 +423,14 @@ func (f *File) check() error {
 		if msg := period(e.Period); msg != "" {
 			return bad("period", "%s", msg)
 		}
-		if !finite(e.Plan) || e.Plan < 0 {
-			return bad("plan", "%v: want a finite volume ≥ 0", e.Plan)
+		if !(e.Plan >= 0 && e.Plan <= maxLevel) {
+			return bad("plan", "%v: want a volume from 0 to 10¹²", e.Plan)
 		}
-		if !finite(e.PriceAbove) || e.PriceAbove < 0 {
-			return bad("price_above", "%v: want a finite price ≥ 0", e.PriceAbove)
+		if !(e.PriceAbove >= 0 && e.PriceAbove <= maxPrice) {
+			return bad("price_above", "%v: want a price from 0 to 10⁹ per unit", e.PriceAbove)
 		}
-		if !finite(e.PriceBelow) || e.PriceBelow < 0 {
-			return bad("price_below", "%v: want a finite price ≥ 0", e.PriceBelow)
+		if !(e.PriceBelow >= 0 && e.PriceBelow <= maxPrice) {
+			return bad("price_below", "%v: want a price from 0 to 10⁹ per unit", e.PriceBelow)
 		}
 	} else if len(f.Contracts) == 0 {
 		return &KeyError{Msg: "no exposure and no contract: give at least one", elem: -1}
@@ -446,15 +456,15 @@ func (f *File) check() error {
 		}
 		switch c.Kind {
 		case Swap, Call, Put:
-			if !finite(c.Strike) {
-				return bad("strike", "%v: want a finite number", c.Strike)
+			if !(math.Abs(c.Strike) <= maxLevel) {
+				return bad("strike", "%v: want a number from −10¹² to 10¹²", c.Strike)
 			}
 		case Collar:
-			if !finite(c.StrikeLow) {
-				return bad("strike_low", "%v: want a finite number", c.StrikeLow)
+			if !(math.Abs(c.StrikeLow) <= maxLevel) {
+				return bad("strike_low", "%v: want a number from −10¹² to 10¹²", c.StrikeLow)
 			}
-			if !finite(c.StrikeHigh) {
-				return bad("strike_high", "%v: want a finite number", c.StrikeHigh)
+			if !(math.Abs(c.StrikeHigh) <= maxLevel) {
+				return bad("strike_high", "%v: want a number from −10¹² to 10¹²", c.StrikeHigh)
 			}
 			if !(c.StrikeLow < c.StrikeHigh) {
 				return bad("strike_high", "%v: want strike_low < strike_high (strike_low is %v)", c.StrikeHigh, c.StrikeLow)
@@ -462,17 +472,17 @@ func (f *File) check() error {
 		default:
 			return bad("kind", "%q: want swap, call, put or collar", c.Kind)
 		}
-		if !finite(c.Tick) || c.Tick <= 0 {
-			return bad("tick", "%v: want a finite amount > 0 per index unit", c.Tick)
+		if !(c.Tick > 0 && c.Tick <= maxPrice) {
+			return bad("tick", "%v: want an amount above 0 and at most 10⁹ per index unit", c.Tick)
 		}
-		if math.IsNaN(c.Limit) || c.Limit <= 0 {
-			return bad("limit", "%v: want an amount > 0 (leave it out for no limit)", c.Limit)
+		if !(c.Limit > 0 && (c.Limit <= maxAmount || math.IsInf(c.Limit, 1))) {
+			return bad("limit", "%v: want an amount above 0 and at most 10¹⁵ (leave it out for no limit)", c.Limit)
 		}
-		if !finite(c.Quantity) || c.Quantity == 0 {
-			return bad("quantity", "%v: want a finite number of contracts, not 0 (negative when sold)", c.Quantity)
+		if !(c.Quantity != 0 && math.Abs(c.Quantity) <= maxQuantity) {
+			return bad("quantity", "%v: want a number of contracts from −10⁶ to 10⁶, not 0 (negative when sold)", c.Quantity)
 		}
-		if !finite(c.Premium) || c.Premium < 0 {
-			return bad("premium", "%v: want a finite price ≥ 0 for one contract (quantity gives the side)", c.Premium)
+		if !(c.Premium >= 0 && c.Premium <= maxAmount) {
+			return bad("premium", "%v: want a price from 0 to 10¹⁵ for one contract (quantity gives the side)", c.Premium)
 		}
 	}
 	return nil

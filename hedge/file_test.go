@@ -87,6 +87,11 @@ func TestBadHedgeFiles(t *testing.T) {
 		{"non-finite strike", withLine(13, "strike = nan"), `bad.toml:13: key contract.strike (contract "b"): NaN`},
 		{"zero quantity", withLine(15, "quantity = 0"), `bad.toml:15: key contract.quantity (contract "b"): 0: want`},
 		{"negative premium", withLine(15, "premium = -1"), `bad.toml:15: key contract.premium (contract "b"): -1: want`},
+		// Bounds that keep payouts, their squares and sums finite (a tick
+		// of 1e300 made the net cost's variance NaN and the JSON fail).
+		{"huge tick", withLine(14, "tick = 1e300"), `bad.toml:14: key contract.tick (contract "b"): 1e+300: want an amount above 0 and at most 10⁹`},
+		{"huge quantity", withLine(15, "quantity = 1e7"), `bad.toml:15: key contract.quantity (contract "b"): 1e+07: want`},
+		{"huge plan", strings.Replace(expo, "plan = 100", "plan = 1e300", 1), "bad.toml:5: key exposure.plan: 1e+300: want a volume from 0 to 10¹²"},
 		{"unknown top-level key", "currency = \"EUR\"\nhedges = 1\n", "bad.toml:2: key hedges: unknown key; valid keys are currency,"},
 		{"unknown key in the exposure", expo + "pln = 3\n", "bad.toml:8: key exposure.pln: unknown key; valid keys are index, period, plan,"},
 		{"negative price", strings.Replace(expo, "price_above = 9", "price_above = -9", 1), "bad.toml:6: key exposure.price_above: -9: want"},
