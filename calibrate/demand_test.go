@@ -562,3 +562,26 @@ func TestReadDemandLoadColumn(t *testing.T) {
 		}
 	}
 }
+
+// TestDemandUnidentifiedOrNegative: a holiday column that marks every day
+// cannot be told from the base load (the least-squares coefficients came
+// out at ±6.9·10¹⁵ and the fit was accepted), and a base load below zero
+// (loads net of generation) makes a model the simulator refuses; both are
+// fit errors that say why.
+func TestDemandUnidentifiedOrNegative(t *testing.T) {
+	t.Parallel()
+	heat := func(temp float64, d calendar.Date) float64 { return 5000 + 300*max(15-temp, 0) + weekend(d) }
+	days := synthDemand(t, 7, 2*365, 120, heat)
+	for i := range days.Holiday {
+		days.Holiday[i] = true
+	}
+	_, err := FitDemand(days, &DemandSettings{Unit: "MWh/day"})
+	if !errors.Is(err, ErrFit) || !strings.Contains(err.Error(), "the holiday column marks 730 of 730 days") {
+		t.Errorf("every day a holiday: %v", err)
+	}
+	days = synthDemand(t, 7, 2*365, 120, func(temp float64, d calendar.Date) float64 { return heat(temp, d) - 8000 })
+	_, err = FitDemand(days, &DemandSettings{Unit: "MWh/day"})
+	if !errors.Is(err, ErrFit) || !strings.Contains(err.Error(), "base load (demand at the balance point on a Monday) comes out at -3") {
+		t.Errorf("negative base load: %v", err)
+	}
+}

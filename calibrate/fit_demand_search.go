@@ -102,6 +102,9 @@ func newDemandFitter(dates []calendar.Date, temp, load []float64, hol []bool) (*
 		}
 	}
 	f.qr.Factorize(f.z)
+	if err := f.checkCalendarTerms(hol); err != nil {
+		return nil, err
+	}
 	w, err := f.project(load)
 	if err != nil {
 		return nil, err
@@ -134,6 +137,37 @@ func newDemandFitter(dates []calendar.Date, temp, load []float64, hol []bool) (*
 		f.cool[j] = f.reduce(x)
 	}
 	return f, nil
+}
+
+// checkCalendarTerms refuses calendar terms the data cannot tell apart (a
+// holiday column that marks every day, or every day of the weekdays it
+// marks): the least-squares coefficients would be arbitrary, of the order
+// of 10¹⁵ with opposite signs. A column whose diagonal entry of R is below
+// 10⁻⁹ of the largest lies numerically in the span of the others.
+func (f *demandFitter) checkCalendarTerms(hol []bool) error {
+	var r mat.Dense
+	f.qr.RTo(&r)
+	big := 0.0
+	for j := range f.k {
+		big = max(big, math.Abs(r.At(j, j)))
+	}
+	for j := 1; j < f.k; j++ {
+		if math.Abs(r.At(j, j)) > 1e-9*big {
+			continue
+		}
+		if j == f.holCol {
+			marked := 0
+			for _, h := range hol {
+				if h {
+					marked++
+				}
+			}
+			return fmt.Errorf("%w: the holiday column marks %d of %d days, which the base load and weekday effects already "+
+				"describe: a holiday effect cannot be told apart from them (mark only the holidays)", ErrFit, marked, f.n)
+		}
+		return fmt.Errorf("%w: the calendar terms of the demand model cannot be told apart on these days (term %d)", ErrFit, j)
+	}
+	return nil
 }
 
 // gridValue returns the j-th grid balance point. Dividing whole tenths

@@ -13,6 +13,9 @@ import (
 	"wxstress/internal/atomicfile"
 )
 
+// maxLoad bounds a demand model's loads and effects (in its unit).
+const maxLoad = 1e15
+
 // DemandSchema identifies the demand model file; DemandSchemaVersion is
 // bumped on any change a version-1 reader could misread. A reader accepts
 // files whose schema_version is at most its own.
@@ -424,16 +427,18 @@ func (d *Demand) Validate(name string) error {
 	if d.Cooling.Present != form.HasCooling() {
 		return bad("cooling.balance_point", "does not match form %q", d.Form)
 	}
-	if !finite(d.Intercept) {
-		return bad("intercept", "not a finite number")
+	// Loads are bounded by maxLoad: far beyond any send-out, and small
+	// enough that a year's sums and their squares stay finite.
+	if !(d.Intercept > 0 && d.Intercept <= maxLoad) {
+		return bad("intercept", "%v: want a base load above 0 and at most 10¹⁵ (demand at the balance point, on a Monday)", d.Intercept)
 	}
 	for i, v := range d.Weekday {
-		if !finite(v) {
-			return bad(fmt.Sprintf("weekday[%d]", i), "not a finite number")
+		if !(math.Abs(v) <= maxLoad) {
+			return bad(fmt.Sprintf("weekday[%d]", i), "%v: want a finite effect within ±10¹⁵", v)
 		}
 	}
-	if !finite(d.Holiday) {
-		return bad("holiday", "not a finite number")
+	if !(math.Abs(d.Holiday) <= maxLoad) {
+		return bad("holiday", "%v: want a finite effect within ±10¹⁵", d.Holiday)
 	}
 	for _, side := range []struct {
 		key string
@@ -445,8 +450,10 @@ func (d *Demand) Validate(name string) error {
 		if !finite(side.c.BalancePoint) || math.Abs(side.c.BalancePoint) > 200 {
 			return bad(side.key+".balance_point", "%v is not a plausible temperature", side.c.BalancePoint)
 		}
-		if !finite(side.c.Slope) {
-			return bad(side.key+".slope", "not a finite number")
+		// A slope of the wrong sign is taken (a form fixed by the user may
+		// fit one, with the fit's warning); the run warns of it.
+		if !(math.Abs(side.c.Slope) <= maxLoad) {
+			return bad(side.key+".slope", "%v: want a finite slope within ±10¹⁵ per degree", side.c.Slope)
 		}
 	}
 	switch d.Form {

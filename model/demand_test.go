@@ -192,6 +192,11 @@ func TestDemandValidateNamesTheKey(t *testing.T) {
 		{func(m map[string]any) { m["heating"].(map[string]any)["balance_point"] = 25.0 }, "cooling.balance_point"},
 		{func(m map[string]any) { m["form"] = FormHeatingCooling }, "cooling.balance_point"},
 		{func(m map[string]any) { m["weekday"] = []any{0, 1, 2} }, "weekday"},
+		// A base load at or below zero is demand below zero on a mild
+		// Monday; absurd sizes would overflow a year's sums.
+		{func(m map[string]any) { m["intercept"] = -1e6 }, "intercept"},
+		{func(m map[string]any) { m["holiday"] = 6.9e15 }, "holiday"},
+		{func(m map[string]any) { m["heating"].(map[string]any)["slope"] = 1e300 }, "heating.slope"},
 	}
 	for _, c := range cases {
 		var m map[string]any

@@ -291,6 +291,16 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		if err := job.holidays(res, &cfg); err != nil {
 			return nil, err
 		}
+		for _, side := range []struct {
+			name string
+			c    model.ChangePoint
+		}{{"heating", res.Demand.Heating}, {"cooling", res.Demand.Cooling}} {
+			if side.c.Present && !(side.c.Slope > 0) {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model's %s slope is %s %s per degree, not positive: "+
+					"its demand falls the further the temperature goes beyond the balance point, the opposite of a %s load",
+					side.name, numfmt.Number(side.c.Slope), res.Demand.Unit, side.name))
+			}
+		}
 		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
 				"has no holidays (--holidays FILE gives them): its years are simulated without any",

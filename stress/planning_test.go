@@ -269,6 +269,15 @@ func TestRunWarnings(t *testing.T) {
 	if ws := run(job); !has(ws, "fitted with another temperature file (elsewhere.csv)") {
 		t.Errorf("demand model from another file: %q", ws)
 	}
+	// A heating slope of the wrong sign (a hand-edited file, or a form the
+	// user fixed on data it does not fit) is taken, and said.
+	inverted := *res.Demand
+	inverted.Heating.Slope = -3000
+	job = &Job{Model: res.Model, Demand: &inverted, Config: sim.Config{Paths: 200, Seed: 5, Year: 2026,
+		Periods: []string{"year"}, Bases: sim.BasesFor(model.Celsius)}}
+	if ws := run(job); !has(ws, "the demand model's heating slope is -3,000 GJ/day per degree, not positive") {
+		t.Errorf("negative heating slope: %q", ws)
+	}
 }
 
 // TestCapacityErrorUnbounded: a target so far in the tail that no path
