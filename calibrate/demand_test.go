@@ -317,6 +317,9 @@ func TestReadDemandBadInput(t *testing.T) {
 		{"missing date", row(2, ",5000,0"), `d.csv:4:1: field date: missing date`},
 		{"bad number", row(2, "2021-01-03,lots,0"), `d.csv:4:12: field load: not a number: "lots"`},
 		{"infinite number", row(2, "2021-01-03,1e999,0"), `d.csv:4:12: field load: not a finite number: "1e999"`},
+		// A thousandfold the median is a typing or unit error: one such value
+		// was read as "no dependence on temperature", with no line.
+		{"absurd load", row(2, "2021-01-03,1e12,0"), `d.csv:4:12: field load: load 1e+12 is more than 1000 times the record's median load (5047): a typing or unit error?`},
 		{"negative load", row(2, "2021-01-03,-12.5,0"), `d.csv:4:12: field load: negative load "-12.5": a load must be zero or more (leave it empty if it is missing)`},
 		{"duplicate date", row(2, "2021-01-02,5000,0"), `d.csv:4:1: field date: duplicate date "2021-01-02", first on line 3`},
 		{"out of order", row(2, "2020-12-31,5000,0"), `d.csv:4:1: field date: date "2020-12-31" is out of order: it follows 2021-01-02 on line 3`},

@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"wxstress/calendar"
@@ -103,6 +104,7 @@ type demandParser struct {
 	load    int // column index of the load
 	holiday int // column index of the holiday flag, or -1
 	d       DemandSeries
+	loadPos [][2]int // line and column of each kept row's load field
 }
 
 func (p *demandParser) readHeader() error {
@@ -143,6 +145,8 @@ func (p *demandParser) readRow(record []string) {
 	if !ok {
 		return
 	}
+	ll, lc := p.cr.FieldPos(p.load)
+	p.loadPos = append(p.loadPos, [2]int{ll, lc})
 	p.d.Dates = append(p.d.Dates, d)
 	p.d.Load = append(p.d.Load, load)
 	p.d.Holiday = append(p.d.Holiday, hol)
@@ -162,6 +166,39 @@ func (p *demandParser) loadValue(record []string) float64 {
 		return math.NaN()
 	}
 	return v
+}
+
+// loadOutlier is how many times the record's median load a day's load may
+// be: a thousandfold is no cold day but a typing or unit error (a whole
+// winter's peak is a few times the median).
+const loadOutlier = 1000
+
+// implausibleLoads names the rows whose load is more than loadOutlier
+// times the record's median: one such value swamps every fit (it was read
+// as "no dependence on temperature") and every season under way.
+func (p *demandParser) implausibleLoads() error {
+	var have []float64
+	for _, v := range p.d.Load {
+		if !math.IsNaN(v) {
+			have = append(have, v)
+		}
+	}
+	slices.Sort(have)
+	med := have[len(have)/2]
+	if !(med > 0) {
+		return nil
+	}
+	for i, v := range p.d.Load {
+		if v > loadOutlier*med {
+			p.errorf(p.loadPos[i][0], p.loadPos[i][1], p.header[p.load], "load %s is more than %s times the record's "+
+				"median load (%s): a typing or unit error?", strconv.FormatFloat(v, 'g', -1, 64),
+				strconv.Itoa(loadOutlier), strconv.FormatFloat(med, 'g', 6, 64))
+		}
+	}
+	if len(p.errs) > 0 {
+		return p.errList()
+	}
+	return nil
 }
 
 // holidayValue parses the holiday flag; a bad value is recorded and read as
@@ -196,6 +233,9 @@ func (p *demandParser) series() (*DemandSeries, error) {
 		p.errorf(0, 0, "", "only %d days have a load: at least %d are needed (a full year, to see both heating and cooling seasons)",
 			n, MinDemandDays)
 		return nil, p.errList()
+	}
+	if err := p.implausibleLoads(); err != nil {
+		return nil, err
 	}
 	d.Absent = int(d.Dates[len(d.Dates)-1]-d.Dates[0]) + 1 - len(d.Dates)
 	if h := p.opt.Holidays; h != nil && len(h.Dates)+len(h.Rules) > 0 {
