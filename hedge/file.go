@@ -408,8 +408,12 @@ func (f *File) check() error {
 		return fmt.Sprintf("%q: want one of %s", v, strings.Join(Indices(), ", "))
 	}
 	period := func(v string) string {
-		if _, err := sim.ParsePeriod(v, 2000); err != nil {
-			return strings.TrimPrefix(err.Error(), "sim: ")
+		// In a leap year and in another: 02-29:02-29 has a day only in
+		// the first.
+		for _, y := range []int{2000, 2001} {
+			if _, err := sim.ParsePeriod(v, y); err != nil {
+				return strings.TrimPrefix(err.Error(), "sim: ")
+			}
 		}
 		return ""
 	}

@@ -222,10 +222,18 @@ func (s *Scenario) check() error {
 		if e.Start != "" && !validMonthDay(e.Start) {
 			return bad("event.start", "%q: want MM-DD, e.g. 01-15", e.Start)
 		}
+		// A start on 29 February would have no day in three years of four
+		// (the window 02-29:02-29 is empty outside a leap year).
+		if e.Start == "02-29" {
+			return bad("event.start", "\"02-29\" exists only in leap years: start on 02-28 or 03-01, or give a window")
+		}
 		if e.Window != "" {
 			a, b, ok := strings.Cut(e.Window, ":")
 			if !ok || !validMonthDay(a) || !validMonthDay(b) {
 				return bad("event.window", "%q: want MM-DD:MM-DD, e.g. 12-01:02-28", e.Window)
+			}
+			if a == "02-29" && b == "02-29" {
+				return bad("event.window", "\"02-29:02-29\" has a day only in leap years: widen it")
 			}
 		}
 		if e.Probability != nil && !(*e.Probability > 0 && *e.Probability <= 1) {
