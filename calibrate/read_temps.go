@@ -332,6 +332,11 @@ func (p *tempParser) series() (*Series, error) {
 				"units not declared, so values are read as °C, but they look like °F (the warmest calendar month averages %.1f); if the file is in °F, pass --units F",
 				warm))
 		}
+	case s.Units == Celsius && ok && warm > fahrenheitHint:
+		// Declared, and still no station's climate: °F data given --units C.
+		s.Warnings = append(s.Warnings, fmt.Sprintf(
+			"values are read as °C (--units C), but they look like °F (the warmest calendar month averages %.1f, hotter than "+
+				"any station's); if the file is in °F, pass --units F", warm))
 	case s.Units == Fahrenheit && ok && warm < celsiusHintF:
 		s.Warnings = append(s.Warnings, fmt.Sprintf(
 			"values are read as °F, but they look like °C (the warmest calendar month averages %.1f °F, %.1f °C, colder than any but polar stations); if the file is in °C, drop --units F",

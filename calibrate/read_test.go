@@ -610,8 +610,9 @@ func BenchmarkReadCSV(b *testing.B) {
 // TestUnitsLookWrong checks the unit-sanity warnings on a real record: the
 // NOAA Seattle daily series (testdata/noaa, °C) read as declared °F is
 // flagged as probably °C, the same series converted to °F and read without
-// declared units is refused with the fix named, and each read in its own
-// units gives no warning.
+// declared units is refused with the fix named, a cool °F record declared
+// as °C is flagged as probably °F, and each read in its own units gives no
+// warning.
 func TestUnitsLookWrong(t *testing.T) {
 	t.Parallel()
 	raw, err := os.ReadFile("../testdata/noaa/seattle.csv")
@@ -656,6 +657,18 @@ func TestUnitsLookWrong(t *testing.T) {
 	}
 	if s := read(f.String(), Fahrenheit); warned(s, "look like °") {
 		t.Errorf("°F read as °F: %q", s.Warnings)
+	}
+	// A cool station in °F (2 + 8·cos °C: 21.6 to 50.4 °F, all inside the
+	// ±60 range) declared as °C: its warmest month, 49.5, is hotter than
+	// any station's, so it is still flagged.
+	var cool strings.Builder
+	cool.WriteString("date,tavg\n")
+	for d := calendar.FromYMD(2010, time.January, 1); d < calendar.FromYMD(2013, time.January, 1); d++ {
+		c := 2 + 8*math.Cos(2*math.Pi*(d.ModelTime()-200)/calendar.DaysPerYear)
+		fmt.Fprintf(&cool, "%s,%.1f\n", d, c*9/5+32)
+	}
+	if s := read(cool.String(), Celsius); !warned(s, "look like °F") || !warned(s, "(--units C)") {
+		t.Errorf("a cool °F record declared as °C: %q", s.Warnings)
 	}
 }
 
