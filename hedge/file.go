@@ -10,6 +10,7 @@ import (
 	"github.com/BurntSushi/toml"
 
 	"wxstress/internal/tomlpos"
+	"wxstress/model"
 	"wxstress/sim"
 )
 
@@ -294,6 +295,13 @@ func build(raw *rawFile, rcs []rawContract) (*File, error) {
 	if raw.Exposure == nil && len(rcs) == 0 {
 		return nil, &KeyError{Msg: "no [exposure] and no [[contract]]: give at least one", elem: -1}
 	}
+	// The currency heads every money column: a label, "currency" when the
+	// file gives none (a column headed "mean payout ()" reads as a slip).
+	if f.Currency == "" {
+		f.Currency = "currency"
+	} else if msg := model.LabelProblem(f.Currency); msg != "" {
+		return nil, &KeyError{Key: "currency", Msg: fmt.Sprintf("%q: %s", f.Currency, msg), elem: -1}
+	}
 	if e := raw.Exposure; e != nil {
 		missing := func(key string) error {
 			return &KeyError{Key: "exposure." + key, Msg: "missing", elem: -1}
@@ -447,6 +455,9 @@ func (f *File) check() error {
 		}
 		if c.Name == "" {
 			return bad("name", "missing")
+		}
+		if msg := model.LabelProblem(c.Name); msg != "" {
+			return bad("name", "%q: %s", c.Name, msg)
 		}
 		if names[c.Name] {
 			return bad("name", "%q is the name of an earlier contract; names must be unique", c.Name)

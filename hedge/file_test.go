@@ -53,6 +53,9 @@ func TestParseBase(t *testing.T) {
 	if got := f.Needs(); !reflect.DeepEqual(got, []Key{{"hdd", "heating"}}) {
 		t.Errorf("Needs() = %v", got)
 	}
+	if f.Currency != "currency" { // none given: the money columns read "(currency)", not "()"
+		t.Errorf("currency %q", f.Currency)
+	}
 }
 
 func TestBadHedgeFiles(t *testing.T) {
@@ -90,6 +93,7 @@ func TestBadHedgeFiles(t *testing.T) {
 		// Bounds that keep payouts, their squares and sums finite (a tick
 		// of 1e300 made the net cost's variance NaN and the JSON fail).
 		{"29 February alone", withLine(11, `period = "02-29:02-29"`), `bad.toml:11: key contract.period (contract "b"): window "02-29:02-29" has no days in 2001`},
+		{"formula name", withLine(9, `name = "=cmd"`), `bad.toml:9: key contract.name (contract "=cmd"): "=cmd": want a name that does not start with =`},
 		{"huge tick", withLine(14, "tick = 1e300"), `bad.toml:14: key contract.tick (contract "b"): 1e+300: want an amount above 0 and at most 10⁹`},
 		{"huge quantity", withLine(15, "quantity = 1e7"), `bad.toml:15: key contract.quantity (contract "b"): 1e+07: want`},
 		{"huge plan", strings.Replace(expo, "plan = 100", "plan = 1e300", 1), "bad.toml:5: key exposure.plan: 1e+300: want a volume from 0 to 10¹²"},

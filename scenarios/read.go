@@ -74,6 +74,9 @@ func Parse(src []byte, file string) (*Scenario, error) {
 	if isBuiltin(s.Name) {
 		return nil, &KeyError{file, s.line, "name", fmt.Sprintf("%q%s is the name of a built-in scenario; give the file a name of its own", s.Name, from)}
 	}
+	if msg := model.LabelProblem(s.Name); msg != "" {
+		return nil, &KeyError{file, s.line, "name", fmt.Sprintf("%q%s: %s", s.Name, from, msg)}
+	}
 	if err := s.check(); err != nil {
 		var ke *KeyError
 		if errors.As(err, &ke) {

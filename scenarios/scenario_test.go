@@ -317,6 +317,10 @@ func TestBadScenarioFiles(t *testing.T) {
 		{"event both starts", "[[event]]\ndays = 3\nanomaly = 5\nwindow = \"12-01:01-31\"\nstart = \"01-01\"\n", "bad.toml:5: key event.start: give exactly one"},
 		// 29 February alone has no day outside a leap year (a run refused
 		// it as a usage error without the file's line).
+		// Names head the CSV's first column: one line, no formula start.
+		{"formula name", "name = \"=HYPERLINK(1)\"\n", "bad.toml:1: key name: \"=HYPERLINK(1)\": want a name that does not start with ="},
+		{"two-line name", "name = \"a\\nb\"\n", "bad.toml:1: key name: \"a\\nb\": want one line"},
+		{"comma name", "name = \"a,b\"\n", "bad.toml:1: key name: \"a,b\": want one line without commas"},
 		{"event on 29 February", "[[event]]\ndays = 3\nanomaly = 5\nstart = \"02-29\"\n", "bad.toml:4: key event.start: \"02-29\" exists only in leap years"},
 		{"event window 29 February", "[[event]]\ndays = 3\nanomaly = 5\nwindow = \"02-29:02-29\"\n", "bad.toml:4: key event.window: \"02-29:02-29\" has a day only in leap years"},
 		{"event kind", "[[event]]\nkind = \"wet\"\ndays = 3\nanomaly = 5\nstart = \"01-01\"\n", "bad.toml:2: key event.kind"},
