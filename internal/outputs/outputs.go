@@ -60,7 +60,7 @@ func Check(path string, inputs []string, force bool) error {
 	lst, err := os.Lstat(path)
 	switch {
 	case errors.Is(err, fs.ErrNotExist):
-		return nil
+		return writable(abs, refuse)
 	case err != nil:
 		return fmt.Errorf("outputs: %w", err)
 	}
@@ -70,6 +70,30 @@ func Check(path string, inputs []string, force bool) error {
 	if !force {
 		return refuse("it exists; use --force to replace it")
 	}
+	return writable(abs, refuse)
+}
+
+// writable refuses an output whose directory (or, when that is still to
+// be made, its parent) does not take a new file, found by creating and
+// removing one: before any work, not after an hour's run.
+func writable(abs string, refuse func(string, ...any) error) error {
+	dir := filepath.Dir(abs)
+	if _, err := os.Stat(dir); errors.Is(err, fs.ErrNotExist) {
+		dir = filepath.Dir(dir) // a directory the run will make, one level deep
+	}
+	f, err := os.CreateTemp(dir, ".wxstress-probe-")
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil // two levels missing: the run refuses that itself, as a likely typo
+	}
+	if err != nil {
+		var pe *fs.PathError
+		if errors.As(err, &pe) {
+			err = pe.Err
+		}
+		return refuse("its directory %s does not take new files (%v)", dir, err)
+	}
+	f.Close()
+	os.Remove(f.Name())
 	return nil
 }
 

@@ -295,3 +295,36 @@ func TestAddTwicePanics(t *testing.T) {
 	}()
 	s.Add(filepath.Join(dir, ".", "a.csv"), text("y"))
 }
+
+// TestCheckWritable: an output whose directory takes no new file is refused
+// by Check, before any work (a run once found out after its simulation):
+// a read-only directory (when not root: root writes anywhere); a "directory"
+// that is a regular file is an error too. The probe leaves nothing behind.
+func TestCheckWritable(t *testing.T) {
+	dir := t.TempDir()
+	notDir := filepath.Join(dir, "file")
+	write(t, notDir, "x")
+	if err := Check(filepath.Join(notDir, "r.html"), nil, false); err == nil || !strings.Contains(err.Error(), "not a directory") {
+		t.Errorf("under a regular file: %v", err)
+	}
+	if os.Geteuid() == 0 {
+		t.Log("root writes anywhere: the read-only directory is not checked")
+	} else {
+		ro := filepath.Join(dir, "ro")
+		os.Mkdir(ro, 0o555)
+		if err := Check(filepath.Join(ro, "r.html"), nil, false); !errors.Is(err, ErrRefused) ||
+			!strings.Contains(err.Error(), "does not take new files") {
+			t.Errorf("read-only directory: %v", err)
+		}
+		os.Chmod(ro, 0o755)
+	}
+	if err := Check(filepath.Join(dir, "new", "r.html"), nil, false); err != nil {
+		t.Errorf("one level to make: %v", err)
+	}
+	ents, _ := os.ReadDir(dir)
+	for _, e := range ents {
+		if strings.HasPrefix(e.Name(), ".wxstress-probe-") {
+			t.Errorf("probe file left behind: %s", e.Name())
+		}
+	}
+}
