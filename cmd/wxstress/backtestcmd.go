@@ -3,8 +3,8 @@ package main
 import (
 	"context"
 	"io"
-	"math"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"github.com/spf13/pflag"
@@ -87,13 +87,22 @@ func (o *backtestOptions) validate() error {
 		return usagef("backtest: --paths %d: want 100..1000000", o.paths)
 	}
 	for _, p := range o.periods {
-		if _, err := sim.ParsePeriod(p, 2000); err != nil {
-			return usagef("backtest: --period: %v", err)
+		// In a leap year and in another, as simulate: 02-29:02-29 has a
+		// day only in the first.
+		for _, y := range []int{2000, 2001} {
+			if _, err := sim.ParsePeriod(p, y); err != nil {
+				return usagef("backtest: --period: %v", strings.TrimPrefix(err.Error(), "sim: "))
+			}
 		}
 	}
-	for _, v := range []float64{o.hddBase, o.cddBase} {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return usagef("backtest: degree-day bases must be finite numbers")
+	for _, b := range []struct {
+		flag string
+		v    float64
+	}{{"--hdd-base", o.hddBase}, {"--cdd-base", o.cddBase}} {
+		// The same range as simulate's: wider than any station's daily
+		// means in either scale.
+		if !(b.v >= -100 && b.v <= 200) {
+			return usagef("backtest: %s %v: want a temperature from −100 to 200 in the data's degrees", b.flag, b.v)
 		}
 	}
 	if o.units != "" {
@@ -136,7 +145,7 @@ func runBacktestCmd(ctx context.Context, args []string, stdout, _ io.Writer) err
 			return err
 		}
 		if err := opt.Demand.CheckUnits(string(series.Units)); err != nil {
-			return err
+			return usagef("backtest: %v", err) // two inputs that do not go together, as in simulate
 		}
 		if opt.Loads, err = calibrate.ReadDemandFile(o.load, calibrate.DemandReadOptions{}); err != nil {
 			return err

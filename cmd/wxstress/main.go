@@ -120,8 +120,13 @@ func exitCode(err error, ctx context.Context, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "wxstress: interrupted; no output was written")
 		return exitInterrupted
 	case errors.As(err, &ue):
-		msg := cleanMessage(err.Error())
-		fmt.Fprintf(stderr, "wxstress: %s\n(run '%s' for usage)\n", msg, helpFor(msg))
+		// The command's name first, kept although "backtest" and
+		// "scenarios" are also package names cleanMessage drops.
+		msg, help := cleanMessage(err.Error()), "wxstress help"
+		if cmd, rest, ok := strings.Cut(err.Error(), ": "); ok && helpFor(err.Error()) != help {
+			msg, help = cmd+": "+cleanMessage(rest), helpFor(err.Error())
+		}
+		fmt.Fprintf(stderr, "wxstress: %s\n(run '%s' for usage)\n", msg, help)
 		return exitUsage
 	case errors.Is(err, stress.ErrJob): // inputs that do not go together: how the tool was called
 		msg := strings.Replace(cleanMessage(err.Error()), strings.TrimPrefix(stress.ErrJob.Error(), "stress: ")+": ", "", 1)

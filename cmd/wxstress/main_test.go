@@ -107,6 +107,10 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--detail", "--format", "json"}, exitUsage, "--detail is for --format table"},
 		{[]string{"simulate", "--model", "m.json", "--observed", "o.csv", "--start", "climate"}, exitUsage, "--start climate contradicts it"},
 		{[]string{"simulate", "--model", "m.json", "--snap-days", "5"}, exitUsage, "--snap-days goes with --design"},
+		// The same problem, the same exit and message in every command.
+		{[]string{"simulate", "--model", "m.json", "--demand", "d.json", "--capacity", "NaN"}, exitUsage, "simulate: --capacity NaN: needs --demand"},
+		{[]string{"backtest", "--temps", "t.csv", "--hdd-base", "1000"}, exitUsage, "backtest: --hdd-base 1000: want a temperature from −100 to 200"},
+		{[]string{"backtest", "--temps", "t.csv", "--period", "02-29:02-29"}, exitUsage, "backtest: --period: window \"02-29:02-29\" has no days in 2001"},
 		// 1 − 1/T is 1 in floating point from about 10¹⁶: it once panicked.
 		{[]string{"simulate", "--model", "m.json", "--return-periods", "1e17"}, exitUsage, "at most 1,000,000"},
 		{[]string{"simulate", "--model", "m.json", "--design", "1-in-1e17"}, exitUsage, "at most 1,000,000"},
@@ -120,6 +124,11 @@ func TestExitCodes(t *testing.T) {
 		}
 		if !strings.Contains(stdout+stderr, c.msg) {
 			t.Errorf("%v: output lacks %q: %q", c.args, c.msg, stderr)
+		}
+		// A usage error of a command points to that command's help page.
+		if len(c.args) > 1 && c.code == exitUsage && strings.HasPrefix(c.msg, c.args[0]+": ") &&
+			!strings.Contains(stderr, "(run 'wxstress help "+c.args[0]+"' for usage)") {
+			t.Errorf("%v: the help pointer is not the command's: %q", c.args, stderr)
 		}
 	}
 }

@@ -187,8 +187,8 @@ func (o *simulateOptions) validate() error {
 	if o.workers < 0 {
 		return usagef("simulate: --workers must be positive, got %d", o.workers)
 	}
-	if o.capacity < 0 || o.capacity > 0 && o.demand == "" {
-		return usagef("simulate: --capacity needs --demand and a positive value")
+	if !(o.capacity >= 0 && o.capacity <= 1e15) || o.capacity > 0 && o.demand == "" {
+		return usagef("simulate: --capacity %v: needs --demand and a positive value of at most 10¹⁵", o.capacity)
 	}
 	if o.refits != 0 && (o.refits < 20 || o.refits > 1000) {
 		// Fewer refits give a "90 % band" that is mostly noise: at 2 to 5
