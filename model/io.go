@@ -8,6 +8,7 @@ import (
 	"math"
 	"math/cmplx"
 	"os"
+	"reflect"
 	"slices"
 	"strings"
 
@@ -55,8 +56,16 @@ func Read(path string) (*File, error) {
 
 // Decode parses and validates model JSON; name is used in messages.
 func Decode(b []byte, name string) (*File, error) {
-	if _, err := decodeHeader(b, name, Schema, SchemaVersion, requiredKeys, "model file"); err != nil {
+	raw, err := decodeHeader(b, name, Schema, SchemaVersion, requiredKeys, "model file")
+	if err != nil {
 		return nil, err
+	}
+	// Twelve months, said as such: a short array would leave the last
+	// months at σ = 0.
+	for _, k := range []string{"volatility.monthly", "scenario.monthly_shift"} {
+		if n, ok := arrayLen(raw, k); ok && n != 12 {
+			return nil, &KeyError{name, k, fmt.Sprintf("has %d values, want 12 (January to December)", n)}
+		}
 	}
 	var f File
 	if err := decodeStrict(b, name, &f); err != nil {
@@ -97,6 +106,11 @@ func decodeHeader(b []byte, name, schema string, version int, required []string,
 	} else if v > float64(version) {
 		return nil, &KeyError{name, "schema_version", fmt.Sprintf("is %v, newer than this tool reads (%d): upgrade wxstress", v, version)}
 	}
+	if k := duplicateKey(b); k != "" {
+		// encoding/json keeps the last of two equal keys: a file saying
+		// "family" twice would quietly run the second.
+		return nil, &KeyError{name, k, "given twice: each key may appear once"}
+	}
 	if k := upperKey(raw, ""); k != "" {
 		// encoding/json matches keys without regard to case, so "Trend"
 		// would silently stand for (or override) "trend".
@@ -110,6 +124,10 @@ func decodeHeader(b []byte, name, schema string, version int, required []string,
 	return raw, nil
 }
 
+// near reports whether a restated value agrees with the one it restates,
+// to 10⁻⁶ relative (the file has every digit).
+func near(a, b float64) bool { return math.Abs(a-b) <= 1e-6*max(1, math.Abs(b)) }
+
 // shortJSON shows a decoded JSON value in a message, cut to 40 bytes.
 func shortJSON(v any) string {
 	b, _ := json.Marshal(v)
@@ -119,14 +137,137 @@ func shortJSON(v any) string {
 	return string(b)
 }
 
-// decodeStrict decodes JSON into v, refusing unknown keys.
+// decodeStrict decodes JSON into v, refusing unknown keys; a wrong type is
+// named by its key and the kinds of value, not by Go's struct fields.
 func decodeStrict(b []byte, name string, v any) error {
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
+		var te *json.UnmarshalTypeError
+		if errors.As(err, &te) && te.Field != "" {
+			found := map[string]string{"string": "a string", "number": "a number", "bool": "true or false", "array": "an array",
+				"object": "an object"}[te.Value]
+			if found == "" {
+				found = te.Value // "number 1.5" for a fraction where a whole number belongs
+			}
+			return &KeyError{name, te.Field, fmt.Sprintf("wrong kind of value: want %s, found %s", jsonKind(te.Type), found)}
+		}
+		if k, ok := strings.CutPrefix(err.Error(), "json: unknown field "); ok {
+			return &KeyError{name, unknownKeyPath(b, strings.Trim(k, `"`)), "unknown key"}
+		}
 		return fmt.Errorf("%s: %w: %w", name, ErrInvalid, err)
 	}
 	return nil
+}
+
+// jsonKind words a Go type as the JSON value it decodes from.
+func jsonKind(t reflect.Type) string {
+	switch t.Kind() {
+	case reflect.Float32, reflect.Float64:
+		return "a number"
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64,
+		reflect.Uint, reflect.Uint8, reflect.Uint16, reflect.Uint32, reflect.Uint64:
+		return "a whole number"
+	case reflect.String:
+		return "a string"
+	case reflect.Bool:
+		return "true or false"
+	case reflect.Slice, reflect.Array:
+		return "an array"
+	}
+	return "an object"
+}
+
+// duplicateKey returns the dotted path of the first key that appears twice
+// in one object of the JSON document b, or "".
+func duplicateKey(b []byte) string {
+	dec := json.NewDecoder(bytes.NewReader(b))
+	var walk func(path string) (string, error)
+	walk = func(path string) (string, error) {
+		tok, err := dec.Token()
+		if err != nil {
+			return "", err
+		}
+		switch tok {
+		case json.Delim('{'):
+			seen := map[string]bool{}
+			for dec.More() {
+				kt, err := dec.Token()
+				if err != nil {
+					return "", err
+				}
+				k, _ := kt.(string)
+				p := k
+				if path != "" {
+					p = path + "." + k
+				}
+				if seen[k] {
+					return p, nil
+				}
+				seen[k] = true
+				if d, err := walk(p); d != "" || err != nil {
+					return d, err
+				}
+			}
+			_, err = dec.Token() // }
+			return "", err
+		case json.Delim('['):
+			for i := 0; dec.More(); i++ {
+				if d, err := walk(fmt.Sprintf("%s[%d]", path, i)); d != "" || err != nil {
+					return d, err
+				}
+			}
+			_, err = dec.Token() // ]
+			return "", err
+		}
+		return "", nil
+	}
+	d, _ := walk("")
+	return d
+}
+
+// unknownKeyPath finds the dotted path of the unknown key k in b (the
+// decoder names only the key): the first object member named k whose path
+// is not a known one. It returns k when it cannot tell.
+func unknownKeyPath(b []byte, k string) string {
+	var raw any
+	if json.Unmarshal(b, &raw) != nil {
+		return k
+	}
+	var find func(v any, path string) string
+	find = func(v any, path string) string {
+		switch v := v.(type) {
+		case map[string]any:
+			keys := make([]string, 0, len(v))
+			for key := range v {
+				keys = append(keys, key)
+			}
+			slices.Sort(keys)
+			for _, key := range keys {
+				p := key
+				if path != "" {
+					p = path + "." + key
+				}
+				if key == k {
+					return p
+				}
+				if f := find(v[key], p); f != "" {
+					return f
+				}
+			}
+		case []any:
+			for i, e := range v {
+				if f := find(e, fmt.Sprintf("%s[%d]", path, i)); f != "" {
+					return f
+				}
+			}
+		}
+		return ""
+	}
+	if p := find(raw, ""); p != "" {
+		return p
+	}
+	return k
 }
 
 // upperKey returns the dotted path of the first key (in sorted order) with
@@ -159,6 +300,25 @@ func upperKey(v any, path string) string {
 		}
 	}
 	return ""
+}
+
+// arrayLen returns the length of the array at the dotted path, if there is
+// one.
+func arrayLen(m map[string]any, path string) (int, bool) {
+	head, rest, nested := strings.Cut(path, ".")
+	v, ok := m[head]
+	if !ok {
+		return 0, false
+	}
+	if nested {
+		sub, ok := v.(map[string]any)
+		if !ok {
+			return 0, false
+		}
+		return arrayLen(sub, rest)
+	}
+	a, ok := v.([]any)
+	return len(a), ok
 }
 
 func hasKey(m map[string]any, path string) bool {
@@ -212,8 +372,9 @@ func (f *File) Validate(name string) error {
 	if !finite(f.Trend.SlopePerYear) || math.Abs(f.Trend.SlopePerYear) > MaxSlopePerYear {
 		return bad("trend.slope_per_year", "%v is not a plausible warming rate (|slope| ≤ %g degree a year)", f.Trend.SlopePerYear, MaxSlopePerYear)
 	}
-	if !(f.Seasonal.PeriodDays > 300 && f.Seasonal.PeriodDays < 400) {
-		return bad("seasonal.period_days", "%v is not a year length", f.Seasonal.PeriodDays)
+	if f.Seasonal.PeriodDays != calendar.DaysPerYear {
+		return bad("seasonal.period_days", "is %v, want %v: the seasonal period is fixed at the mean calendar year",
+			f.Seasonal.PeriodDays, calendar.DaysPerYear)
 	}
 	if len(f.Seasonal.Harmonics) == 0 {
 		return bad("seasonal.harmonics", "empty: at least one harmonic is needed")
@@ -236,8 +397,20 @@ func (f *File) Validate(name string) error {
 				return bad(key+"."+c.name, "%v is not a plausible coefficient (|%s| ≤ %g degrees)", c.v, c.name, MaxAmplitude)
 			}
 		}
-		if a := math.Hypot(h.Cos, h.Sin); a > MaxAmplitude {
+		a := math.Hypot(h.Cos, h.Sin)
+		if a > MaxAmplitude {
 			return bad(key, "amplitude √(cos² + sin²) = %.4g is beyond %g degrees", a, MaxAmplitude)
+		}
+		// The amplitude and phase restate cos and sin, which the simulation
+		// uses: an edit of one without the other would show one cycle and
+		// simulate another.
+		if h.Amplitude != 0 && !near(h.Amplitude, a) {
+			return bad(key+".amplitude", "%v disagrees with √(cos² + sin²) = %.6g: edit cos and sin, which the simulation uses",
+				h.Amplitude, a)
+		}
+		if th := math.Atan2(h.Cos, h.Sin); h.Phase != 0 && !near(math.Remainder(h.Phase-th, 2*math.Pi), 0) {
+			return bad(key+".phase", "%v disagrees with atan2(cos, sin) = %.6g: edit cos and sin, which the simulation uses",
+				h.Phase, th)
 		}
 	}
 	p := len(f.AR.Phi)
@@ -263,6 +436,10 @@ func (f *File) Validate(name string) error {
 	if sl := f.Slow; sl != nil {
 		if !(sl.Phi > 0 && sl.Phi < 1) {
 			return bad("slow.phi", "φ = %v, must be in (0, 1)", sl.Phi)
+		}
+		if e := -1 / math.Log(sl.Phi); sl.EFoldingDays != 0 && !near(sl.EFoldingDays, e) {
+			return bad("slow.e_folding_days", "%v disagrees with −1/ln φ = %.6g: edit slow.phi, which the simulation uses",
+				sl.EFoldingDays, e)
 		}
 		if !(sl.SD > 0) || !finite(sl.SD) || sl.SD > 50 {
 			return bad("slow.sd", "%v must be positive and at most 50", sl.SD)

@@ -1,8 +1,11 @@
 package model
 
 import (
+	"bytes"
+	"encoding/json"
 	"errors"
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -122,4 +125,69 @@ func TestStationaryGain(t *testing.T) {
 	if g := StationaryGain([]float64{p1, p2}); math.Abs(g-want) > 1e-9 {
 		t.Errorf("AR(2) gain %v, want %v", g, want)
 	}
+}
+
+// TestDecodeStrictness edits a valid model file's JSON text and checks each
+// edit is refused naming its key: a key given twice (encoding/json would
+// keep the last), a wrong kind of value (named by key, not Go field), an
+// unknown nested key (by its path), a period other than 365.25 days, an
+// amplitude, phase or e-folding time that disagrees with what it restates,
+// and a σ array short of twelve months.
+func TestDecodeStrictness(t *testing.T) {
+	t.Parallel()
+	f := valid()
+	f.Seasonal.Harmonics[0].Amplitude = math.Hypot(-10, -4)
+	f.Seasonal.Harmonics[0].Phase = math.Atan2(-10, -4)
+	f.Slow = &Slow{Phi: 0.986, SD: 0.75, EFoldingDays: -1 / math.Log(0.986), State: 0.2, StateSD: 0.3}
+	path := filepath.Join(t.TempDir(), "m.json")
+	if err := f.Write(path); err != nil {
+		t.Fatal(err)
+	}
+	good, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Decode(good, "m.json"); err != nil {
+		t.Fatalf("the valid file: %v", err)
+	}
+	for _, c := range []struct {
+		old, new, want string
+	}{
+		{`"family": "skew-t"`, `"family": "skew-t", "family": "normal"`, "m.json: key shocks.family: given twice"},
+		{`"df": 8`, `"df": "8"`, "m.json: key shocks.df: wrong kind of value: want a number, found a string"},
+		{`"phi": [`, `"phii": 1, "phi": [`, "m.json: key ar.phii: unknown key"},
+		{`"period_days": 365.25`, `"period_days": 365`, "m.json: key seasonal.period_days: is 365, want 365.25"},
+		{`"amplitude": 10.77`, `"amplitude": 99`, "m.json: key seasonal.harmonics[0].amplitude: 99 disagrees with √(cos² + sin²) = 10.7703"},
+		{`"e_folding_days": 70.9`, `"e_folding_days": 3`, "m.json: key slow.e_folding_days: 3 disagrees with −1/ln φ = 70.9"},
+		{`2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 2`, `2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 2`, "m.json: key volatility.monthly: has 11 values, want 12"},
+	} {
+		text := compact(good)
+		i := strings.Index(text, c.old)
+		if i < 0 {
+			t.Fatalf("%q not in the file:\n%s", c.old, text)
+		}
+		// Replace the key's whole value where the old text is a prefix.
+		edited := text[:i] + c.new + text[i+len(c.old):]
+		if c.old == `"amplitude": 10.77` || c.old == `"e_folding_days": 70.9` {
+			rest := text[i+len(c.old):]
+			j := strings.IndexAny(rest, ",}")
+			edited = text[:i] + c.new + rest[j:]
+		}
+		_, err := Decode([]byte(edited), "m.json")
+		if err == nil || !errors.Is(err, ErrInvalid) || !strings.HasPrefix(err.Error(), c.want) {
+			t.Errorf("%s → %s: error %v, want %q", c.old, c.new, err, c.want)
+		}
+	}
+}
+
+// compact writes JSON with ": " and ", " separators on one line, so that the
+// edits above match whatever the writer's indentation.
+func compact(b []byte) string {
+	var v any
+	json.Unmarshal(b, &v)
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.Encode(v)
+	s := strings.ReplaceAll(buf.String(), `":`, `": `)
+	return strings.ReplaceAll(s, ",", ", ")
 }
