@@ -92,7 +92,7 @@ func TestBadHedgeFiles(t *testing.T) {
 		{"negative premium", withLine(15, "premium = -1"), `bad.toml:15: key contract.premium (contract "b"): -1: want`},
 		// Bounds that keep payouts, their squares and sums finite (a tick
 		// of 1e300 made the net cost's variance NaN and the JSON fail).
-		{"29 February alone", withLine(11, `period = "02-29:02-29"`), `bad.toml:11: key contract.period (contract "b"): window "02-29:02-29" has no days in 2001`},
+		{"29 February alone", withLine(11, `period = "02-29:02-29"`), `bad.toml:11: key contract.period (contract "b"): period "02-29:02-29" has no days in 2001`},
 		{"formula name", withLine(9, `name = "=cmd"`), `bad.toml:9: key contract.name (contract "=cmd"): "=cmd": want a name that does not start with =`},
 		{"huge tick", withLine(14, "tick = 1e300"), `bad.toml:14: key contract.tick (contract "b"): 1e+300: want an amount above 0 and at most 10⁹`},
 		{"huge quantity", withLine(15, "quantity = 1e7"), `bad.toml:15: key contract.quantity (contract "b"): 1e+07: want`},

@@ -84,7 +84,7 @@ func ParsePeriod(name string, y int) (Period, error) {
 // ErrPeriod is wrapped by the error for a window that has no days in the
 // target year (02-29:02-29 outside a leap year), or fewer than the cold
 // snap's: a usage error.
-var ErrPeriod = errors.New("sim: window")
+var ErrPeriod = errors.New("sim: period")
 
 // monthDay parses MM-DD, allowing 02-29.
 func monthDay(s string) (time.Month, int, error) {

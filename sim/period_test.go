@@ -192,3 +192,13 @@ func TestSnapLongerThanPeriod(t *testing.T) {
 		t.Errorf("a 3-day period with a 3-day snap: %v", err)
 	}
 }
+
+// TestPeriodListedTwice: a period named twice would give every one of its
+// rows twice in the JSON and CSV; it is a period error (a usage error).
+func TestPeriodListedTwice(t *testing.T) {
+	m := flatModel(10, 0.7, 2, model.FamilyNormal, 0)
+	_, err := Run(context.Background(), m, Config{Paths: 10, Periods: []string{"year", "jan", "year"}, Bases: BasesFor(model.Celsius)})
+	if !errors.Is(err, ErrPeriod) || !strings.Contains(err.Error(), `"year" is listed twice`) {
+		t.Errorf("error %v", err)
+	}
+}

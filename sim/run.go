@@ -269,6 +269,11 @@ func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
 		if err != nil {
 			return nil, err
 		}
+		for _, q := range periods[:i] {
+			if q.Name == p.Name {
+				return nil, fmt.Errorf("%w %q is listed twice", ErrPeriod, name)
+			}
+		}
 		if cfg.SnapDays > p.Days() {
 			// A k-day cold snap has no window in a shorter period: its
 			// lowest k-day mean would be +∞.
