@@ -558,6 +558,7 @@ func TestReadDemandLoadColumn(t *testing.T) {
 	for _, c := range []struct{ col, want string }{
 		{"gas", `d.csv:1: load column "gas" not found; columns found: "date", "sendout_gj", "holiday", "load"`},
 		{"Date", `d.csv:1: load column "Date" is the date column`},
+		{"holiday", `d.csv:1: the load column "holiday" is the holiday flag's`},
 	} {
 		_, err := ReadDemand(strings.NewReader(text.String()), "d.csv", DemandReadOptions{LoadColumn: c.col})
 		if err == nil || !strings.Contains(err.Error(), c.want) {

@@ -120,6 +120,9 @@ func (p *demandParser) readHeader() error {
 		p.load = p.find(loadNames, "the load", true)
 		p.needColumn(p.load, "load", loadNames)
 	}
+	if p.load >= 0 && p.load == p.holiday {
+		p.errorf(1, 0, "", "the load column %q is the holiday flag's: name the column of the loads (--load-column)", p.header[p.load])
+	}
 	if len(p.errs) > 0 {
 		return p.errList()
 	}
