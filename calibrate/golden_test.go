@@ -150,7 +150,7 @@ func TestFitMatchesR(t *testing.T) {
 			for k := 1; k <= MaxHarmonics; k++ {
 				var o goldenOLS
 				json.Unmarshal(g.OLS["K"+string(rune('0'+k))], &o)
-				near(t, "BIC of K harmonics", d.HarmonicsTable[k-1].BIC, o.BIC, tolExact)
+				near(t, "OLS BIC of K harmonics", d.HarmonicsTable[k-1].BICIndependent, o.BIC, tolExact)
 			}
 
 			near(t, "φ (conditional least squares)", m.AR.Phi[0], g.AR1.Phi, tolExact)
@@ -223,11 +223,36 @@ func TestFitMatchesR(t *testing.T) {
 	}
 }
 
-func TestHarmonicsChosenByBICMatchR(t *testing.T) {
+// TestHarmonicsChosenByPrewhitenedBIC checks the harmonics table against
+// testdata/noaa/harmonics_prewhitened.py (numpy's least squares): the
+// residuals' lag-1 autocorrelation ρ, each K's prewhitened BIC, the K it
+// prefers (New York 1, where the OLS BIC that R's lm gives prefers 4), and
+// the OLS column against R (golden.json).
+func TestHarmonicsChosenByPrewhitenedBIC(t *testing.T) {
 	t.Parallel()
+	b, err := os.ReadFile("../testdata/noaa/harmonics_prewhitened.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var ref map[string]json.RawMessage
+	if err := json.Unmarshal(b, &ref); err != nil {
+		t.Fatal(err)
+	}
 	for city, g := range loadGolden(t) {
-		var best int
-		json.Unmarshal(g.OLS["best_k_bic"], &best)
+		var want struct {
+			Rho       float64
+			Harmonics []struct {
+				K           int
+				Prewhitened float64 `json:"bic_prewhitened"`
+				OLS         float64 `json:"bic_ols"`
+			}
+			BestK int `json:"best_k"`
+		}
+		if err := json.Unmarshal(ref[city], &want); err != nil {
+			t.Fatal(err)
+		}
+		var bestR int
+		json.Unmarshal(g.OLS["best_k_bic"], &bestR)
 		s, err := ReadFile("../testdata/noaa/"+city+".csv", ReadOptions{Units: Celsius})
 		if err != nil {
 			t.Fatal(err)
@@ -236,8 +261,15 @@ func TestHarmonicsChosenByBICMatchR(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got := len(res.Model.Seasonal.Harmonics); got != best {
-			t.Errorf("%s: BIC chose %d harmonics, R's BIC table prefers %d", city, got, best)
+		d := res.Model.Diagnostics
+		near(t, city+" ρ", d.HarmonicsRho, want.Rho, tolExact)
+		for i, w := range want.Harmonics {
+			near(t, city+" prewhitened BIC", d.HarmonicsTable[i].BIC, w.Prewhitened, tolExact)
+			near(t, city+" OLS BIC (numpy)", d.HarmonicsTable[i].BICIndependent, w.OLS, tolExact)
 		}
+		if got := len(res.Model.Seasonal.Harmonics); got != want.BestK {
+			t.Errorf("%s: chose %d harmonics, the prewhitened BIC prefers %d", city, got, want.BestK)
+		}
+		t.Logf("%s: ρ %.3f, %d harmonics (R's OLS BIC table prefers %d)", city, d.HarmonicsRho, want.BestK, bestR)
 	}
 }

@@ -288,7 +288,8 @@ func TestSlowRecoveryOverRecords(t *testing.T) {
 }
 
 // TestShortSlowAdvice: a slow part kept on four years (New York 2012–2015
-// fits an e-folding time of 155 days) draws the caution; on the demo's 71
+// fitted with four harmonics has an e-folding time of 155 days) draws the
+// caution; on the demo's 71
 // years with 71 days it does not; 15 years with a 300-day e-folding time
 // (12 spans) still does.
 func TestShortSlowAdvice(t *testing.T) {
@@ -309,10 +310,11 @@ func TestShortSlowAdvice(t *testing.T) {
 		}
 	}
 	// The state's expected effect on the next 90 days' mean: the geometric
-	// sum state·φ(1 − φ⁹⁰)/(90(1 − φ)) (+2.4 °C for New York 2012–2015's
-	// +3.14 °C with an e-folding time of 155 days). Where the record's
-	// spread fails the fast-only band (New York's 151- and 365-day), the
-	// advice does not send the reader to --slow none.
+	// sum state·φ(1 − φ⁹⁰)/(90(1 − φ)) (+2.4 °C for a state of +3.14 °C
+	// with an e-folding time of 155 days, New York 2012–2015 fitted with
+	// four harmonics). Where the record's spread fails the fast-only band
+	// (New York's 151- and 365-day), the advice does not send the reader to
+	// --slow none.
 	phi := math.Exp(-1.0 / 155)
 	sl := &model.Slow{Phi: phi, EFoldingDays: 155, SD: 1.53, SDSE: 0.47, State: 3.14, StateSD: 0.88}
 	effect := 3.14 * phi * (1 - math.Pow(phi, 90)) / (90 * (1 - phi))

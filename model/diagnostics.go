@@ -7,6 +7,9 @@ type Diagnostics struct {
 	ARPairs      int `json:"ar_rows"`      // days with all p lags present, used in the AR fit
 
 	HarmonicsTable []OrderScore `json:"harmonics_bic"` // K = 1..4
+	// HarmonicsRho is the lag-1 autocorrelation of the residuals of the
+	// largest mean model, which prewhitens the harmonics table's BIC.
+	HarmonicsRho float64 `json:"harmonics_prewhitening_rho,omitempty"`
 	// ARTable scores the fast AR order p = 1..5 by BIC from the exact
 	// likelihood, with the slow part in the model when it was considered.
 	ARTable []OrderScore `json:"ar_bic"`
@@ -57,9 +60,13 @@ type Diagnostics struct {
 
 // OrderScore is one row of a model-order table.
 type OrderScore struct {
-	Order  int     `json:"order"`
-	BIC    float64 `json:"bic"`
-	Chosen bool    `json:"chosen"`
+	Order int     `json:"order"`
+	BIC   float64 `json:"bic"`
+	// BICIndependent is, in the harmonics table, the OLS BIC that takes
+	// the days as independent (BIC there is the prewhitened one that
+	// chooses); absent elsewhere.
+	BICIndependent float64 `json:"bic_independent,omitempty"`
+	Chosen         bool    `json:"chosen"`
 }
 
 // FamilyScore is one row of the shock-family table.

@@ -61,8 +61,9 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 
 	dg := f.Diagnostics
 	if dg != nil {
-		e.printf("\nHarmonics by BIC (lower is better)\n")
-		e.table([]string{"K", "BIC", ""}, orderRows(dg.HarmonicsTable))
+		title, head, rows := HarmonicsTable(dg)
+		e.printf("\n%s\n", Wrap(title, "  "))
+		e.table(head, rows)
 	}
 
 	if f.Slow != nil {
@@ -270,6 +271,24 @@ func verdict(p float64) string {
 		return "rejected"
 	}
 	return "not rejected"
+}
+
+// HarmonicsTable lays out the harmonics table: the prewhitened BIC that
+// chooses K and, beside it, the OLS BIC that takes the days as independent
+// (files from before the prewhitening have only the latter, as BIC). The
+// terminal and the report show the same cells.
+func HarmonicsTable(dg *model.Diagnostics) (title string, head []string, rows [][]string) {
+	if dg.HarmonicsRho == 0 {
+		return "Harmonics by BIC (lower is better)", []string{"K", "BIC", ""}, orderRows(dg.HarmonicsTable)
+	}
+	title = fmt.Sprintf("Harmonics by BIC (lower is better) of the mean model with AR(1) errors: the regression prewhitened "+
+		"by the residuals' lag-1 autocorrelation ρ = %.3f; beside it the OLS BIC, which takes the days as independent and "+
+		"so favours more harmonics", dg.HarmonicsRho)
+	rows = orderRows(dg.HarmonicsTable)
+	for i, r := range dg.HarmonicsTable {
+		rows[i] = append(rows[i][:2], Num(r.BICIndependent, 1), rows[i][2])
+	}
+	return title, []string{"K", "BIC", "OLS BIC", ""}, rows
 }
 
 func orderRows(s []model.OrderScore) [][]string {

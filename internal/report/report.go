@@ -573,7 +573,13 @@ func orderTables(m *model.File) []textTable {
 		}
 		tables = append(tables, newTextTable("order", caption, []string{col, "BIC", "Δ BIC", ""}, rows, 1, 2))
 	}
-	orderTable("Seasonal harmonics by BIC", "harmonics K", dg.HarmonicsTable)
+	if dg.HarmonicsRho != 0 {
+		title, head, rows := render.HarmonicsTable(dg)
+		head[0] = "harmonics K"
+		tables = append(tables, newTextTable("order", title, head, rows, 1, 2))
+	} else {
+		orderTable("Seasonal harmonics by BIC", "harmonics K", dg.HarmonicsTable)
+	}
 	orderTable("Fast AR order by BIC (exact likelihood; with the slow part in the model when it was considered)", "order p", dg.ARTable)
 	if len(dg.ShockTable) > 0 {
 		best := math.Inf(1)
