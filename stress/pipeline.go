@@ -400,10 +400,22 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 // those of a whole season in the target year's climate, not of this one
 // as it stands. (A conditional start refuses such periods.)
 func underWayWarnings(m *model.File, cfg sim.Config, periods []sim.Period) []string {
-	if cfg.Observed != nil || cfg.Start == sim.StartConditional {
+	end := m.Data.LastDate
+	if cfg.Observed != nil {
+		// A season under way asked for, but no period of the run is under
+		// way at the data end (--year names a later one): the record only
+		// sets the start state.
+		for _, p := range periods {
+			if p.From <= end && end < p.To {
+				return nil
+			}
+		}
+		return []string{fmt.Sprintf("no period of this run was under way at the data end (%s): the observed record "+
+			"counts no days and only sets the start state, as --start conditional would", end)}
+	}
+	if cfg.Start == sim.StartConditional {
 		return nil
 	}
-	end := m.Data.LastDate
 	var out []string
 	for _, p := range periods {
 		if p.From <= end && end < p.To {

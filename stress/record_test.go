@@ -86,4 +86,11 @@ func TestUnderWayWarnings(t *testing.T) {
 	if got := underWayWarnings(m, sim.Config{Year: 2026, Observed: &sim.Observed{}}, ps); got != nil {
 		t.Errorf("season under way: %q", got)
 	}
+	// A season under way asked for with --year naming a later season: the
+	// observed days count for nothing, and the run says so.
+	later := []sim.Period{{Name: "heating", From: calendar.FromYMD(2026, 11, 1), To: calendar.FromYMD(2027, 3, 31)}}
+	if got := underWayWarnings(m, sim.Config{Year: 2027, Observed: &sim.Observed{}}, later); len(got) != 1 ||
+		!strings.HasPrefix(got[0], "no period of this run was under way at the data end (2025-12-31)") {
+		t.Errorf("observed record, later season: %q", got)
+	}
 }

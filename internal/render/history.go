@@ -42,9 +42,10 @@ func HistoryTable(h *stress.HistoricalSeasons, units string) (title string, head
 		}
 		// The sds and their band to two significant digits of the smallest,
 		// so that a verdict is visible in the numbers beside it.
-		d := sdDecimals(min(r.SD, r.ModelSD, r.SDBand[0]))
+		d := apartDecimals(sdDecimals(min(r.SD, r.ModelSD, r.SDBand[0])), r.SD, r.SDBand)
+		md := apartDecimals(1, r.Mean, r.MeanBand)
 		rows = append(rows, []string{r.Index.Info().Name, r.Period, r.Index.Info().Unit(model.Units(units), ""), fmt.Sprint(len(r.Values)),
-			numfmt.Fixed(r.Mean, 1), numfmt.Fixed(r.ModelMean, 1), numfmt.Fixed(r.MeanBand[0], 1) + " to " + numfmt.Fixed(r.MeanBand[1], 1),
+			numfmt.Fixed(r.Mean, md), numfmt.Fixed(r.ModelMean, md), numfmt.Fixed(r.MeanBand[0], md) + " to " + numfmt.Fixed(r.MeanBand[1], md),
 			r.MeanVerdict, numfmt.Fixed(r.SD, d), numfmt.Fixed(r.ModelSD, d),
 			numfmt.Fixed(r.SDBand[0], d) + "–" + numfmt.Fixed(r.SDBand[1], d), r.SDVerdict,
 			recordP5P95(r), worst})
@@ -111,6 +112,18 @@ func sdDecimals(lo float64) int {
 		return 1
 	}
 	return min(max(1, 1-int(math.Floor(math.Log10(lo)))), 4)
+}
+
+// apartDecimals raises d until v and the band edges it lies outside of read
+// apart ("3.3 against 2.4–3.3" says nothing), to at most four decimals.
+func apartDecimals(d int, v float64, band [2]float64) int {
+	for _, edge := range band {
+		for d < 4 && (v > band[1] && edge == band[1] || v < band[0] && edge == band[0]) &&
+			numfmt.Fixed(v, d) == numfmt.Fixed(edge, d) {
+			d++
+		}
+	}
+	return d
 }
 
 // oneIn writes a probability as a return period in years: "137", or

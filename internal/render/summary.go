@@ -270,7 +270,7 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		for _, row := range h.Rows {
 			// The indices the key figures show.
 			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
-				d := sdDecimals(min(row.SD, row.SDBand[0]))
+				d := apartDecimals(sdDecimals(min(row.SD, row.SDBand[0])), row.SD, row.SDBand)
 				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
 				outside = append(outside, fmt.Sprintf("%s, %s %s%s%s against %s–%s%s%s (%s)", row.Index.Info().Name, row.Period,
 					numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d), numfmt.Fixed(row.SDBand[1], d), Glue, unit,
@@ -284,8 +284,9 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		for _, row := range h.Rows {
 			if historyShown(row) && row.MeanVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
 				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
+				d := apartDecimals(1, row.Mean, row.MeanBand)
 				level = append(level, fmt.Sprintf("%s, %s %s%s%s against %s to %s%s%s over %d seasons (%s)", row.Index.Info().Name,
-					row.Period, numfmt.Fixed(row.Mean, 1), Glue, unit, numfmt.Fixed(row.MeanBand[0], 1), numfmt.Fixed(row.MeanBand[1], 1),
+					row.Period, numfmt.Fixed(row.Mean, d), Glue, unit, numfmt.Fixed(row.MeanBand[0], d), numfmt.Fixed(row.MeanBand[1], d),
 					Glue, unit, len(row.Values), row.MeanVerdict))
 			}
 		}

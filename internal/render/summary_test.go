@@ -163,3 +163,25 @@ func TestSmallSampleCautions(t *testing.T) {
 		t.Errorf("oneIn(0.954) = %q", got)
 	}
 }
+
+// TestApartDecimals: a value outside a band reads apart from the edge it
+// passes ("3.3 against 2.4–3.3" said nothing); inside, or already apart,
+// the decimals stay.
+func TestApartDecimals(t *testing.T) {
+	for _, c := range []struct {
+		d    int
+		v    float64
+		band [2]float64
+		want int
+	}{
+		{1, 3.32, [2]float64{2.41, 3.30}, 2},
+		{1, 3.5, [2]float64{2.2, 3.0}, 1},
+		{1, 3.0, [2]float64{2.2, 3.1}, 1},     // inside
+		{1, -2.04, [2]float64{-2.03, 0.6}, 2}, // below, -2.0 against -2.0
+		{1, 3.30001, [2]float64{2, 3.3}, 4},   // at most four decimals
+	} {
+		if got := apartDecimals(c.d, c.v, c.band); got != c.want {
+			t.Errorf("apartDecimals(%d, %v, %v) = %d, want %d", c.d, c.v, c.band, got, c.want)
+		}
+	}
+}
