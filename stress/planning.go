@@ -22,6 +22,11 @@ const DefaultSnapDays = 3
 // days over the capacity than this.
 const topDays = 40
 
+// maxDaysTarget is the largest days:x capacity target: a quarter of the
+// days a solve keeps, so that paths with more days over the capacity than
+// it counts stay rare (days:400 "achieved" 40, the count's ceiling).
+const maxDaysTarget = topDays / 4
+
 // capacityBatches split the paths to measure a solved capacity's Monte
 // Carlo error (the spread of the batches' solutions).
 const capacityBatches = 10
@@ -127,7 +132,8 @@ type CapacityTarget struct {
 // ParseCapacityTarget reads a capacity target.
 func ParseCapacityTarget(s string) (CapacityTarget, error) {
 	kind, v, ok := strings.Cut(strings.TrimSpace(s), ":")
-	bad := fmt.Errorf("stress: capacity target %q: want peak:1-in-T (T > 1), days:x (x ≥ 0 days a year) or any:p (0 < p < 1)", s)
+	bad := fmt.Errorf("stress: capacity target %q: want peak:1-in-T (T > 1), days:x (0 ≤ x ≤ %d days a year) or any:p (0 < p < 1)",
+		s, maxDaysTarget)
 	if !ok {
 		return CapacityTarget{}, bad
 	}
@@ -139,7 +145,7 @@ func ParseCapacityTarget(s string) (CapacityTarget, error) {
 	case "days", "any":
 		t.Value, err = strconv.ParseFloat(v, 64)
 		if err == nil && (math.IsNaN(t.Value) || t.Value < 0 || kind == "any" && !(t.Value > 0 && t.Value < 1) ||
-			math.IsInf(t.Value, 0)) {
+			kind == "days" && t.Value > maxDaysTarget || math.IsInf(t.Value, 0)) {
 			err = bad
 		}
 	default:

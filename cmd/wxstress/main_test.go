@@ -115,6 +115,8 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--return-periods", "1e17"}, exitUsage, "at most 1,000,000"},
 		{[]string{"simulate", "--model", "m.json", "--design", "1-in-1e17"}, exitUsage, "at most 1,000,000"},
 		{[]string{"simulate", "--model", "m.json", "--capacity-target", "peak:1-in-1e17"}, exitUsage, "at most 1,000,000"},
+		// A solve keeps each path's 40 highest days: days:400 "achieved" 40.
+		{[]string{"simulate", "--model", "m.json", "--capacity-target", "days:400"}, exitUsage, "days:x (0 ≤ x ≤ 10)"},
 		{[]string{"simulate", "--model", "m.json", "--uncertainty-mode", "mix"}, exitUsage, "--uncertainty-mode goes with --uncertainty"},
 	}
 	for _, c := range cases {

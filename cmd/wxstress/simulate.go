@@ -217,7 +217,7 @@ func (o *simulateOptions) validate() error {
 	for _, tg := range o.targets {
 		c, err := stress.ParseCapacityTarget(tg)
 		if err != nil {
-			return usagef("simulate: --capacity-target %q: want peak:1-in-T (T above 1, at most 1,000,000), days:x or any:p", tg)
+			return usagef("simulate: --capacity-target %q: want peak:1-in-T (T above 1, at most 1,000,000), days:x (0 ≤ x ≤ 10) or any:p (0 < p < 1)", tg)
 		}
 		o.capTarget = append(o.capTarget, c)
 	}
