@@ -174,14 +174,22 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 		}
 		fits[K] = fit
 	}
-	if !set.Lean {
-		d.HarmonicsRho = residualRho(designs[MaxHarmonics], y, obs, fits[MaxHarmonics])
+	// Too few pairs of consecutive days (a record with every other day
+	// missing) leave no ρ: the OLS BIC chooses alone.
+	prewhiten := !set.Lean
+	if prewhiten {
+		rho, pairs := residualRho(designs[MaxHarmonics], y, obs, fits[MaxHarmonics])
+		_, kmax := designs[MaxHarmonics].Dims()
+		prewhiten = pairs > kmax+2 && !math.IsNaN(rho) && math.Abs(rho) < 1
+		if prewhiten {
+			d.HarmonicsRho = rho
+		}
 	}
 	for K := 1; K <= MaxHarmonics; K++ {
 		row := model.OrderScore{Order: K}
 		if designs[K] != nil {
 			row.BIC = fits[K].BIC()
-			if !set.Lean {
+			if prewhiten {
 				pw, err := prewhitenedBIC(designs[K], y, obs, d.HarmonicsRho)
 				if err != nil {
 					return nil, fmt.Errorf("%s: %w: mean model with %d harmonics, prewhitened: %w", s.Name, ErrFit, K, err)
@@ -363,9 +371,9 @@ func dataInfo(s *Series) model.Data {
 }
 
 // residualRho returns the lag-1 autocorrelation of the residuals of fit (of
-// y on x), over the pairs of consecutive observed days: Σ r(t)r(t−1) /
-// Σ r(t−1)².
-func residualRho(x *mat.Dense, y []float64, obs []int, fit olsFit) float64 {
+// y on x), over the pairs of consecutive observed days, Σ r(t)r(t−1) /
+// Σ r(t−1)², and the number of pairs (NaN without any).
+func residualRho(x *mat.Dense, y []float64, obs []int, fit olsFit) (float64, int) {
 	r := make([]float64, len(y))
 	_, k := x.Dims()
 	for i := range y {
@@ -377,13 +385,18 @@ func residualRho(x *mat.Dense, y []float64, obs []int, fit olsFit) float64 {
 		r[i] = v
 	}
 	var num, den float64
+	pairs := 0
 	for i := 1; i < len(y); i++ {
 		if obs[i] == obs[i-1]+1 {
 			num += r[i] * r[i-1]
 			den += r[i-1] * r[i-1]
+			pairs++
 		}
 	}
-	return num / den
+	if den == 0 {
+		return math.NaN(), pairs
+	}
+	return num / den, pairs
 }
 
 // prewhitenedBIC is the BIC of the regression of y(t) − ρ·y(t−1) on

@@ -373,3 +373,22 @@ func TestShortRealRecordsCautioned(t *testing.T) {
 		}
 	}
 }
+
+// TestEveryOtherDayMissing: a record with no two consecutive days has no
+// lag-1 autocorrelation to prewhiten the harmonics table with, nor an AR to
+// fit; the fit fails with ErrFit, naming the file (the prewhitening once
+// panicked on it).
+func TestEveryOtherDayMissing(t *testing.T) {
+	s := &Series{Name: "alt.csv", Start: calendar.FromYMD(2000, time.January, 1), Units: Celsius}
+	for i := range 20 * 365 {
+		v := math.NaN()
+		if i%2 == 0 {
+			v = 10 + 10*math.Cos(2*math.Pi*(float64(i)-200)/calendar.DaysPerYear) + 3*math.Sin(1.7*float64(i))
+		}
+		s.Temps = append(s.Temps, v)
+	}
+	_, err := Fit(s, nil)
+	if !errors.Is(err, ErrFit) || !strings.HasPrefix(err.Error(), "alt.csv: ") {
+		t.Errorf("error %v", err)
+	}
+}

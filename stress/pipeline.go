@@ -301,6 +301,14 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 					side.name, numfmt.Number(side.c.Slope), res.Demand.Unit, side.name))
 			}
 		}
+		// The fit's check of the noise on the coldest days, where peak days
+		// fall: a model too narrow there understates every peak-day figure.
+		if c := res.Demand.Noise.Cold; c != nil && c.Observed > 0 && c.Model/c.Observed < 0.9 {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model's noise on the coldest 5 %% of its record's days "+
+				"is narrower than the record's (sd %s against %s %s, %.0f %%): its peak-day demand, design-day demand and "+
+				"capacities are likely too low", numfmt.Number(c.Model), numfmt.Number(c.Observed), res.Demand.Unit,
+				100*c.Model/c.Observed))
+		}
 		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
 				"has no holidays (--holidays FILE gives them): its years are simulated without any",

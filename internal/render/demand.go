@@ -132,9 +132,9 @@ func DemandSummaryWith(w io.Writer, m *model.Demand, normals []sim.YearNormal) e
 		line := fmt.Sprintf("  On the coldest 5%% of days (%d, mean below %s %s) the innovations' sd is %s against %s from the noise model",
 			c.Days, Num(c.Below, 1), u, numfmt.Fixed(c.Observed, 0), numfmt.Fixed(c.Model, 0))
 		if r := c.Model / c.Observed; r < 0.9 {
-			line += fmt.Sprintf(": the model's peak-day spread is too narrow (%.0f %%)", 100*r)
+			line += fmt.Sprintf(": the model's peak-day spread is too narrow (its sd %.0f %% of the observed)", 100*r)
 		} else {
-			line += fmt.Sprintf(" (%.0f %%)", 100*c.Model/c.Observed)
+			line += fmt.Sprintf(" (its sd %.0f %% of the observed)", 100*c.Model/c.Observed)
 		}
 		e.printf("%s\n", Wrap(line, "  "))
 	}
