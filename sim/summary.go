@@ -29,19 +29,16 @@ type Row struct {
 	Dates *DateSpread
 }
 
-// Season tells what kind of period a run's period is, from its own rows: cold
-// (named heating, or its mean CDD under a twentieth of its mean HDD: a
-// winter month) or warm (named cooling, or the reverse: July). A period
-// where both matter (the year, a shoulder season) is neither. Heating
-// figures (HDD, the coldest day, the design day) of a warm period and
-// cooling figures of a cold one are small remainders nobody plans on.
+// Season tells what kind of period a run's period is, from its own rows:
+// cold (more HDD than CDD on average, and either named heating or with CDD
+// under a twentieth of its HDD: a winter month) or warm (the reverse:
+// the cooling season, July). The degree days decide first, so a southern
+// station's "heating" (November to March, its summer) is not cold; the name
+// only settles the middle ground. A period where both matter (the year, a
+// shoulder season) is neither, as is one without both rows. Heating figures
+// (HDD, the coldest day, the design day) of a warm period and cooling
+// figures of a cold one are small remainders nobody plans on.
 func Season(rows []Row, period string) (cold, warm bool) {
-	switch period {
-	case "heating":
-		return true, false
-	case "cooling":
-		return false, true
-	}
 	hdd, cdd := math.NaN(), math.NaN()
 	for _, r := range rows {
 		if r.Period == period && r.Index == HDD {
@@ -51,7 +48,9 @@ func Season(rows []Row, period string) (cold, warm bool) {
 			cdd = r.Tail.Mean
 		}
 	}
-	return cdd < hdd/20, hdd < cdd/20 // false when either is missing (NaN)
+	cold = hdd > cdd && (period == "heating" || cdd < hdd/20)
+	warm = cdd > hdd && (period == "cooling" || hdd < cdd/20)
+	return cold, warm // false when either is missing (NaN)
 }
 
 // DateSpread is the distribution of a date across paths: the median date

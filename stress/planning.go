@@ -103,13 +103,21 @@ func designRows(rows []sim.Row, standards []float64) []DesignRow {
 	}
 	var out []DesignRow
 	for _, p := range periods {
-		if _, warm := sim.Season(rows, p); warm {
-			continue // the coldest day of a summer is no design day
+		// The coldest day of a summer is no design day: a warm period keeps
+		// its demand figures (a summer-peaking load's design day) and
+		// leaves its temperatures out, or leaves the table without demand.
+		_, warm := sim.Season(rows, p)
+		if warm && find(sim.PeakDemand, p) == nil {
+			continue
 		}
 		for _, T := range standards {
 			d := DesignRow{Period: p, T: T, ColdestBand: Band{math.NaN(), math.NaN()}, PeakBand: Band{math.NaN(), math.NaN()}}
-			d.Coldest, d.ColdestSE = level(find(sim.Coldest, p), T)
-			d.Snap, d.SnapSE = level(find(sim.ColdSnap, p), T)
+			if !warm {
+				d.Coldest, d.ColdestSE = level(find(sim.Coldest, p), T)
+				d.Snap, d.SnapSE = level(find(sim.ColdSnap, p), T)
+			} else {
+				d.Coldest, d.ColdestSE, d.Snap, d.SnapSE = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+			}
 			d.Peak, d.PeakSE = level(find(sim.PeakDemand, p), T)
 			d.SnapEnergy, d.SnapEnerSE = level(find(sim.SnapEnergy, p), T)
 			out = append(out, d)

@@ -48,6 +48,8 @@ func TestOccurs(t *testing.T) {
 		{Index: sim.HDD, Period: "jul", Tail: withMean(4.8)}, {Index: sim.CDD, Period: "jul", Tail: withMean(230)},
 		{Index: sim.HDD, Period: "jan", Tail: withMean(560)}, {Index: sim.CDD, Period: "jan", Tail: withMean(3)},
 		{Index: sim.HDD, Period: "year", Tail: withMean(3026)}, {Index: sim.CDD, Period: "year", Tail: withMean(309)},
+		{Index: sim.HDD, Period: "heating", Tail: withMean(2148)}, {Index: sim.CDD, Period: "heating", Tail: withMean(0.4)},
+		{Index: sim.HDD, Period: "cooling", Tail: withMean(220)}, {Index: sim.CDD, Period: "cooling", Tail: withMean(307)},
 	}
 	for _, c := range []struct {
 		x      sim.Index
@@ -74,6 +76,21 @@ func TestOccurs(t *testing.T) {
 	} {
 		if got := occurs(sim.Row{Index: c.x, Period: c.period, Tail: c.tail}, rows); got != c.want {
 			t.Errorf("%v, %s: occurs %v, want %v", c.x.Info().Key, c.period, got, c.want)
+		}
+	}
+	// A southern station: its "heating" (November to March) is its summer,
+	// its "cooling" (May to September) its winter; the degree days decide.
+	south := []sim.Row{
+		{Index: sim.HDD, Period: "heating", Tail: withMean(12)}, {Index: sim.CDD, Period: "heating", Tail: withMean(610)},
+		{Index: sim.HDD, Period: "cooling", Tail: withMean(1400)}, {Index: sim.CDD, Period: "cooling", Tail: withMean(25)},
+	}
+	for _, c := range []struct {
+		x      sim.Index
+		period string
+		want   bool
+	}{{sim.Coldest, "heating", false}, {sim.CDD, "heating", true}, {sim.Coldest, "cooling", true}, {sim.CDD, "cooling", false}} {
+		if got := occurs(sim.Row{Index: c.x, Period: c.period, Tail: some}, south); got != c.want {
+			t.Errorf("southern %v, %s: occurs %v, want %v", c.x.Info().Key, c.period, got, c.want)
 		}
 	}
 }
