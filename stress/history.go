@@ -57,14 +57,20 @@ type HistoryRow struct {
 	// SDVerdict is "inside", "model too narrow" or "model too wide".
 	SDVerdict string
 	// MeanBand is the 5–95 % range of the mean of len(Values) seasons
-	// drawn at random from the simulated years: a record mean outside it
-	// is evidence that the model's level is wrong for this index (the
-	// design-day temperature of a model whose coldest days are too mild).
+	// drawn at random from the simulated years (widened for the Monte Carlo
+	// error of the model's own mean): a record mean outside it is evidence
+	// that the model's level is wrong for this index (the design-day
+	// temperature of a model whose coldest days are too mild).
 	MeanBand [2]float64
 	// MeanVerdict is "inside", "model too mild" (the record's seasons are
 	// on average worse, on the index's adverse side, than the band allows)
 	// or "model too severe".
 	MeanVerdict string
+	// MeanP and SDP are the two-sided resampling p-values of the record's
+	// mean and sd against the same draws: (1 + draws at least as far out on
+	// the record's side)/(1 + draws), doubled, at most 1. They take the
+	// record's seasons as independent.
+	MeanP, SDP float64
 }
 
 // HistoricalSeasons is the record's own seasons beside the model.
@@ -183,7 +189,10 @@ func summarizeHistory(row *HistoryRow, sims []float64, high bool, seed uint64) {
 	}
 
 	// The sampling ranges of the mean and sd of len(v) seasons under the
-	// model.
+	// model: n seasons drawn from the m simulated years, their spread about
+	// its middle widened by √(1 + n/m) for the Monte Carlo error of the
+	// model's own figure (the variance of a difference of two independent
+	// means, s²/n + s²/m; the same first-order factor for the sd).
 	r := rand.New(rand.NewPCG(seed, 0x4157))
 	means, sds := make([]float64, sdBandDraws), make([]float64, sdBandDraws)
 	draw := make([]float64, len(v))
@@ -195,6 +204,14 @@ func summarizeHistory(row *HistoryRow, sims []float64, high bool, seed uint64) {
 	}
 	slices.Sort(means)
 	slices.Sort(sds)
+	f := math.Sqrt(1 + float64(len(v))/float64(len(sims)))
+	for _, d := range [][]float64{means, sds} {
+		c := d[len(d)/2]
+		for i := range d {
+			d[i] = c + f*(d[i]-c) // keeps the order
+		}
+	}
+	row.MeanP, row.SDP = resampledP(means, row.Mean), resampledP(sds, row.SD)
 	row.MeanBand = [2]float64{stat.Quantile(0.05, stat.LinInterp, means, nil), stat.Quantile(0.95, stat.LinInterp, means, nil)}
 	row.SDBand = [2]float64{stat.Quantile(0.05, stat.LinInterp, sds, nil), stat.Quantile(0.95, stat.LinInterp, sds, nil)}
 	worse, better := row.Mean > row.MeanBand[1], row.Mean < row.MeanBand[0]
@@ -217,6 +234,22 @@ func summarizeHistory(row *HistoryRow, sims []float64, high bool, seed uint64) {
 	default:
 		row.SDVerdict = "inside"
 	}
+}
+
+// resampledP is the two-sided p-value of v among the resampled values
+// draws: 2·(1 + the draws on v's side of it, v included)/(1 + len(draws)),
+// the smaller side, at most 1.
+func resampledP(draws []float64, v float64) float64 {
+	below, above := 0, 0
+	for _, d := range draws {
+		if d <= v {
+			below++
+		}
+		if d >= v {
+			above++
+		}
+	}
+	return min(1, 2*float64(1+min(below, above))/float64(1+len(draws)))
 }
 
 func cmpFloat(a, b float64) int {

@@ -304,10 +304,9 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		// The fit's check of the noise on the coldest days, where peak days
 		// fall: a model too narrow there understates every peak-day figure.
 		if c := res.Demand.Noise.Cold; c != nil && c.Observed > 0 && c.Model/c.Observed < 0.9 {
-			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model's noise on the coldest 5 %% of its record's days "+
-				"is narrower than the record's (sd %s against %s %s, %.0f %%): its peak-day demand, design-day demand and "+
-				"capacities are likely too low", numfmt.Number(c.Model), numfmt.Number(c.Observed), res.Demand.Unit,
-				100*c.Model/c.Observed))
+			res.Warnings = append(res.Warnings, fmt.Sprintf("demand noise on the record's coldest 5 %% of days is narrower "+
+				"than observed (sd %s against %s %s): peak-day demand, design-day demand and capacities are likely too low",
+				numfmt.Number(c.Model), numfmt.Number(c.Observed), res.Demand.Unit))
 		}
 		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+

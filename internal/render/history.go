@@ -160,6 +160,8 @@ type jsonHistoryRow struct {
 	ModelSD   float64           `json:"model_sd"`
 	MeanBand  [2]float64        `json:"mean_band_90"`
 	MeanVerd  string            `json:"mean_verdict"`
+	MeanP     float64           `json:"mean_p"`
+	SDP       float64           `json:"sd_p"`
 	SDBand    [2]float64        `json:"sd_band_90"`
 	Verdict   string            `json:"sd_verdict"`
 	Worst     []jsonWorstSeason `json:"worst"`
@@ -185,7 +187,7 @@ func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
 	j := &jsonHistory{TargetYear: h.TargetYear, ShiftPerYear: h.ShiftPerYear, ClimateRun: h.ClimateRun, Seasons: map[string][]jsonSeason{}}
 	for _, r := range h.Rows {
 		row := jsonHistoryRow{Index: r.Index.Info().Key, Period: r.Period, Seasons: len(r.Values), Mean: r.Mean, SD: r.SD,
-			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, MeanBand: r.MeanBand, MeanVerd: r.MeanVerdict, SDBand: r.SDBand,
+			P05: r.P5, P50: r.P50, P95: r.P95, ModelMean: r.ModelMean, ModelSD: r.ModelSD, MeanBand: r.MeanBand, MeanVerd: r.MeanVerdict, MeanP: r.MeanP, SDP: r.SDP, SDBand: r.SDBand,
 			Verdict: r.SDVerdict}
 		for _, w := range r.Worst {
 			row.Worst = append(row.Worst, jsonWorstSeason{w.Year, w.Value, w.Prob, w.ProbSE})

@@ -5,6 +5,7 @@ import (
 	"io"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"wxstress/internal/numfmt"
@@ -266,63 +267,7 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		warns = append(warns, w)
 	}
 	if h := r.History; h != nil {
-		var outside []string // in one warning, as the Monte Carlo one
-		for _, row := range h.Rows {
-			// The indices the key figures show.
-			if historyShown(row) && row.SDVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
-				d := apartDecimals(sdDecimals(min(row.SD, row.SDBand[0])), row.SD, row.SDBand)
-				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
-				outside = append(outside, fmt.Sprintf("%s, %s %s%s%s against %s–%s%s%s (%s)", row.Index.Info().Name, row.Period,
-					numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d), numfmt.Fixed(row.SDBand[1], d), Glue, unit,
-					row.SDVerdict))
-			}
-		}
-		if len(outside) > 0 {
-			warns = append(warns, "the record's sd lies outside the model's band for "+strings.Join(outside, "; "))
-		}
-		var level []string
-		for _, row := range h.Rows {
-			if historyShown(row) && row.MeanVerdict != "inside" && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) {
-				unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
-				d := apartDecimals(1, row.Mean, row.MeanBand)
-				level = append(level, fmt.Sprintf("%s, %s %s%s%s against %s to %s%s%s over %d seasons (%s)", row.Index.Info().Name,
-					row.Period, numfmt.Fixed(row.Mean, d), Glue, unit, numfmt.Fixed(row.MeanBand[0], d), numfmt.Fixed(row.MeanBand[1], d),
-					Glue, unit, len(row.Values), row.MeanVerdict))
-			}
-		}
-		if len(level) > 0 {
-			warns = append(warns, "the record's mean lies outside the model's band for "+strings.Join(level, "; ")+
-				": the model's figures for that index are off in level")
-		}
-		// A record season beyond every simulated year. Under the model the
-		// worst of n seasons lies beyond all m paths with probability
-		// n/(n + m) (exchangeability), so it is said only where that is
-		// below 5 %: m ≥ 19n.
-		var beyond []string
-		chance := 0.0
-		for _, row := range h.Rows {
-			n := len(row.Values)
-			if !historyShown(row) || (row.Index != sim.HDD && row.Index != sim.CDD && row.Index != sim.Coldest) || h.Paths < 19*n {
-				continue
-			}
-			unit := row.Index.Info().Unit(model.Units(r.Manifest.Units), "")
-			for _, w := range row.Worst {
-				if w.Prob <= 0 {
-					beyond = append(beyond, fmt.Sprintf("%s, %s %d (%s%s%s)", row.Index.Info().Name, row.Period, w.Year,
-						numfmt.Fixed(w.Value, 1), Glue, unit))
-					chance = max(chance, float64(n)/float64(n+h.Paths))
-				}
-			}
-		}
-		if len(beyond) > 3 {
-			beyond = append(beyond[:3], fmt.Sprintf("%d more", len(beyond)-3))
-		}
-		if len(beyond) > 0 {
-			warns = append(warns, fmt.Sprintf("the record holds seasons beyond every one of the %s simulated years (each "+
-				"moved to the target year's trend level): %s; under the model that happens to a record this long %s of the "+
-				"time: a very rare season, or a model too narrow on that side", numfmt.Number(float64(h.Paths)),
-				strings.Join(beyond, "; "), numfmt.Percent(chance)))
-		}
+		warns = append(warns, recordWarnings(h, model.Units(r.Manifest.Units))...)
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
@@ -333,6 +278,111 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 		}
 	}
 	return warns
+}
+
+// recordWarnings words what the record's own seasons say against the
+// model, for the rows the key figures show (HDD, CDD and the coldest day,
+// heating figures not of warm periods nor cooling ones of cold periods).
+// Each check is made on every such row, so a warning needs evidence that
+// survives the number of rows k checked: a resampling p-value below 0.05/k
+// (Bonferroni) for a mean or sd outside the model's band, and, for seasons
+// beyond every one of m simulated years, a chance Σ n/(n + m) over the rows
+// below 5 % (under the model the worst of n seasons lies beyond all m paths
+// with probability n/(n + m), by exchangeability). The bands allow for the
+// Monte Carlo error of the model's figures, and a mean or sd is not judged
+// from fewer than 20 paths a season. The seasons are taken as independent,
+// which a slow part with a long e-folding time makes a little optimistic.
+func recordWarnings(h *stress.HistoricalSeasons, units model.Units) []string {
+	var rows []stress.HistoryRow
+	for _, row := range h.Rows {
+		if historyShown(row) && (row.Index == sim.HDD || row.Index == sim.CDD || row.Index == sim.Coldest) &&
+			historyOccurs(row, h.Rows) {
+			rows = append(rows, row)
+		}
+	}
+	if len(rows) == 0 {
+		return nil
+	}
+	k := float64(len(rows))
+	level := 0.05 / k
+	var warns, sds, means []string
+	for _, row := range rows {
+		unit := row.Index.Info().Unit(units, "")
+		if h.Paths < 20*len(row.Values) {
+			continue // the model's own figure too uncertain for a verdict to stand on (the table shows it)
+		}
+		if row.SDVerdict != "inside" && row.SDP < level {
+			d := apartDecimals(sdDecimals(min(row.SD, row.SDBand[0])), row.SD, row.SDBand)
+			sds = append(sds, fmt.Sprintf("%s, %s %s%s%s against %s–%s%s%s (%s, p %s)", row.Index.Info().Name, row.Period,
+				numfmt.Fixed(row.SD, d), Glue, unit, numfmt.Fixed(row.SDBand[0], d), numfmt.Fixed(row.SDBand[1], d), Glue, unit,
+				row.SDVerdict, pText(row.SDP)))
+		}
+		if row.MeanVerdict != "inside" && row.MeanP < level {
+			d := apartDecimals(1, row.Mean, row.MeanBand)
+			means = append(means, fmt.Sprintf("%s, %s %s%s%s against %s to %s%s%s over %d seasons (%s, p %s)", row.Index.Info().Name,
+				row.Period, numfmt.Fixed(row.Mean, d), Glue, unit, numfmt.Fixed(row.MeanBand[0], d), numfmt.Fixed(row.MeanBand[1], d),
+				Glue, unit, len(row.Values), row.MeanVerdict, pText(row.MeanP)))
+		}
+	}
+	checked := fmt.Sprintf("p below 0.05/%d, %d rows checked", len(rows), len(rows))
+	if len(sds) > 0 {
+		warns = append(warns, "the record's sd lies outside the model's band ("+checked+") for "+strings.Join(sds, "; "))
+	}
+	if len(means) > 0 {
+		warns = append(warns, "the model is off in level: the record's mean lies outside its band ("+checked+") for "+
+			strings.Join(means, "; "))
+	}
+	chance := 0.0
+	var beyond []string
+	for _, row := range rows {
+		n := len(row.Values)
+		chance += float64(n) / float64(n+h.Paths)
+		unit := row.Index.Info().Unit(units, "")
+		for _, w := range row.Worst {
+			if w.Prob <= 0 {
+				beyond = append(beyond, fmt.Sprintf("%s, %s %d (%s%s%s)", row.Index.Info().Name, row.Period, w.Year,
+					numfmt.Fixed(w.Value, 1), Glue, unit))
+			}
+		}
+	}
+	if len(beyond) > 3 {
+		beyond = append(beyond[:3], fmt.Sprintf("%d more", len(beyond)-3))
+	}
+	if len(beyond) > 0 && chance < 0.05 {
+		warns = append(warns, fmt.Sprintf("the record holds seasons beyond all %s simulated years (at the target year's trend "+
+			"level): %s; were the model right, a record this long would show that %s of the time over the %d rows checked: a very "+
+			"rare season, or a model too narrow on that side", numfmt.Number(float64(h.Paths)), strings.Join(beyond, "; "),
+			numfmt.Percent(chance), len(rows)))
+	}
+	return warns
+}
+
+// historyOccurs is occurs for a row of the record's seasons: the period's
+// kind from the model's mean HDD and CDD in the history rows.
+func historyOccurs(row stress.HistoryRow, rows []stress.HistoryRow) bool {
+	var simRows []sim.Row
+	for _, r := range rows {
+		if r.Period == row.Period && (r.Index == sim.HDD || r.Index == sim.CDD) {
+			simRows = append(simRows, sim.Row{Index: r.Index, Period: r.Period, Tail: sim.Tail{Mean: r.ModelMean}})
+		}
+	}
+	cold, warm := sim.Season(simRows, row.Period)
+	switch row.Index {
+	case sim.HDD, sim.Coldest:
+		return !warm
+	case sim.CDD:
+		return !cold
+	}
+	return true
+}
+
+// pText writes a p-value for a warning: two significant digits, "< 0.001"
+// below.
+func pText(p float64) string {
+	if p < 0.001 {
+		return "< 0.001"
+	}
+	return strconv.FormatFloat(p, 'g', 2, 64)
 }
 
 // SimSummary writes the one-page summary (NewSummary) for the terminal.
@@ -395,8 +445,13 @@ func mcSummary(rows []sim.Row) string {
 		// Too few paths beyond the level for its error to be estimated.
 		figure = numfmt.Number(worst.value) + Glue + worst.row.Unit + ", too few paths beyond it to estimate its error"
 	}
-	return fmt.Sprintf("Monte Carlo error: %d of the %d rows above have a far-tail figure (ES 99%%, 1-in-50 or 1-in-100) less precise than a twentieth of the sd, worst the %s of %s, %s (%s); %s",
-		len(flags), len(shown), worst.stat, worst.row.Name, worst.row.Period, figure, need)
+	have := "have"
+	if len(flags) == 1 {
+		have = "has"
+	}
+	return fmt.Sprintf("Monte Carlo error: %d of the %d rows %s a far-tail figure (ES 99%%, 1-in-50, 1-in-100) less precise "+
+		"than a twentieth of the sd, worst the %s of %s, %s (%s); %s",
+		len(flags), len(shown), have, worst.stat, worst.row.Name, worst.row.Period, figure, need)
 }
 
 // DemandLine describes a demand model in one line for people: its form and

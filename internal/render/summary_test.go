@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"wxstress/hedge"
+	"wxstress/model"
 	"wxstress/sim"
 	"wxstress/stress"
 )
@@ -113,30 +114,36 @@ func TestCapacityWords(t *testing.T) {
 }
 
 // TestRecordWarnings: the summary warns of a record mean outside the
-// model's band (Seattle 2012–2015's coldest days, 2.4 °C colder on average
-// than the model's band allows) and of record seasons beyond every
-// simulated year, the latter only when the chance n/(n + m) that the worst
-// of n seasons lies beyond all m paths under the model is below 5 %.
+// model's band only when its resampling p-value is below 0.05/k for the k
+// rows checked (Bonferroni), and of record seasons beyond every simulated
+// year only when Σ n/(n + m) over those rows, the chance that a right model
+// shows one, is below 5 %.
 func TestRecordWarnings(t *testing.T) {
 	coldest := stress.HistoryRow{Period: "year", Index: sim.Coldest, Values: []float64{-1.9, -3.5, -3.8, -0.2}, P95: -0.5,
-		Mean: -2.35, ModelMean: -0.6, MeanBand: [2]float64{-2.0, 0.6}, MeanVerdict: "model too mild", SDVerdict: "inside"}
+		Mean: -2.35, ModelMean: -0.6, MeanBand: [2]float64{-2.0, 0.6}, MeanVerdict: "model too mild", MeanP: 0.004,
+		SDVerdict: "inside", SDP: 0.5}
 	cdd := stress.HistoryRow{Period: "year", Index: sim.CDD, Values: make([]float64, 71), P95: 400, ModelMean: 309,
-		MeanVerdict: "inside", SDVerdict: "inside", Worst: []stress.WorstSeason{{Year: 2019, Value: 621.6}}}
-	r := &SimReport{Manifest: Manifest{Units: "C"}, History: &stress.HistoricalSeasons{Paths: 10000,
-		Rows: []stress.HistoryRow{coldest, cdd}}}
-	got := strings.Join(summaryWarnings(r, nil), "\n")
+		MeanVerdict: "inside", MeanP: 0.4, SDVerdict: "inside", SDP: 0.6, Worst: []stress.WorstSeason{{Year: 2019, Value: 621.6}}}
+	h := &stress.HistoricalSeasons{Paths: 10000, Rows: []stress.HistoryRow{coldest, cdd}}
+	got := strings.Join(recordWarnings(h, model.Celsius), "\n")
 	for _, want := range []string{
-		"the record's mean lies outside the model's band for coldest day, year -2.4" + Glue + "°C against -2.0 to 0.6" + Glue + "°C over 4 seasons (model too mild)",
-		"beyond every one of the 10,000 simulated years",
+		"the model is off in level: the record's mean lies outside its band (p below 0.05/2, 2 rows checked) " +
+			"for coldest day, year -2.4" + Glue + "°C against -2.0 to 0.6" + Glue + "°C over 4 seasons (model too mild, p 0.004)",
+		"beyond all 10,000 simulated years",
 		"CDD, year 2019 (621.6" + Glue + "°C·day)",
-		"this long 0.70% of the time", // 71/(71 + 10 000)
+		"this long would show that 0.74% of the time over the 2 rows checked", // 4/10 004 + 71/10 071
 	} {
 		if !strings.Contains(got, want) {
 			t.Errorf("warnings lack %q:\n%s", want, got)
 		}
 	}
-	r.History.Paths = 1000 // 71/1071 = 6.6 %: by chance too often to say
-	if got := strings.Join(summaryWarnings(r, nil), "\n"); strings.Contains(got, "beyond every") {
+	// p 0.04 is below 0.05 but not below 0.05/2.
+	h.Rows[0].MeanP = 0.04
+	if got := strings.Join(recordWarnings(h, model.Celsius), "\n"); strings.Contains(got, "off in level") {
+		t.Errorf("warned of level at p 0.04 over two rows:\n%s", got)
+	}
+	h.Paths = 1000 // 4/1004 + 71/1071 = 7.0 %: a right model shows that too often to say
+	if got := strings.Join(recordWarnings(h, model.Celsius), "\n"); strings.Contains(got, "beyond all") {
 		t.Errorf("warned of a season beyond 1 000 paths in a 71-season record:\n%s", got)
 	}
 }
