@@ -4,6 +4,7 @@ import (
 	"context"
 	"io"
 	"path/filepath"
+	"slices"
 	"strings"
 	"time"
 
@@ -86,7 +87,10 @@ func (o *backtestOptions) validate() error {
 	if o.paths < 100 || o.paths > 1_000_000 {
 		return usagef("backtest: --paths %d: want 100..1000000", o.paths)
 	}
-	for _, p := range o.periods {
+	for i, p := range o.periods {
+		if slices.Contains(o.periods[:i], p) {
+			return usagef("backtest: --period %q is listed twice", p) // its evidence would count twice
+		}
 		// In a leap year and in another, as simulate: 02-29:02-29 has a
 		// day only in the first.
 		for _, y := range []int{2000, 2001} {
