@@ -319,7 +319,7 @@ func TestReadDemandBadInput(t *testing.T) {
 		{"infinite number", row(2, "2021-01-03,1e999,0"), `d.csv:4:12: field load: not a finite number: "1e999"`},
 		// A thousandfold the median is a typing or unit error: one such value
 		// was read as "no dependence on temperature", with no line.
-		{"absurd load", row(2, "2021-01-03,1e12,0"), `d.csv:4:12: field load: load 1e+12 is more than 1000 times the record's median load (5047): a typing or unit error?`},
+		{"absurd load", row(2, "2021-01-03,1e12,0"), `d.csv:4:12: field load: load 1e+12 is more than 1000 times the record's 90th percentile (5087): a typing or unit error?`},
 		{"negative load", row(2, "2021-01-03,-12.5,0"), `d.csv:4:12: field load: negative load "-12.5": a load must be zero or more (leave it empty if it is missing)`},
 		{"duplicate date", row(2, "2021-01-02,5000,0"), `d.csv:4:1: field date: duplicate date "2021-01-02", first on line 3`},
 		{"out of order", row(2, "2020-12-31,5000,0"), `d.csv:4:1: field date: date "2020-12-31" is out of order: it follows 2021-01-02 on line 3`},
@@ -537,6 +537,24 @@ func TestDemandRecoversDemoTruth(t *testing.T) {
 // name (here among two that read as loads), matched without regard to case,
 // and a name that is absent or is the date column is an error on the header
 // line that lists the columns found.
+// TestReadDemandSmallBase: a cooling-only load with a base of half a unit
+// and summer days of 1 600 (three thousand times the median) is a load, not
+// a typing error: the outlier rule compares with the 90th percentile.
+func TestReadDemandSmallBase(t *testing.T) {
+	t.Parallel()
+	start := calendar.FromYMD(2021, time.January, 1)
+	text := demandCSV(start, 400, func(i int, r string) string {
+		load := "0.5"
+		if d := (start + calendar.Date(i)).Month(); d >= time.June && d <= time.August {
+			load = fmt.Sprint(800 + 800*(i%2))
+		}
+		return fmt.Sprintf("%s,%s,0", start+calendar.Date(i), load)
+	})
+	if _, err := ReadDemand(strings.NewReader(text), "d.csv", DemandReadOptions{}); err != nil {
+		t.Errorf("a small base with summer peaks refused: %v", err)
+	}
+}
+
 func TestReadDemandLoadColumn(t *testing.T) {
 	t.Parallel()
 	start := calendar.FromYMD(2021, time.January, 1)

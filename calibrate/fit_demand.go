@@ -193,11 +193,14 @@ func FitDemand(days *DemandDays, set *DemandSettings) (*DemandResult, error) {
 		return nil, fmt.Errorf("%s: %w: %s form at the chosen balance points: %w", name, ErrFit, chosen, err)
 	}
 	f.fill(m, chosen, fit, b.tbH, b.tbC)
-	if !(m.Intercept > 0) {
+	if m.Intercept < 0 && m.Intercept > -1e-9*f.meanLoad() {
+		m.Intercept = 0 // a zero base load, fitted to rounding
+	}
+	if !(m.Intercept >= 0) {
 		// Demand below zero on a mild Monday: a model the simulator
 		// refuses, most likely loads net of generation or in a mixed unit.
 		return nil, fmt.Errorf("%s: %w: the %s form's base load (demand at the balance point on a Monday) comes out at %s %s; "+
-			"a demand model needs it above 0 (are the loads net of generation, or in more than one unit?)", name, ErrFit, chosen,
+			"a demand model needs it at 0 or above (are the loads net of generation, or in more than one unit?)", name, ErrFit, chosen,
 			strconv.FormatFloat(m.Intercept, 'g', 6, 64), set.Unit)
 	}
 

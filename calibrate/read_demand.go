@@ -171,31 +171,34 @@ func (p *demandParser) loadValue(record []string) float64 {
 	return v
 }
 
-// loadOutlier is how many times the record's median load a day's load may
-// be: a thousandfold is no cold day but a typing or unit error (a whole
-// winter's peak is a few times the median).
+// loadOutlier is how many times the record's 90th percentile of positive
+// loads a day's load may be: a thousandfold is no peak day but a typing or
+// unit error (a cold winter's peak is a few times a typical day; a
+// cooling-only load with a near-zero base still has a 90th percentile near
+// its summer days).
 const loadOutlier = 1000
 
 // implausibleLoads names the rows whose load is more than loadOutlier
-// times the record's median: one such value swamps every fit (it was read
-// as "no dependence on temperature") and every season under way.
+// times the record's 90th percentile of positive loads: one such value
+// swamps every fit (it was read as "no dependence on temperature") and
+// every season under way.
 func (p *demandParser) implausibleLoads() error {
 	var have []float64
 	for _, v := range p.d.Load {
-		if !math.IsNaN(v) {
+		if v > 0 {
 			have = append(have, v)
 		}
 	}
-	slices.Sort(have)
-	med := have[len(have)/2]
-	if !(med > 0) {
+	if len(have) == 0 {
 		return nil
 	}
+	slices.Sort(have)
+	p90 := have[len(have)*9/10]
 	for i, v := range p.d.Load {
-		if v > loadOutlier*med {
+		if v > loadOutlier*p90 {
 			p.errorf(p.loadPos[i][0], p.loadPos[i][1], p.header[p.load], "load %s is more than %s times the record's "+
-				"median load (%s): a typing or unit error?", strconv.FormatFloat(v, 'g', -1, 64),
-				strconv.Itoa(loadOutlier), strconv.FormatFloat(med, 'g', 6, 64))
+				"90th percentile (%s): a typing or unit error?", strconv.FormatFloat(v, 'g', -1, 64),
+				strconv.Itoa(loadOutlier), strconv.FormatFloat(p90, 'g', 6, 64))
 		}
 	}
 	if len(p.errs) > 0 {

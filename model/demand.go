@@ -429,8 +429,8 @@ func (d *Demand) Validate(name string) error {
 	}
 	// Loads are bounded by maxLoad: far beyond any send-out, and small
 	// enough that a year's sums and their squares stay finite.
-	if !(d.Intercept > 0 && d.Intercept <= maxLoad) {
-		return bad("intercept", "%v: want a base load above 0 and at most 10¹⁵ (demand at the balance point, on a Monday)", d.Intercept)
+	if !(d.Intercept >= 0 && d.Intercept <= maxLoad) {
+		return bad("intercept", "%v: want a base load from 0 to 10¹⁵ (demand at the balance point, on a Monday)", d.Intercept)
 	}
 	for i, v := range d.Weekday {
 		if !(math.Abs(v) <= maxLoad) {
