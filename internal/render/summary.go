@@ -269,6 +269,12 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 	if h := r.History; h != nil {
 		warns = append(warns, recordWarnings(h, model.Units(r.Manifest.Units))...)
 	}
+	for _, c := range r.Capacities {
+		if c.Saturated > 0 {
+			warns = append(warns, fmt.Sprintf("capacity %s, %s: %s of the years have more days over it than a solve counts, so "+
+				"the days over it are undercounted and the capacity too low", c.Target, c.Period, numfmt.Percent(c.Saturated)))
+		}
+	}
 	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
 		for _, s := range m.Diagnostics.Spread {

@@ -209,3 +209,14 @@ func TestApartDecimals(t *testing.T) {
 		}
 	}
 }
+
+// TestSaturatedCapacityWarned: a days target whose solve ran out of counted
+// days in some years is too low, and the summary says so (it was a
+// footnote of --detail only).
+func TestSaturatedCapacityWarned(t *testing.T) {
+	r := &SimReport{Capacities: []stress.CapacityRow{{Target: "days:10", Period: "heating", Capacity: 80000, Saturated: 0.02}}}
+	got := strings.Join(summaryWarnings(r, nil), "\n")
+	if !strings.Contains(got, "capacity days:10, heating: 2.0% of the years have more days over it than a solve counts") {
+		t.Errorf("warnings %q", got)
+	}
+}

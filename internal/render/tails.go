@@ -454,9 +454,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				}
 				put(s.Key, s.Value(row.Tail))
 				if s.SE != nil {
-					if se := s.SE(row.Tail); !math.IsNaN(se) && !math.IsInf(se, 0) {
-						put(s.Key+":se", se)
-					}
+					put(s.Key+":se", s.SE(row.Tail)) // empty when it cannot be bounded, as JSON's null
 				}
 			}
 			put("mean_se", row.Tail.MeanSE)
@@ -522,9 +520,10 @@ func SimCSV(w io.Writer, r *SimReport) error {
 	}
 	for _, c := range r.Capacities {
 		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target, g(c.Capacity)})
-		if !math.IsNaN(c.SE) && !math.IsInf(c.SE, 0) {
-			cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
-		}
+		cw.Write([]string{"baseline", "capacity", c.Period, demandUnit, "high", c.Target + ":se", g(c.SE)})
+		// The share of years with more days over the capacity than a solve
+		// counts (JSON saturated): above 0, a days target is a lower bound.
+		cw.Write([]string{"baseline", "capacity", c.Period, "fraction of years", "high", c.Target + ":saturated", g(c.Saturated)})
 		achievedUnit := "fraction of years" // peak and any targets
 		if strings.HasPrefix(c.Target, "days:") {
 			achievedUnit = "days a year"
