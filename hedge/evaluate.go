@@ -70,9 +70,11 @@ type ContractResult struct {
 	LoadedPrice           float64 // Mean + λ·SD
 	QuantilePrice         float64 // the α-quantile of the payout
 	// Burn is the mean payout over the historical seasons (NaN without
-	// any) and Seasons their count.
+	// any), Seasons their count and BurnSE the mean's standard error from
+	// the seasons' own payouts, sd/√n (NaN from fewer than two).
 	Burn    float64
 	Seasons int
+	BurnSE  float64
 	MinVar  MinVariance
 }
 
@@ -147,7 +149,7 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 		return 1 - sd*sd/varCost
 	}
 	for _, c := range f.Contracts {
-		cr := ContractResult{Contract: c, Payoffs: make([]float64, n), Burn: math.NaN()}
+		cr := ContractResult{Contract: c, Payoffs: make([]float64, n), Burn: math.NaN(), BurnSE: math.NaN()}
 		paid := 0
 		for p, v := range values[c.Key()] {
 			x := c.Payoff(v)
@@ -171,11 +173,16 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 			if err := allFinite(h, c.Key(), "historical season"); err != nil {
 				return nil, err
 			}
-			var sum float64
-			for _, v := range h {
-				sum += c.Payoff(v)
+			pays := make([]float64, len(h))
+			for i, v := range h {
+				pays[i] = c.Payoff(v)
 			}
-			cr.Burn, cr.Seasons = sum/float64(len(h)), len(h)
+			cr.Burn, cr.Seasons, cr.BurnSE = stat.Mean(pays, nil), len(h), math.NaN()
+			if len(h) > 1 {
+				// The standard error of a mean of n seasons, from their own
+				// spread: whole past seasons, whatever the run's start.
+				cr.BurnSE = stat.StdDev(pays, nil) / math.Sqrt(float64(len(h)))
+			}
 		}
 
 		cr.MinVar = MinVariance{Quantity: math.NaN(), VarianceReduction: math.NaN()}

@@ -263,6 +263,8 @@ func TestRiskConventions(t *testing.T) {
 		{"loaded price", c.LoadedPrice, 0.5 + 0.2*sd},
 		{"P(payout)", c.ProbPayout, 5.0 / 30},
 		{"burn", c.Burn, 7.0 / 3}, // payouts 0, 2, 5
+		// sd of 0, 2, 5 (n − 1 divisor): √(19/3); over √3: √19/3.
+		{"burn s.e.", c.BurnSE, math.Sqrt(19) / 3},
 		{"seasons", float64(c.Seasons), 3},
 	}
 	for _, ch := range checks {

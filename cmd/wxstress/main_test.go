@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"html"
@@ -888,10 +890,13 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 			}
 		}
 		Hedge struct {
+			Loading   float64
 			Hedged    struct{ ES99 float64 }
 			Contracts []struct {
 				Name, Period string
-				Mean         float64 `json:"mean_payout"`
+				Mean         float64  `json:"mean_payout"`
+				MeanSE       float64  `json:"mean_payout_se"`
+				Reduction    *float64 `json:"min_variance_reduction"`
 			}
 		}
 	}
@@ -937,8 +942,14 @@ func TestCSVCarriesTheJSONNumbers(t *testing.T) {
 	}
 	for _, c := range j.Hedge.Contracts {
 		same("mean payout", key{"hedge", c.Period, "contract:" + c.Name + ":mean_payout"}, c.Mean)
+		same("mean payout s.e.", key{"hedge", c.Period, "contract:" + c.Name + ":mean_payout:se"}, c.MeanSE)
+		if c.Reduction != nil {
+			same("minimum-variance reduction", key{"hedge", c.Period, "contract:" + c.Name + ":min_variance_reduction"}, *c.Reduction)
+		}
 	}
-	same("hedged ES 99%", key{"hedge", "", "net_cost:hedged:es99"}, j.Hedge.Hedged.ES99)
+	// The net cost is the exposure's period's (the example's heating).
+	same("hedged ES 99%", key{"hedge", "heating", "net_cost:hedged:es99"}, j.Hedge.Hedged.ES99)
+	same("loading", key{"hedge", "", "loading"}, j.Hedge.Loading)
 	if u := csvUnit[key{"capacity", "heating", "days:1:achieved"}]; u != "days a year" {
 		t.Errorf("capacity achieved unit %q", u)
 	}
@@ -1089,4 +1100,31 @@ func TestCSVHasNoInfinity(t *testing.T) {
 	if !strings.Contains(out, "design-day:1-in-50:se,\n") {
 		t.Errorf("the unbounded design-day error is not an empty field")
 	}
+}
+
+// TestHolidaysAreAnInput: a holiday list changes the demand a run
+// simulates, so the manifest names it among the inputs with its SHA-256.
+func TestHolidaysAreAnInput(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Dir(demoModel(t))
+	hol := filepath.Join(t.TempDir(), "holidays.txt")
+	os.WriteFile(hol, []byte("fixed 01-01\nfixed 12-25\n"), 0o644)
+	code, out, stderr := call(t, context.Background(), "simulate", "--model", filepath.Join(dir, "model.json"), "--demand",
+		filepath.Join(dir, "demand.json"), "--holidays", hol, "--paths", "50", "--format", "json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var j struct {
+		Manifest struct{ Inputs []struct{ Role, File, SHA256 string } }
+	}
+	if err := json.Unmarshal([]byte(out), &j); err != nil {
+		t.Fatal(err)
+	}
+	sum := sha256.Sum256([]byte("fixed 01-01\nfixed 12-25\n"))
+	for _, in := range j.Manifest.Inputs {
+		if in.Role == "holidays" && in.File == "holidays.txt" && in.SHA256 == hex.EncodeToString(sum[:]) {
+			return
+		}
+	}
+	t.Errorf("manifest inputs %+v lack the holiday list", j.Manifest.Inputs)
 }

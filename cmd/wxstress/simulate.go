@@ -477,7 +477,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	rep.Manifest.Warnings = append(slices.Clone(baseWarnings), out.Warnings...)
 	for _, in := range []struct{ role, file string }{{"station record (history)", o.history},
 		{"station record (season under way)", o.observed}, {"loads (season under way)", o.obsLoad},
-		{"hedges", o.hedgeFile}} {
+		{"hedges", o.hedgeFile}, {"holidays", o.holidays}} {
 		if in.file != "" {
 			rep.Manifest.Inputs = append(rep.Manifest.Inputs, render.ManifestInput{Role: in.role, File: filepath.Base(in.file), SHA256: fileSHA(in.file)})
 		}

@@ -51,23 +51,26 @@ func HedgeTables(h *hedge.Result, f *hedge.File) (contracts, position [][]string
 	return contracts, position, contractHead, positionHead
 }
 
-// BurnNote cautions about burn prices from fewer than 10 seasons: the mean
-// of n payouts has a standard error of about sd/√n (the model's payout sd
-// stands in for the record's). Empty when every burn price rests on 10
-// seasons or more.
+// BurnNote cautions about burn prices from fewer than 10 seasons, with the
+// standard error of each, sd/√n of the seasons' own payouts (not the run's
+// payout sd, which a run from the data end narrows). Empty when every burn
+// price rests on 10 seasons or more.
 func BurnNote(h *hedge.Result) string {
 	var parts []string
 	for _, c := range h.Contracts {
 		if c.Seasons > 0 && c.Seasons < 10 {
-			parts = append(parts, fmt.Sprintf("%s from %d, ± %s", c.Contract.Name, c.Seasons,
-				money(c.SD/math.Sqrt(float64(c.Seasons)))))
+			se := "no error from one season"
+			if !math.IsNaN(c.BurnSE) {
+				se = "± " + money(c.BurnSE)
+			}
+			parts = append(parts, fmt.Sprintf("%s from %d, %s", c.Contract.Name, c.Seasons, se))
 		}
 	}
 	if len(parts) == 0 {
 		return ""
 	}
 	return "Burn prices from fewer than 10 seasons are a rough guide (" + strings.Join(parts, "; ") +
-		": the standard error sd/√n with the model's payout sd)."
+		": the standard error sd/√n of the seasons' own payouts)."
 }
 
 // writeHedge writes the hedge evaluation to the terminal.
@@ -123,12 +126,14 @@ type jsonContract struct {
 	Period               string             `json:"period"`
 	Kind                 string             `json:"kind"`
 	Mean                 float64            `json:"mean_payout"`
+	MeanSE               float64            `json:"mean_payout_se"`
 	SD                   float64            `json:"sd"`
 	Quantiles            map[string]float64 `json:"quantiles"`
 	ProbPayout           float64            `json:"probability_of_payout"`
 	LoadedPrice          float64            `json:"loaded_price"`
 	QuantilePrice        float64            `json:"quantile_price"`
 	Burn                 *float64           `json:"burn_price"`
+	BurnSE               *float64           `json:"burn_price_se"`
 	BurnSeasons          int                `json:"burn_seasons"`
 	MinVarianceQuantity  *float64           `json:"min_variance_quantity"`
 	MinVarianceNet       *jsonRisk          `json:"min_variance_net,omitempty"`
@@ -146,9 +151,9 @@ func toJSONHedge(r *SimReport) *jsonHedge {
 		Unhedged: toJSONRisk(h.Unhedged), Hedged: toJSONRisk(h.Hedged), VarianceReduction: finitePtr(h.VarianceReduction)}
 	for _, c := range h.Contracts {
 		jc := jsonContract{Name: c.Contract.Name, Index: c.Contract.Index, Period: c.Contract.Period, Kind: string(c.Contract.Kind),
-			Mean: c.Mean, SD: c.SD, Quantiles: map[string]float64{"0.01": c.P1, "0.05": c.P5, "0.50": c.P50, "0.95": c.P95, "0.99": c.P99},
+			Mean: c.Mean, MeanSE: c.MeanSE, SD: c.SD, Quantiles: map[string]float64{"0.01": c.P1, "0.05": c.P5, "0.50": c.P50, "0.95": c.P95, "0.99": c.P99},
 			ProbPayout: c.ProbPayout, LoadedPrice: c.LoadedPrice, QuantilePrice: c.QuantilePrice, Burn: finitePtr(c.Burn),
-			BurnSeasons: c.Seasons, MinVarianceQuantity: finitePtr(c.MinVar.Quantity), MinVarianceReduction: finitePtr(c.MinVar.VarianceReduction)}
+			BurnSE: finitePtr(c.BurnSE), BurnSeasons: c.Seasons, MinVarianceQuantity: finitePtr(c.MinVar.Quantity), MinVarianceReduction: finitePtr(c.MinVar.VarianceReduction)}
 		if !math.IsNaN(c.MinVar.Quantity) {
 			n := toJSONRisk(c.MinVar.Net)
 			jc.MinVarianceNet = &n

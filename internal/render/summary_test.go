@@ -167,11 +167,11 @@ func TestTargetSE(t *testing.T) {
 // is "not rare", not "1 in 2 or less".
 func TestSmallSampleCautions(t *testing.T) {
 	h := &hedge.Result{Contracts: []hedge.ContractResult{
-		{Contract: hedge.Contract{Name: "jan swap"}, SD: 120000, Seasons: 3},
-		{Contract: hedge.Contract{Name: "heating call"}, SD: 50000, Seasons: 30},
+		{Contract: hedge.Contract{Name: "jan swap"}, SD: 120000, Seasons: 3, BurnSE: 69282},
+		{Contract: hedge.Contract{Name: "heating call"}, SD: 50000, Seasons: 30, BurnSE: 9000},
 	}}
 	if got := BurnNote(h); !strings.Contains(got, "jan swap from 3, ± 69,282") || strings.Contains(got, "heating call") {
-		t.Errorf("burn note %q", got) // 120 000/√3 = 69 282
+		t.Errorf("burn note %q", got)
 	}
 	h.Contracts = h.Contracts[1:]
 	if got := BurnNote(h); got != "" {

@@ -544,19 +544,28 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				v    float64
 			}{{"mean_payout", c.Mean}, {"mean_payout:se", c.MeanSE}, {"sd", c.SD}, {"p01", c.P1}, {"p05", c.P5},
 				{"p50", c.P50}, {"p95", c.P95}, {"p99", c.P99}, {"loaded_price", c.LoadedPrice},
-				{"quantile_price", c.QuantilePrice}, {"burn_price", c.Burn}} {
+				{"quantile_price", c.QuantilePrice}, {"burn_price", c.Burn}, {"burn_price:se", c.BurnSE}} {
 				hedgeRow(c.Contract.Period, cur, k+x.stat, x.v)
 			}
 			hedgeRow(c.Contract.Period, "probability", k+"probability_of_payout", c.ProbPayout)
 			hedgeRow(c.Contract.Period, "seasons", k+"burn_seasons", float64(c.Seasons))
 			hedgeRow(c.Contract.Period, "contracts", k+"min_variance_quantity", c.MinVar.Quantity)
+			hedgeRow(c.Contract.Period, "fraction", k+"min_variance_reduction", c.MinVar.VarianceReduction)
+		}
+		// The pricing options the prices depend on, as the JSON's loading
+		// and quantile_level.
+		hedgeRow("", "", "loading", h.Options.Loading)
+		hedgeRow("", "probability", "quantile_level", h.Options.Level)
+		period := "" // the net cost is the exposure's period's
+		if e := r.HedgeFile.Exposure; e != nil {
+			period = e.Period
 		}
 		risk := func(name string, rk hedge.Risk) {
 			for _, x := range []struct {
 				stat string
 				v    float64
 			}{{"mean", rk.Mean}, {"sd", rk.SD}, {"var95", rk.VaR95}, {"es95", rk.ES95}, {"es99", rk.ES99}} {
-				hedgeRow("", cur, "net_cost:"+name+":"+x.stat, x.v)
+				hedgeRow(period, cur, "net_cost:"+name+":"+x.stat, x.v)
 			}
 		}
 		risk("unhedged", h.Unhedged)
@@ -566,7 +575,7 @@ func SimCSV(w io.Writer, r *SimReport) error {
 				risk(c.Contract.Name+" alone at the minimum-variance quantity", c.MinVar.Net)
 			}
 		}
-		hedgeRow("", "fraction", "variance_reduction", h.VarianceReduction)
+		hedgeRow(period, "fraction", "variance_reduction", h.VarianceReduction)
 	}
 	if p := r.Planning; p != nil {
 		f := g
@@ -605,7 +614,7 @@ func csvManifest(w io.Writer, m Manifest) error {
 	}
 	for _, k := range []string{"tool", "tool_version", "model_file", "model_sha256", "data_sha256", "seed", "paths", "year",
 		"start", "periods", "units", "hdd_base", "cdd_base", "cold_below", "shocks", "scenarios", "demand_model",
-		"demand_sha256", "capacity", "quantile_convention", "caution"} {
+		"demand_sha256", "capacity", "snap_days", "simulated_days", "quantile_convention", "caution"} {
 		switch v := kv[k].(type) {
 		case nil: // absent or null: not applying
 		case []any:
