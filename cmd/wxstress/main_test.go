@@ -1115,7 +1115,9 @@ func TestHolidaysAreAnInput(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
 	var j struct {
-		Manifest struct{ Inputs []struct{ Role, File, SHA256 string } }
+		Manifest struct {
+			Inputs []struct{ Role, File, SHA256 string }
+		}
 	}
 	if err := json.Unmarshal([]byte(out), &j); err != nil {
 		t.Fatal(err)
