@@ -353,6 +353,9 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 		debug.SetMemoryLimit(o.memoryLimit) // the collector works harder near the limit the estimate is held to
 	}
 	baseWarnings := job.Config.Bases.Implausible(model.Units(m.Data.Units))
+	for _, w := range m.Data.Warnings { // the record's own (units that look like the other scale, gaps)
+		baseWarnings = append(baseWarnings, "the model's record: "+w)
+	}
 	if dg := m.Diagnostics; dg != nil && dg.SlowAdvice != "" {
 		advice := dg.SlowAdvice
 		if o.start != sim.StartConditional && o.observed == "" && advice == calibrate.ShortSlowAdvice(m, true) {

@@ -277,9 +277,24 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 	}
 	warns = append(warns, gevWarnings(r.Extremes)...)
 	if m != nil && m.Diagnostics != nil {
+		// One line for the windows outside, as the fit says it.
+		byVerdict := map[string][]int{}
 		for _, s := range m.Diagnostics.Spread {
 			if s.Verdict == "too narrow" || s.Verdict == "too wide" {
-				warns = append(warns, fmt.Sprintf("the record's %d-day spread lies outside the model's band (%s)", s.Days, s.Verdict))
+				byVerdict[s.Verdict] = append(byVerdict[s.Verdict], s.Days)
+			}
+		}
+		for _, v := range []string{"too narrow", "too wide"} {
+			if d := byVerdict[v]; len(d) > 0 {
+				days := make([]string, len(d))
+				for i, x := range d {
+					days[i] = strconv.Itoa(x)
+				}
+				list := strings.Join(days, ", ")
+				if len(d) > 1 {
+					list = strings.Join(days[:len(d)-1], ", ") + " and " + days[len(d)-1]
+				}
+				warns = append(warns, fmt.Sprintf("the record's spread over %s days lies outside the model's band (model %s)", list, v))
 			}
 		}
 	}

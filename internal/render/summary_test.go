@@ -220,3 +220,16 @@ func TestSaturatedCapacityWarned(t *testing.T) {
 		t.Errorf("warnings %q", got)
 	}
 }
+
+// TestSpreadWarningOneLine: the windows whose spread lies outside the
+// model's band are one warning, as the fit says it (four near-identical
+// lines before).
+func TestSpreadWarningOneLine(t *testing.T) {
+	m := &model.File{Diagnostics: &model.Diagnostics{Spread: []model.WindowSpread{
+		{Days: 30, Verdict: "too narrow"}, {Days: 91, Verdict: "inside"}, {Days: 151, Verdict: "too narrow"}, {Days: 365, Verdict: "too narrow"},
+	}}}
+	got := summaryWarnings(&SimReport{}, m)
+	if len(got) != 1 || got[0] != "the record's spread over 30, 151 and 365 days lies outside the model's band (model too narrow)" {
+		t.Errorf("warnings %q", got)
+	}
+}
