@@ -41,11 +41,17 @@ func emitDemand(stdout, stderr io.Writer, m *model.Demand, format string, normal
 	return emit(stdout, stderr, m.Warnings, format, m.MarshalIndent, func() error { return render.DemandSummaryWith(stdout, m, normals) })
 }
 
+// warn prints a warning on standard error, wrapped at 100 columns like
+// every other note (one grep-able first line: "wxstress: warning: …").
+func warn(stderr io.Writer, w string) {
+	fmt.Fprintf(stderr, "%s\n", render.Wrap("wxstress: warning: "+w, "  "))
+}
+
 // emit prints a fitted model: its warnings on stderr, then its file's JSON
 // or its summary.
 func emit(stdout, stderr io.Writer, warnings []string, format string, marshal func() ([]byte, error), summary func() error) error {
 	for _, w := range warnings {
-		fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+		warn(stderr, w)
 	}
 	if format != "json" {
 		return summary()

@@ -530,7 +530,7 @@ func runSimulateCmd(ctx context.Context, args []string, stdout, stderr io.Writer
 	switch o.format {
 	case "json", "csv":
 		for _, w := range rep.Manifest.Warnings { // in the manifest too; said where a person looks
-			fmt.Fprintf(stderr, "wxstress: warning: %s\n", w)
+			warn(stderr, w)
 		}
 		if o.format == "json" {
 			return render.SimJSON(stdout, rep)
