@@ -666,7 +666,7 @@ func TestDemoSummary(t *testing.T) {
 	}
 	for _, x := range over.Indices {
 		if x.Key == "over-capacity" && x.Period == "heating" {
-			want := "Days over the 120,000 GJ/day capacity, heating, per simulated year: mean " + numfmt.Value(x.Mean, x.MeanSE) + ", "
+			want := "Days over the 120,000 GJ/day capacity, heating, per simulated season: mean " + numfmt.Value(x.Mean, x.MeanSE) + ", "
 			if !strings.Contains(out, want) {
 				t.Errorf("no line %q in the summary:\n%s", want, out)
 			}

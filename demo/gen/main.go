@@ -130,6 +130,7 @@ func main() {
 	must(writeFile(filepath.Join(*dir, "kestrel_bay_daily.csv"), st.stationCSV()))
 	must(writeFile(filepath.Join(*dir, "lanternfield_demand.csv"), st.demandCSV()))
 	must(writeFile(filepath.Join(*dir, "TRUTH.md"), st.truthMarkdown()))
+	must(writeFile(filepath.Join(*dir, "kestrel_bay_holidays.txt"), holidaysText()))
 }
 
 func must(err error) {
@@ -266,6 +267,18 @@ func (s *station) stationCSV() []byte {
 			b.WriteString(strconv.FormatFloat(v, 'f', 1, 64))
 		}
 		b.WriteByte('\n')
+	}
+	return []byte(b.String())
+}
+
+// holidaysText is the holiday list for simulate --holidays: Kestrel Bay's
+// fixed-date holidays as rules, one a line, so that simulated years get the
+// days the send-out record marks.
+func holidaysText() []byte {
+	var b strings.Builder
+	b.WriteString("# Kestrel Bay's invented public holidays (fixed dates; see TRUTH.md)\n")
+	for _, h := range holidays {
+		fmt.Fprintf(&b, "fixed %02d-%02d\n", int(h.month), h.day)
 	}
 	return []byte(b.String())
 }

@@ -137,8 +137,8 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	sm.KeyHead = []string{"index, period", "unit", "P50", "1-in-20", "1-in-50", "ES 95%"}
 	if bandCol {
 		sm.KeyHead = append(sm.KeyHead, "1-in-20, 90% band")
-		sm.Notes = append(sm.Notes, fmt.Sprintf("90%% band: the 1-in-20 level's range over %d refits of the model to "+
-			"synthetic records like the station's (parameter uncertainty, not Monte Carlo error)", r.Refits))
+		sm.Notes = append(sm.Notes, fmt.Sprintf("90%% band: 1-in-20 over %d refits to synthetic records like the station's "+
+			"(parameter uncertainty)", r.Refits))
 	}
 	for _, row := range r.Rows {
 		for _, x := range row.Tail.Exceedances {
@@ -157,6 +157,11 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		}
 	}
 	planning := planningPeriod(mf.Periods)
+	if mf.Start == sim.StartConditional && (len(r.Design) > 0 || len(r.Capacities) > 0) {
+		// From the data end, the figures below are this season's: a
+		// planning standard is a climate start's.
+		sm.Notes = append(sm.Notes, "From the data end, so this season's, not a planning standard (--start climate):")
+	}
 	for _, d := range r.Design {
 		if d.Period != planning {
 			continue // the other periods' design days: --detail
@@ -179,8 +184,12 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 				continue
 			}
 			t := row.Tail
-			sm.Notes = append(sm.Notes, fmt.Sprintf("Days over the %s%s capacity, %s, per simulated year: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
-				numfmt.Number(mf.Capacity), peakUnit, row.Period, numfmt.Value(t.Mean, t.MeanSE), numfmt.Number(t.Quantile(0.5)),
+			per := "season" // the period's days in each simulated year
+			if row.Period == "year" {
+				per = "year"
+			}
+			sm.Notes = append(sm.Notes, fmt.Sprintf("Days over the %s%s capacity, %s, per simulated %s: mean %s, P50 %s, 1-in-20 %s, 1-in-50 %s",
+				numfmt.Number(mf.Capacity), peakUnit, row.Period, per, numfmt.Value(t.Mean, t.MeanSE), numfmt.Number(t.Quantile(0.5)),
 				numfmt.Number(t.ReturnLevel(20)), numfmt.Number(t.ReturnLevel(50))))
 		}
 	}
