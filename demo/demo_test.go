@@ -8,6 +8,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"wxstress/calibrate"
 )
 
 // The generating values, as stated in TRUTH.md.
@@ -522,5 +524,29 @@ func TestDemand(t *testing.T) {
 	// Base load between the balance points: SE ≈ 1617·√3/√n ≈ 250 for n ≈ 130.
 	if math.Abs(mean(flat)-truthBase) > 1000 {
 		t.Errorf("weekday base load %.0f GJ/day, want %.0f ± 1000", mean(flat), truthBase)
+	}
+}
+
+// TestHolidayList: the holiday list for simulate --holidays marks exactly
+// the days the send-out record marks, every year, read by the same reader
+// fit-demand and simulate use.
+func TestHolidayList(t *testing.T) {
+	t.Parallel()
+	h, err := calibrate.ReadHolidaysFile("kestrel_bay_holidays.txt")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := loadDemand(t)
+	listed := map[string]bool{}
+	for _, day := range h.In(2021, 2025) {
+		listed[day.String()] = true
+	}
+	for i, date := range d.dates {
+		if listed[date] != d.holiday[i] {
+			t.Errorf("%s: the list says %v, the send-out record %v", date, listed[date], d.holiday[i])
+		}
+	}
+	if len(listed) != 5*holidaysPerYear {
+		t.Errorf("%d listed days in 2021–2025, want %d", len(listed), 5*holidaysPerYear)
 	}
 }
