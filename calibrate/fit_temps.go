@@ -158,48 +158,62 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	// with about (1 + ρ)/(1 − ρ) times the evidence it has (New York
 	// 2012–2015: four harmonics by OLS, one prewhitened, as a
 	// leave-one-year-out check prefers). The OLS BIC is shown beside it.
+	// One Householder QR of [x | y] for the largest model gives every
+	// nested model's residual sum of squares (nestedLS), so the table costs
+	// two QRs and the chosen model a third for its standard errors.
 	var mean olsFit
 	k := set.Harmonics
 	y := values(s, obs)
-	fits := make([]olsFit, MaxHarmonics+1)
-	designs := make([]*mat.Dense, MaxHarmonics+1)
-	for K := 1; K <= MaxHarmonics; K++ {
-		if set.Lean && K != set.Harmonics {
-			continue
-		}
-		designs[K] = design(s, obs, K, trendKind == "linear", calendar.DaysPerYear)
-		fit, err := ols(designs[K], y)
+	trend := trendKind == "linear"
+	if set.Lean {
+		fit, err := ols(design(s, obs, k, trend, calendar.DaysPerYear), y)
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, K, err)
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, k, err)
 		}
-		fits[K] = fit
-	}
-	// Too few pairs of consecutive days (a record with every other day
-	// missing) leave no ρ: the OLS BIC chooses alone.
-	prewhiten := !set.Lean
-	if prewhiten {
-		rho, pairs := residualRho(designs[MaxHarmonics], y, obs, fits[MaxHarmonics])
-		_, kmax := designs[MaxHarmonics].Dims()
-		prewhiten = pairs > kmax+2 && !math.IsNaN(rho) && math.Abs(rho) < 1
+		for K := 1; K <= MaxHarmonics; K++ {
+			row := model.OrderScore{Order: K}
+			if K == k {
+				row.BIC = fit.BIC()
+			}
+			d.HarmonicsTable = append(d.HarmonicsTable, row)
+		}
+		mean = fit
+	} else {
+		x := design(s, obs, MaxHarmonics, trend, calendar.DaysPerYear)
+		all := make([]int, len(y))
+		for i := range all {
+			all[i] = i
+		}
+		olsRSS, beta, err := nestedLS(x, y, all, 0)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, MaxHarmonics, err)
+		}
+		// Too few pairs of consecutive days (a record with every other
+		// day missing) leave no ρ: the OLS BIC chooses alone.
+		rho, pairs := residualRho(x, y, obs, beta)
+		_, cols := x.Dims()
+		prewhiten := len(pairs) > cols+2 && !math.IsNaN(rho) && math.Abs(rho) < 1
+		var pwRSS []float64
 		if prewhiten {
 			d.HarmonicsRho = rho
-		}
-	}
-	for K := 1; K <= MaxHarmonics; K++ {
-		row := model.OrderScore{Order: K}
-		if designs[K] != nil {
-			row.BIC = fits[K].BIC()
-			if prewhiten {
-				pw, err := prewhitenedBIC(designs[K], y, obs, d.HarmonicsRho)
-				if err != nil {
-					return nil, fmt.Errorf("%s: %w: mean model with %d harmonics, prewhitened: %w", s.Name, ErrFit, K, err)
-				}
-				row.BIC, row.BICIndependent = pw, fits[K].BIC()
+			if pwRSS, _, err = nestedLS(x, y, pairs, rho); err != nil {
+				return nil, fmt.Errorf("%s: %w: mean model, prewhitened: %w", s.Name, ErrFit, err)
 			}
 		}
-		d.HarmonicsTable = append(d.HarmonicsTable, row)
-		if designs[K] != nil && (set.Harmonics == 0 && (K == 1 || row.BIC < d.HarmonicsTable[k-1].BIC) || set.Harmonics == K) {
-			mean, k = fits[K], K
+		base := cols - 2*MaxHarmonics // the intercept, and the trend when fitted
+		for K := 1; K <= MaxHarmonics; K++ {
+			c := base + 2*K
+			row := model.OrderScore{Order: K, BIC: lsBIC(olsRSS[c], len(y), c)}
+			if prewhiten {
+				row.BIC, row.BICIndependent = lsBIC(pwRSS[c], len(pairs), c), row.BIC
+			}
+			d.HarmonicsTable = append(d.HarmonicsTable, row)
+			if set.Harmonics == 0 && (K == 1 || row.BIC < d.HarmonicsTable[k-1].BIC) || set.Harmonics == K {
+				k = K
+			}
+		}
+		if mean, err = ols(design(s, obs, k, trend, calendar.DaysPerYear), y); err != nil {
+			return nil, fmt.Errorf("%s: %w: mean model with %d harmonics: %w", s.Name, ErrFit, k, err)
 		}
 	}
 	d.HarmonicsTable[k-1].Chosen = true
@@ -370,27 +384,27 @@ func dataInfo(s *Series) model.Data {
 	}
 }
 
-// residualRho returns the lag-1 autocorrelation of the residuals of fit (of
-// y on x), over the pairs of consecutive observed days, Σ r(t)r(t−1) /
-// Σ r(t−1)², and the number of pairs (NaN without any).
-func residualRho(x *mat.Dense, y []float64, obs []int, fit olsFit) (float64, int) {
+// residualRho returns the lag-1 autocorrelation of the residuals of y on x
+// with coefficients beta, over the pairs of consecutive observed days,
+// Σ r(t)r(t−1) / Σ r(t−1)² (NaN without any), and those pairs (the index of
+// each pair's later day).
+func residualRho(x *mat.Dense, y []float64, obs []int, beta []float64) (float64, []int) {
 	r := make([]float64, len(y))
-	_, k := x.Dims()
 	for i := range y {
-		row := x.RawRowView(i)[:k]
+		row := x.RawRowView(i)[:len(beta)]
 		v := y[i]
-		for j, b := range fit.Beta {
+		for j, b := range beta {
 			v -= row[j] * b
 		}
 		r[i] = v
 	}
 	var num, den float64
-	pairs := 0
+	var pairs []int
 	for i := 1; i < len(y); i++ {
 		if obs[i] == obs[i-1]+1 {
 			num += r[i] * r[i-1]
 			den += r[i-1] * r[i-1]
-			pairs++
+			pairs = append(pairs, i)
 		}
 	}
 	if den == 0 {
@@ -399,41 +413,63 @@ func residualRho(x *mat.Dense, y []float64, obs []int, fit olsFit) (float64, int
 	return num / den, pairs
 }
 
-// prewhitenedBIC is the BIC of the regression of y(t) − ρ·y(t−1) on
-// x(t) − ρ·x(t−1) over the pairs of consecutive observed days (Cochrane and
-// Orcutt 1949, from memory): the mean model's BIC with AR(1) errors, ρ
-// given.
-func prewhitenedBIC(x *mat.Dense, y []float64, obs []int, rho float64) (float64, error) {
+// nestedLS fits y on x over the given rows, prewhitened by ρ when ρ ≠ 0 (a
+// row i then stands for y(i) − ρ·y(i−1) on x(i) − ρ·x(i−1): Cochrane and
+// Orcutt 1949, from memory), by one Householder QR of [x | y]. R's last
+// column holds Qᵀy, so the residual sum of squares of the model of x's
+// first j columns is the sum of the squares of its entries from j on:
+// rss[j] for j = 1..k. beta is the full model's coefficients.
+func nestedLS(x *mat.Dense, y []float64, rows []int, rho float64) (rss, beta []float64, err error) {
 	_, k := x.Dims()
-	var rows []int
-	for i := 1; i < len(y); i++ {
-		if obs[i] == obs[i-1]+1 {
-			rows = append(rows, i)
-		}
+	if len(rows) <= k {
+		return nil, nil, errRankDeficient
 	}
-	data := make([]float64, len(rows)*k)
-	ys := make([]float64, len(rows))
+	data := make([]float64, len(rows)*(k+1))
 	for r, i := range rows {
-		ys[r] = y[i] - rho*y[i-1]
-		cur, prev, out := x.RawRowView(i)[:k], x.RawRowView(i - 1)[:k], data[r*k:(r+1)*k]
-		for j := range k {
-			out[j] = cur[j] - rho*prev[j]
+		out := data[r*(k+1) : (r+1)*(k+1)]
+		copy(out, x.RawRowView(i)[:k])
+		out[k] = y[i]
+		if rho != 0 {
+			prev := x.RawRowView(i - 1)[:k]
+			for j := range k {
+				out[j] -= rho * prev[j]
+			}
+			out[k] -= rho * y[i-1]
 		}
 	}
-	// Only the residual sum of squares is needed: QR, solve, residuals.
-	xs := mat.NewDense(len(rows), k, data)
 	var qr mat.QR
-	qr.Factorize(xs)
-	var beta mat.VecDense
-	if err := qr.SolveVecTo(&beta, false, mat.NewVecDense(len(ys), ys)); err != nil {
-		return 0, errRankDeficient
+	qr.Factorize(mat.NewDense(len(rows), k+1, data))
+	var r mat.Dense
+	qr.RTo(&r)
+	rss = make([]float64, k+1)
+	for j := 1; j <= k; j++ {
+		for i := j; i <= k; i++ {
+			rss[j] += r.At(i, k) * r.At(i, k)
+		}
+		if !(rss[j] > 0) {
+			return nil, nil, errRankDeficient
+		}
 	}
-	var res mat.VecDense
-	res.MulVec(xs, &beta)
-	res.SubVec(mat.NewVecDense(len(ys), ys), &res)
-	rss := mat.Dot(&res, &res)
-	n := float64(len(rows))
-	return n*math.Log(2*math.Pi*rss/n) + n + float64(k+1)*math.Log(n), nil // as olsFit.BIC
+	// R[:k,:k]·beta = (Qᵀy)[:k], by back substitution.
+	beta = make([]float64, k)
+	for i := k - 1; i >= 0; i-- {
+		v := r.At(i, k)
+		for j := i + 1; j < k; j++ {
+			v -= r.At(i, j) * beta[j]
+		}
+		if r.At(i, i) == 0 {
+			return nil, nil, errRankDeficient
+		}
+		beta[i] = v / r.At(i, i)
+	}
+	return rss, beta, nil
+}
+
+// lsBIC is a least-squares fit's BIC from its residual sum of squares, n
+// rows and k coefficients, as olsFit.BIC (R's BIC of an lm, σ counted).
+func lsBIC(rss float64, n, k int) float64 {
+	nf := float64(n)
+	return nf*math.Log(2*math.Pi*rss/nf) + nf + float64(k+1)*math.Log(nf)
 }
 
 func observed(s *Series) []int {

@@ -19,10 +19,7 @@ type olsFit struct {
 // BIC is the Bayesian information criterion of the Gaussian likelihood,
 // n·ln(2π·RSS/n) + n + (k + 1)·ln n, counting σ² as a parameter: the value R's
 // BIC() gives for an lm fit, so tables can be checked against it.
-func (f olsFit) BIC() float64 {
-	n, k := float64(f.N), float64(len(f.Beta))
-	return n*math.Log(2*math.Pi*f.RSS/n) + n + (k+1)*math.Log(n)
-}
+func (f olsFit) BIC() float64 { return lsBIC(f.RSS, f.N, len(f.Beta)) }
 
 // R2 is the coefficient of determination about the mean.
 func (f olsFit) R2() float64 { return 1 - f.RSS/f.TSS }
