@@ -743,6 +743,9 @@ func (b *builder) manifestSection() (any, error) {
 		if len(mf.Scenarios) > 0 {
 			scen = strings.Join(mf.Scenarios, ", ")
 		}
+		if mf.RunID != "" { // ties the page to the tails files written with it
+			rows = append(rows, [2]string{"run id", mf.RunID})
+		}
 		rows = append(rows,
 			[2]string{"model file", mf.ModelFile},
 			[2]string{"model SHA-256", mf.ModelSHA256},

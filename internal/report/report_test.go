@@ -593,9 +593,10 @@ func firstDiff(want, got string) string {
 func TestManifestShowsTheRun(t *testing.T) {
 	t.Parallel()
 	in := goldenInput()
+	in.Sim.Manifest.RunID = "20261201T093000Z-0badc0de" // the run id of the tails files written beside the page
 	doc := parse(t, []byte(section(t, renderReport(t, in), "manifest")))
 	txt := text(doc)
-	for _, want := range []string{"wxstress 1.2.3", "2026-12-01 09:30:00 UTC", "2.345s", in.Sim.Manifest.ModelSHA256,
+	for _, want := range []string{"20261201T093000Z-0badc0de", "wxstress 1.2.3", "2026-12-01 09:30:00 UTC", "2.345s", in.Sim.Manifest.ModelSHA256,
 		in.Inputs[1].SHA256, "cold_spell.toml", "10000", "2026", "year, heating, cooling", "HDD 18 °C",
 		"warm-1c, cold_spell.toml", render.QuantileConvention, "φ1 = 0.7321", "ν = 10.49, ξ = 0.850", "demand.json",
 		in.Sim.Manifest.DemandSHA256, "120,000"} {
