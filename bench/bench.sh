@@ -27,6 +27,11 @@ if [ -z "$csv" ]; then
   cp demo/kestrel_bay_daily.csv "$csv"
 fi
 command -v /usr/bin/time >/dev/null || { echo "bench: needs GNU time: apt-get install -y time" >&2; exit 1; }
+if [ "$peer" = 1 ]; then
+  # The NumPy reference lives beside the repository (../shared/bench), not in it.
+  [ -f ../shared/bench/peer_numpy.py ] || { echo "bench: --peer needs ../shared/bench/peer_numpy.py beside the repository" >&2; exit 1; }
+  /usr/bin/python3 -c "import numpy, scipy" 2>/dev/null || { echo "bench: --peer needs /usr/bin/python3 with numpy and scipy: apt-get install -y python3-numpy python3-scipy" >&2; exit 1; }
+fi
 go build -o "$work/wxstress" ./cmd/wxstress
 wx="$work/wxstress"
 
@@ -60,7 +65,7 @@ import sys
 label, n, f, days = sys.argv[1], int(sys.argv[2]), sys.argv[3], int(sys.argv[4])
 wall, kb = open(f).read().split()
 wall, kb = float(wall), int(kb)
-print(f"{label:<34} {n:>8} paths x {days} days: {wall:6.2f} s, {n*days/wall/1e6:6.1f} million station-days/s, peak {kb/1024:5.0f} MiB")
+print(f"{label:<24} {n:>8} paths x {days} days: {wall:5.2f} s, {n*days/wall/1e6:5.1f} M station-days/s, peak {kb/1024:4.0f} MiB")
 PY
 }
 

@@ -137,12 +137,10 @@ func FitSummaryWith(w io.Writer, f *model.File, checks []stress.ExtremeCheck) er
 		e.table([]string{"family", "log-lik", "shape params", "AIC", "shape", ""}, rows)
 		writeDiagnostics(e, f)
 		if len(checks) > 0 {
-			header, rows, notes := ExtremesTable(checks, f.Data.Units)
+			header, rows, notes := ExtremesTable(checks, f.Data.Units, false)
 			e.printf("\nExtreme days checked by extreme-value theory (the model simulated for %d)\n", checks[0].Year)
 			e.table(header, rows)
-			// Not the last note: it compares with a simulation run from the
-			// data end, which a fit does not make.
-			e.printf("%s\n", Wrap("  "+strings.Join(notes[:len(notes)-1], " "), "  "))
+			e.printf("%s\n", Wrap("  "+strings.Join(notes, " "), "  "))
 		}
 	}
 	if warns := FitWarnings(f, checks); len(warns) > 0 {

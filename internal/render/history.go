@@ -209,7 +209,7 @@ func toJSONHistory(h *stress.HistoricalSeasons) *jsonHistory {
 // ExtremesTable lays out the GEV check of the simulated extremes: for the
 // coldest and hottest day, the GEV's 1-in-T level from the record's own
 // seasons with its profile-likelihood 95 % interval beside the model's.
-func ExtremesTable(checks []stress.ExtremeCheck, units string) (header []string, rows [][]string, notes []string) {
+func ExtremesTable(checks []stress.ExtremeCheck, units string, conditional bool) (header []string, rows [][]string, notes []string) {
 	header = []string{"index", "period", "seasons", "T", "GEV level [95% interval]", "model level", "model"}
 	for _, c := range checks {
 		if c.Err != "" {
@@ -235,9 +235,10 @@ func ExtremesTable(checks []stress.ExtremeCheck, units string) (header []string,
 	notes = append(notes, fmt.Sprintf("The GEV is fitted by maximum likelihood to each season's coldest (or hottest) daily mean in "+
 		"the record, moved to the target year's trend level (°%s); a model level outside the 95 %% profile-likelihood "+
 		"interval is evidence that the model's extreme days are off.", units))
-	// Last, for fit's summary to leave out.
-	notes = append(notes, "The model levels come from a climate-start run (the record's seasons are climatology): a run "+
-		"from the state at the data end (conditional start) can differ, as its design days do.")
+	if conditional { // said only where the run itself starts from the data end
+		notes = append(notes, "The model levels come from a climate-start run (the record's seasons are climatology): this "+
+			"run, from the state at the data end, can differ, as its design days do.")
+	}
 	return header, rows, notes
 }
 
@@ -245,7 +246,7 @@ func writeExtremes(e *errWriter, r *SimReport) {
 	if len(r.Extremes) == 0 {
 		return
 	}
-	header, rows, notes := ExtremesTable(r.Extremes, r.Manifest.Units)
+	header, rows, notes := ExtremesTable(r.Extremes, r.Manifest.Units, r.Manifest.Start == sim.StartConditional)
 	e.printf("\nExtreme days checked by extreme-value theory\n")
 	e.table(header, rows)
 	for _, n := range notes {

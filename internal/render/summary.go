@@ -160,7 +160,7 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	if mf.Start == sim.StartConditional && (len(r.Design) > 0 || len(r.Capacities) > 0) {
 		// From the data end, the figures below are this season's: a
 		// planning standard is a climate start's.
-		sm.Notes = append(sm.Notes, "From the data end, so this season's, not a planning standard (--start climate):")
+		sm.Notes = append(sm.Notes, "From the data end, so this season's; for a planning standard, run with --start climate:")
 	}
 	for _, d := range r.Design {
 		if d.Period != planning {

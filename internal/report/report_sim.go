@@ -414,7 +414,7 @@ func (b *builder) simulationSection() (any, error) {
 		v.Capacity, v.CapacityNotes = &t, notes
 	}
 	if s := in.Sim; s != nil && len(s.Extremes) > 0 {
-		header, rows, notes := render.ExtremesTable(s.Extremes, s.Manifest.Units)
+		header, rows, notes := render.ExtremesTable(s.Extremes, s.Manifest.Units, s.Manifest.Start == sim.StartConditional)
 		t := newTextTable("extremes", "", header, rows, 2, 4, 5)
 		v.Extremes, v.ExtremesNotes = &t, notes
 	}
