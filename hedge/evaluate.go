@@ -71,7 +71,8 @@ type ContractResult struct {
 	QuantilePrice         float64 // the α-quantile of the payout
 	// Burn is the mean payout over the historical seasons (NaN without
 	// any), Seasons their count and BurnSE the mean's standard error from
-	// the seasons' own payouts, sd/√n (NaN from fewer than two).
+	// the seasons' own payouts, sd/√n (NaN from fewer than two, or when they
+	// all paid the same).
 	Burn    float64
 	Seasons int
 	BurnSE  float64
@@ -178,10 +179,11 @@ func Evaluate(f *File, values map[Key][]float64, opt *Options) (*Result, error) 
 				pays[i] = c.Payoff(v)
 			}
 			cr.Burn, cr.Seasons, cr.BurnSE = stat.Mean(pays, nil), len(h), math.NaN()
-			if len(h) > 1 {
+			if sd := stat.StdDev(pays, nil); len(h) > 1 && sd > 0 {
 				// The standard error of a mean of n seasons, from their own
 				// spread: whole past seasons, whatever the run's start.
-				cr.BurnSE = stat.StdDev(pays, nil) / math.Sqrt(float64(len(h)))
+				// Seasons that all paid the same give none (NaN), not ± 0.
+				cr.BurnSE = sd / math.Sqrt(float64(len(h)))
 			}
 		}
 

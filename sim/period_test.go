@@ -201,4 +201,9 @@ func TestPeriodListedTwice(t *testing.T) {
 	if !errors.Is(err, ErrPeriod) || !strings.Contains(err.Error(), `"year" is listed twice`) {
 		t.Errorf("error %v", err)
 	}
+	// The same days under another name.
+	_, err = Run(context.Background(), m, Config{Paths: 10, Periods: []string{"heating", "11-01:03-31"}, Bases: BasesFor(model.Celsius)})
+	if !errors.Is(err, ErrPeriod) || !strings.Contains(err.Error(), `"11-01:03-31" is the same days as "heating"`) {
+		t.Errorf("error %v", err)
+	}
 }

@@ -270,8 +270,11 @@ func validPeriods(m *model.File, cfg *Config) ([]Period, error) {
 			return nil, err
 		}
 		for _, q := range periods[:i] {
-			if q.Name == p.Name {
-				return nil, fmt.Errorf("%w %q is listed twice", ErrPeriod, name)
+			if q.From == p.From && q.To == p.To { // "jan" and "JAN", or heating and 11-01:03-31
+				if q.Name == p.Name {
+					return nil, fmt.Errorf("%w %q is listed twice", ErrPeriod, name)
+				}
+				return nil, fmt.Errorf("%w %q is the same days as %q (%s to %s): list it once", ErrPeriod, name, q.Name, p.From, p.To)
 			}
 		}
 		if cfg.SnapDays > p.Days() {

@@ -10,6 +10,8 @@ import (
 	"testing"
 	"time"
 
+	"gonum.org/v1/gonum/stat"
+
 	"wxstress/extremes"
 
 	"wxstress/calibrate"
@@ -220,5 +222,50 @@ func TestHistoryMeanBand(t *testing.T) {
 		if row.MeanVerdict != c.want {
 			t.Errorf("record mean %.2f, band %v, high adverse %v: %q, want %q", row.Mean, row.MeanBand, c.high, row.MeanVerdict, c.want)
 		}
+	}
+}
+
+// TestHistoryBandWidening: with few paths the band allows for the model's
+// own Monte Carlo error: n = 30 seasons against m = 100 simulated years
+// widen the mean's band by √(1 + n/m) = √1.3 over that of n draws alone,
+// 1.645·σ/√30, with σ the simulated years' own (population) sd.
+func TestHistoryBandWidening(t *testing.T) {
+	r := rand.New(rand.NewPCG(8, 9))
+	sims := make([]float64, 100)
+	for i := range sims {
+		sims[i] = r.NormFloat64()
+	}
+	mu, sd := stat.PopMeanStdDev(sims, nil)
+	row := HistoryRow{Values: make([]float64, 30)}
+	for i := range row.Values {
+		row.Values[i] = mu
+		row.Years = append(row.Years, 1990+i)
+	}
+	summarizeHistory(&row, sims, true, 1)
+	want := 1.645 * sd / math.Sqrt(30) * math.Sqrt(1.3)
+	got := (row.MeanBand[1] - row.MeanBand[0]) / 2
+	// 2 000 resampled means put each end within about 3 % of its place.
+	if math.Abs(got/want-1) > 0.06 {
+		t.Errorf("half-width %.4f, want %.4f (1.645·σ/√30·√1.3)", got, want)
+	}
+}
+
+// TestResampledP checks the two-sided resampling p-value on known draws:
+// a value at the middle of symmetric draws is 1, one beyond every draw
+// 2/(N + 1), one equal to every draw 1.
+func TestResampledP(t *testing.T) {
+	draws := make([]float64, 999)
+	for i := range draws {
+		draws[i] = float64(i - 499) // −499 … 499
+	}
+	for _, c := range []struct {
+		v, want float64
+	}{{0, 1}, {1000, 2.0 / 1000}, {-1000, 2.0 / 1000}, {449.5, 2 * 51.0 / 1000}} { // 449.5: 50 draws above, plus one
+		if got := resampledP(draws, c.v); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("resampledP(%v) = %v, want %v", c.v, got, c.want)
+		}
+	}
+	if got := resampledP([]float64{3, 3, 3}, 3); got != 1 {
+		t.Errorf("all draws equal to the value: %v, want 1", got)
 	}
 }

@@ -286,6 +286,7 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 			cfg.Observed.Loads = loads
 		}
 	}
+	coldNoise := "" // said below when a period of the run has cold peak days
 	if res.Demand != nil {
 		cfg.Demand = res.Demand
 		if err := job.holidays(res, &cfg); err != nil {
@@ -304,9 +305,9 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 		// The fit's check of the noise on the coldest days, where peak days
 		// fall: a model too narrow there understates every peak-day figure.
 		if c := res.Demand.Noise.Cold; c != nil && c.Observed > 0 && c.Model/c.Observed < 0.9 {
-			res.Warnings = append(res.Warnings, fmt.Sprintf("demand noise on the record's coldest 5 %% of days is narrower "+
-				"than observed (sd %s against %s %s): peak-day demand, design-day demand and capacities are likely too low",
-				numfmt.Number(c.Model), numfmt.Number(c.Observed), res.Demand.Unit))
+			coldNoise = fmt.Sprintf("demand noise on the record's coldest 5 %% of days is narrower than observed (sd %s "+
+				"against %s %s): peak-day demand, design-day demand and capacities are likely too low",
+				numfmt.Number(c.Model), numfmt.Number(c.Observed), res.Demand.Unit)
 		}
 		if res.Demand.Holiday != 0 && len(cfg.Holidays) == 0 {
 			res.Warnings = append(res.Warnings, fmt.Sprintf("the demand model has a holiday effect of %s %s, but this run "+
@@ -373,6 +374,12 @@ func Run(ctx context.Context, job *Job) (*Result, error) {
 	}
 	res.Set = set
 	res.Warnings = append(res.Warnings, underWayWarnings(res.Model, set.Config, set.Base.Periods)...)
+	if coldNoise != "" && slices.ContainsFunc(set.Base.Periods, func(p sim.Period) bool {
+		_, warm := sim.Season(set.Rows, p.Name)
+		return !warm // a summer's peak days are not its coldest
+	}) {
+		res.Warnings = append(res.Warnings, coldNoise)
+	}
 	if len(job.Design) > 0 {
 		res.Design = designRows(set.Rows, job.Design)
 	}
@@ -443,7 +450,8 @@ func withHedgePeriods(periods []string, h *hedge.File) []string {
 	}
 	out := slices.Clone(periods)
 	for _, k := range h.Needs() {
-		if !slices.Contains(out, k.Period) {
+		// Names match without regard to case, as periods do ("Heating").
+		if !slices.ContainsFunc(out, func(p string) bool { return strings.EqualFold(p, k.Period) }) {
 			out = append(out, k.Period)
 		}
 	}
@@ -486,13 +494,13 @@ func evaluateHedge(job *Job, set *Set, hist *HistoricalSeasons) (*hedge.Result, 
 	var history map[hedge.Key][]float64
 	for _, k := range job.Hedge.Needs() {
 		for _, a := range set.Base.Aggregates {
-			if a.Index.Info().Key == k.Index && a.Period.Name == k.Period {
+			if a.Index.Info().Key == k.Index && strings.EqualFold(a.Period.Name, k.Period) {
 				values[k] = a.Values
 				if hist != nil && !k.NeedsDemand() {
 					if history == nil {
 						history = map[hedge.Key][]float64{}
 					}
-					for _, se := range hist.Seasons[k.Period] {
+					for _, se := range hist.Seasons[a.Period.Name] { // the run's name for the period
 						history[k] = append(history[k], se.Values[a.Index])
 					}
 				}

@@ -4,7 +4,6 @@ import (
 	"context"
 	"io"
 	"path/filepath"
-	"slices"
 	"strings"
 	"time"
 
@@ -88,8 +87,14 @@ func (o *backtestOptions) validate() error {
 		return usagef("backtest: --paths %d: want 100..1000000", o.paths)
 	}
 	for i, p := range o.periods {
-		if slices.Contains(o.periods[:i], p) {
-			return usagef("backtest: --period %q is listed twice", p) // its evidence would count twice
+		// The same days under two names ("jan" and "JAN", heating and
+		// 11-01:03-31) would count their evidence twice.
+		for _, q := range o.periods[:i] {
+			a, errA := sim.ParsePeriod(p, 2001)
+			b, errB := sim.ParsePeriod(q, 2001)
+			if errA == nil && errB == nil && a.From == b.From && a.To == b.To {
+				return usagef("backtest: --period %q is the same days as %q: list it once", p, q)
+			}
 		}
 		// In a leap year and in another, as simulate: 02-29:02-29 has a
 		// day only in the first.

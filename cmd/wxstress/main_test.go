@@ -111,7 +111,8 @@ func TestExitCodes(t *testing.T) {
 		{[]string{"simulate", "--model", "m.json", "--snap-days", "5"}, exitUsage, "--snap-days goes with --design"},
 		// The same problem, the same exit and message in every command.
 		{[]string{"simulate", "--model", "m.json", "--demand", "d.json", "--capacity", "NaN"}, exitUsage, "simulate: --capacity NaN: needs --demand"},
-		{[]string{"backtest", "--temps", "t.csv", "--period", "year", "--period", "year"}, exitUsage, "backtest: --period \"year\" is listed twice"},
+		{[]string{"backtest", "--temps", "t.csv", "--period", "year", "--period", "year"}, exitUsage, "backtest: --period \"year\" is the same days as \"year\""},
+		{[]string{"backtest", "--temps", "t.csv", "--period", "jan", "--period", "JAN"}, exitUsage, "backtest: --period \"JAN\" is the same days as \"jan\""},
 		{[]string{"backtest", "--temps", "t.csv", "--hdd-base", "1000"}, exitUsage, "backtest: --hdd-base 1000: want a temperature from −100 to 200"},
 		{[]string{"backtest", "--temps", "t.csv", "--period", "02-29:02-29"}, exitUsage, "backtest: --period: period \"02-29:02-29\" has no days in 2001"},
 		// 1 − 1/T is 1 in floating point from about 10¹⁶: it once panicked.

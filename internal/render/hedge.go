@@ -59,9 +59,12 @@ func BurnNote(h *hedge.Result) string {
 	var parts []string
 	for _, c := range h.Contracts {
 		if c.Seasons > 0 && c.Seasons < 10 {
-			se := "no error from one season"
-			if !math.IsNaN(c.BurnSE) {
-				se = "± " + money(c.BurnSE)
+			se := "± " + money(c.BurnSE)
+			switch {
+			case c.Seasons == 1:
+				se = "no error from one season"
+			case math.IsNaN(c.BurnSE):
+				se = "every season paid the same: its error not estimable"
 			}
 			parts = append(parts, fmt.Sprintf("%s from %d, %s", c.Contract.Name, c.Seasons, se))
 		}

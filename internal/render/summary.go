@@ -171,10 +171,18 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		if !(d.SnapSE <= tse) && !math.IsNaN(d.SnapSE) && !math.IsInf(d.SnapSE, 0) {
 			tse = d.SnapSE
 		}
-		line := fmt.Sprintf("Design day 1-in-%s, %s: %s °%s, %d-day snap %s °%s", periodKey(d.T), d.Period,
-			numfmt.Value(d.Coldest, tse), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, tse), mf.Units)
-		if !math.IsNaN(d.Peak) {
-			line += ", demand " + numfmt.Value(d.Peak, d.PeakSE) + peakUnit
+		var line string
+		switch {
+		case math.IsNaN(d.Coldest) && math.IsNaN(d.Peak):
+			continue
+		case math.IsNaN(d.Coldest): // a warm period: its peak-day demand, no coldest day
+			line = fmt.Sprintf("Peak-day demand 1-in-%s, %s: %s%s", periodKey(d.T), d.Period, numfmt.Value(d.Peak, d.PeakSE), peakUnit)
+		default:
+			line = fmt.Sprintf("Design day 1-in-%s, %s: %s °%s, %d-day snap %s °%s", periodKey(d.T), d.Period,
+				numfmt.Value(d.Coldest, tse), mf.Units, mf.SnapDays, numfmt.Value(d.Snap, tse), mf.Units)
+			if !math.IsNaN(d.Peak) {
+				line += ", demand " + numfmt.Value(d.Peak, d.PeakSE) + peakUnit
+			}
 		}
 		sm.Notes = append(sm.Notes, line)
 	}
@@ -314,8 +322,9 @@ func summaryWarnings(r *SimReport, m *model.File) []string {
 // model, for the rows the key figures show (HDD, CDD and the coldest day,
 // heating figures not of warm periods nor cooling ones of cold periods).
 // Each check is made on every such row, so a warning needs evidence that
-// survives the number of rows k checked: a resampling p-value below 0.05/k
-// (Bonferroni) for a mean or sd outside the model's band, and, for seasons
+// survives the number of checks, two on each of k rows: a resampling
+// p-value below 0.05/(2k) (Bonferroni) for a mean or sd outside the model's
+// band, and, for seasons
 // beyond every one of m simulated years, a chance Σ n/(n + m) over the rows
 // below 5 % (under the model the worst of n seasons lies beyond all m paths
 // with probability n/(n + m), by exchangeability). The bands allow for the
@@ -333,8 +342,9 @@ func recordWarnings(h *stress.HistoricalSeasons, units model.Units) []string {
 	if len(rows) == 0 {
 		return nil
 	}
-	k := float64(len(rows))
-	level := 0.05 / k
+	// Two checks a row (mean and sd): the level is 0.05 over both.
+	checks := 2 * len(rows)
+	level := 0.05 / float64(checks)
 	var warns, sds, means []string
 	for _, row := range rows {
 		unit := row.Index.Info().Unit(units, "")
@@ -354,7 +364,7 @@ func recordWarnings(h *stress.HistoricalSeasons, units model.Units) []string {
 				Glue, unit, len(row.Values), row.MeanVerdict, pText(row.MeanP)))
 		}
 	}
-	checked := fmt.Sprintf("p below 0.05/%d, %d rows checked", len(rows), len(rows))
+	checked := fmt.Sprintf("p below 0.05/%d, %d checks on %d rows", checks, checks, len(rows))
 	if len(sds) > 0 {
 		warns = append(warns, "the record's sd lies outside the model's band ("+checked+") for "+strings.Join(sds, "; "))
 	}

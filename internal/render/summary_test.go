@@ -114,8 +114,8 @@ func TestCapacityWords(t *testing.T) {
 }
 
 // TestRecordWarnings: the summary warns of a record mean outside the
-// model's band only when its resampling p-value is below 0.05/k for the k
-// rows checked (Bonferroni), and of record seasons beyond every simulated
+// model's band only when its resampling p-value is below 0.05/(2k) for the
+// two checks on each of k rows (Bonferroni), and of record seasons beyond every simulated
 // year only when Σ n/(n + m) over those rows, the chance that a right model
 // shows one, is below 5 %.
 func TestRecordWarnings(t *testing.T) {
@@ -127,7 +127,7 @@ func TestRecordWarnings(t *testing.T) {
 	h := &stress.HistoricalSeasons{Paths: 10000, Rows: []stress.HistoryRow{coldest, cdd}}
 	got := strings.Join(recordWarnings(h, model.Celsius), "\n")
 	for _, want := range []string{
-		"the model is off in level: the record's mean lies outside its band (p below 0.05/2, 2 rows checked) " +
+		"the model is off in level: the record's mean lies outside its band (p below 0.05/4, 4 checks on 2 rows) " +
 			"for coldest day, year -2.4" + Glue + "°C against -2.0 to 0.6" + Glue + "°C over 4 seasons (model too mild, p 0.004)",
 		"beyond all 10,000 simulated years",
 		"CDD, year 2019 (621.6" + Glue + "°C·day)",
@@ -137,10 +137,11 @@ func TestRecordWarnings(t *testing.T) {
 			t.Errorf("warnings lack %q:\n%s", want, got)
 		}
 	}
-	// p 0.04 is below 0.05 but not below 0.05/2.
-	h.Rows[0].MeanP = 0.04
+	// p 0.02 is below 0.05 but not below 0.05/4 (a mean and an sd on each
+	// of two rows).
+	h.Rows[0].MeanP = 0.02
 	if got := strings.Join(recordWarnings(h, model.Celsius), "\n"); strings.Contains(got, "off in level") {
-		t.Errorf("warned of level at p 0.04 over two rows:\n%s", got)
+		t.Errorf("warned of level at p 0.02 over four checks:\n%s", got)
 	}
 	h.Paths = 1000 // 4/1004 + 71/1071 = 7.0 %: a right model shows that too often to say
 	if got := strings.Join(recordWarnings(h, model.Celsius), "\n"); strings.Contains(got, "beyond all") {
