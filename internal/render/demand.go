@@ -176,8 +176,8 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 	e.printf("\nChange-point form: %s\n%s\n", m.Form, Wrap("  "+m.FormRule, "  "))
 	search := "  "
 	if dg := m.Diagnostics; dg != nil {
-		search = fmt.Sprintf("  balance points searched from %.1f to %.1f %s (5th to 95th percentile of temperature) in %.1f° steps; ",
-			dg.SearchRange[0], dg.SearchRange[1], u, dg.SearchStep)
+		search = fmt.Sprintf("  balance points searched from %.1f to %.1f %s (5th to 95th percentile of temperature) in %.1f %s steps; ",
+			dg.SearchRange[0], dg.SearchRange[1], u, dg.SearchStep, u)
 	}
 	e.printf("%s\n", Wrap(search+"each form at its best grid point; BIC counts each balance point as a parameter (lower is better)", "  "))
 	best := math.Inf(1)
@@ -195,7 +195,7 @@ func writeDemandForms(e *errWriter, m *model.Demand, u string) {
 		}
 		sl := make([]string, len(s.Slopes))
 		for i, v := range s.Slopes {
-			sl[i] = fmt.Sprintf("%.4g", v)
+			sl[i] = Num(v, 1) // thousands separated, as the coefficients below
 		}
 		var note []string
 		if s.Chosen {
