@@ -227,44 +227,14 @@ func duplicateKey(b []byte) string {
 }
 
 // unknownKeyPath finds the dotted path of the unknown key k in b (the
-// decoder names only the key): the first object member named k whose path
-// is not a known one. It returns k when it cannot tell.
+// decoder names only the key): the first object member named k, in sorted
+// order. It returns k when it cannot tell.
 func unknownKeyPath(b []byte, k string) string {
 	var raw any
 	if json.Unmarshal(b, &raw) != nil {
 		return k
 	}
-	var find func(v any, path string) string
-	find = func(v any, path string) string {
-		switch v := v.(type) {
-		case map[string]any:
-			keys := make([]string, 0, len(v))
-			for key := range v {
-				keys = append(keys, key)
-			}
-			slices.Sort(keys)
-			for _, key := range keys {
-				p := key
-				if path != "" {
-					p = path + "." + key
-				}
-				if key == k {
-					return p
-				}
-				if f := find(v[key], p); f != "" {
-					return f
-				}
-			}
-		case []any:
-			for i, e := range v {
-				if f := find(e, fmt.Sprintf("%s[%d]", path, i)); f != "" {
-					return f
-				}
-			}
-		}
-		return ""
-	}
-	if p := find(raw, ""); p != "" {
+	if p := firstKey(raw, "", func(key string) bool { return key == k }); p != "" {
 		return p
 	}
 	return k
@@ -273,6 +243,12 @@ func unknownKeyPath(b []byte, k string) string {
 // upperKey returns the dotted path of the first key (in sorted order) with
 // an upper-case letter in v, or "".
 func upperKey(v any, path string) string {
+	return firstKey(v, path, func(k string) bool { return strings.ToLower(k) != k })
+}
+
+// firstKey returns the dotted path of the first key (in sorted order, depth
+// first) of the decoded JSON value v for which match holds, or "".
+func firstKey(v any, path string, match func(key string) bool) string {
 	switch v := v.(type) {
 	case map[string]any:
 		keys := make([]string, 0, len(v))
@@ -285,17 +261,17 @@ func upperKey(v any, path string) string {
 			if path != "" {
 				p = path + "." + k
 			}
-			if strings.ToLower(k) != k {
+			if match(k) {
 				return p
 			}
-			if bad := upperKey(v[k], p); bad != "" {
-				return bad
+			if found := firstKey(v[k], p, match); found != "" {
+				return found
 			}
 		}
 	case []any:
 		for i, e := range v {
-			if bad := upperKey(e, fmt.Sprintf("%s[%d]", path, i)); bad != "" {
-				return bad
+			if found := firstKey(e, fmt.Sprintf("%s[%d]", path, i), match); found != "" {
+				return found
 			}
 		}
 	}

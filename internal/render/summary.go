@@ -29,8 +29,15 @@ func occurs(r sim.Row, rows []sim.Row) bool {
 	if rare(r.Tail) {
 		return false
 	}
-	cold, warm := sim.Season(rows, r.Period)
-	switch r.Index {
+	return fitsSeason(r.Index, rows, r.Period)
+}
+
+// fitsSeason reports whether index x means something in a period of the
+// kind rows give it (sim.Season): heating figures (HDD, the coldest day)
+// not in a warm period, cooling figures (CDD) not in a cold one.
+func fitsSeason(x sim.Index, rows []sim.Row, period string) bool {
+	cold, warm := sim.Season(rows, period)
+	switch x {
 	case sim.HDD, sim.Coldest:
 		return !warm
 	case sim.CDD:
@@ -406,14 +413,7 @@ func historyOccurs(row stress.HistoryRow, rows []stress.HistoryRow) bool {
 			simRows = append(simRows, sim.Row{Index: r.Index, Period: r.Period, Tail: sim.Tail{Mean: r.ModelMean}})
 		}
 	}
-	cold, warm := sim.Season(simRows, row.Period)
-	switch row.Index {
-	case sim.HDD, sim.Coldest:
-		return !warm
-	case sim.CDD:
-		return !cold
-	}
-	return true
+	return fitsSeason(row.Index, simRows, row.Period)
 }
 
 // pText writes a p-value for a warning: two significant digits, "< 0.001"
