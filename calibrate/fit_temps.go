@@ -137,6 +137,18 @@ func Fit(s *Series, set *Settings) (*Result, error) {
 	if len(obs) < 2*365 {
 		return nil, fmt.Errorf("%s: %w: %d days with values, at least 730 needed", s.Name, ErrFit, len(obs))
 	}
+	// The day-to-day persistence is fitted on consecutive days: a record
+	// observed every other day has none.
+	pairs := 0
+	for i := 1; i < len(obs); i++ {
+		if obs[i] == obs[i-1]+1 {
+			pairs++
+		}
+	}
+	if pairs < minPairs {
+		return nil, fmt.Errorf("%s: %w: only %d pairs of consecutive days with values, at least %d needed: the day-to-day "+
+			"persistence is fitted on consecutive days", s.Name, ErrFit, pairs, minPairs)
+	}
 	if lo, hi := minMaxObserved(s.Temps); lo == hi {
 		return nil, fmt.Errorf("%s: %w: every value is %v: a record without day-to-day variation has no climate to fit", s.Name, ErrFit, lo)
 	}
@@ -803,6 +815,10 @@ func fitCLS(s *Series, x []float64, set *Settings, f *model.File, d *model.Diagn
 	}
 	return nil
 }
+
+// minPairs is the fewest pairs of consecutive observed days a fit takes:
+// a year's worth, for the AR part and the harmonics' prewhitening.
+const minPairs = 365
 
 // Below SlowShortYears years, or SlowShortSpans e-folding times, of record a
 // kept slow part is poorly determined, and the fit says so.
