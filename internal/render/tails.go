@@ -663,8 +663,10 @@ func GrowthLine(m Manifest) string {
 func SimTables(w io.Writer, r *SimReport) error {
 	e := &errWriter{w: w}
 	m := r.Manifest
-	e.printf("%s synthetic years for %d (%s start), seed %d; bases: HDD %g °%s, CDD %g °%s, cold day below %g °%s\n",
-		numfmt.Number(float64(m.Paths)), m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units, m.ColdBelow, m.Units)
+	// Worded as the summary's run line.
+	e.printf("%s\n", Wrap(fmt.Sprintf("%s synthetic years of %d (%s start, seed %d); bases: HDD %g °%s, CDD %g °%s, cold day "+
+		"below %g °%s", numfmt.Number(float64(m.Paths)), m.Year, m.Start, m.Seed, m.HDDBase, m.Units, m.CDDBase, m.Units,
+		m.ColdBelow, m.Units), "  "))
 	if g := GrowthLine(m); g != "" {
 		e.printf("%s\n", g)
 	}
