@@ -1131,3 +1131,24 @@ func TestHolidaysAreAnInput(t *testing.T) {
 	}
 	t.Errorf("manifest inputs %+v lack the holiday list", j.Manifest.Inputs)
 }
+
+// TestReturnLevelBeyondThePaths: with 50 paths the listed 1-in-50 and
+// 1-in-100 levels lie between the two most extreme simulated years (type 4:
+// N(1 − 1/T) ≥ N − 1), and the detailed tables say so; with 200 paths no
+// listed T (at most 100) reaches the paths, and nothing is said.
+func TestReturnLevelBeyondThePaths(t *testing.T) {
+	t.Parallel()
+	m := demoModel(t)
+	for _, c := range []struct {
+		paths string
+		want  bool
+	}{{"50", true}, {"200", false}} {
+		code, out, stderr := call(t, context.Background(), "simulate", "--model", m, "--paths", c.paths, "--detail")
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, stderr)
+		}
+		if got := strings.Contains(out, "lies, with "+c.paths+" paths, between the two most extreme"); got != c.want {
+			t.Errorf("%s paths: note %v, want %v", c.paths, got, c.want)
+		}
+	}
+}

@@ -708,8 +708,27 @@ func SimTables(w io.Writer, r *SimReport) error {
 	}
 	e.printf("\nVaR and ES are on the adverse side (ES = mean of the worst 5%% or 1%% of years); 1-in-T is the level\n" +
 		"passed on the adverse side once in T years on average. Quantiles: Hyndman–Fan type 4.\n")
+	if T := longestReturnPeriod(r.Rows); T >= float64(r.Manifest.Paths) {
+		// N(1 − 1/T) ≥ N − 1: the type-4 quantile lies between the two
+		// most extreme paths, whatever T.
+		e.printf("%s\n", Wrap(fmt.Sprintf("A 1-in-T level with T of %s years or more lies, with %s paths, between the two "+
+			"most extreme simulated years: it says nothing of the tail beyond them; run more paths (--paths).",
+			numfmt.Number(float64(r.Manifest.Paths)), numfmt.Number(float64(r.Manifest.Paths))), "  "))
+	}
 	e.printf("%s\n", Caution)
 	return e.err
+}
+
+// longestReturnPeriod is the largest T the rows' tail tables list (0
+// without any).
+func longestReturnPeriod(rows []sim.Row) float64 {
+	T := 0.0
+	for _, r := range rows {
+		for _, t := range r.Tail.ReturnPeriods {
+			T = max(T, t)
+		}
+	}
+	return T
 }
 
 // writeTailTable writes one table: statistics down, the rows' indices across.
