@@ -94,7 +94,13 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 	mf := r.Manifest
 	periods := make([]string, len(mf.Periods))
 	for i, p := range mf.Periods {
-		periods[i] = p + r.periodSpan(p)
+		periods[i] = p
+		if span := r.periodSpan(p); span != "" {
+			// Each date kept whole when the line wraps ("31 Mar 2030",
+			// not "31 Mar" / "2030").
+			from, to, _ := strings.Cut(strings.TrimSuffix(strings.TrimPrefix(span, " ("), ")"), " to ")
+			periods[i] += " (" + strings.ReplaceAll(from, " ", Glue) + " to " + strings.ReplaceAll(to, " ", Glue) + ")"
+		}
 	}
 	bases := fmt.Sprintf("HDD and CDD base %g °%s", mf.HDDBase, mf.Units)
 	if mf.HDDBase != mf.CDDBase {
