@@ -219,7 +219,12 @@ func NewSummary(r *SimReport, m *model.File) *Summary {
 		if math.IsNaN(c.SE) {
 			unbounded = " (too few paths beyond it to bound its Monte Carlo error: run more)"
 		}
-		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s%s", capacityWords(c.Target), c.Period,
+		period := c.Period
+		if len(r.Capacities) > 1 && c.Period != planning {
+			// Not the design day's period: the one that needs the most.
+			period += ", the period that binds"
+		}
+		sm.Notes = append(sm.Notes, fmt.Sprintf("Capacity %s, %s: %s%s%s", capacityWords(c.Target), period,
 			cell2(c.Capacity, c.SE), peakUnit, unbounded))
 	}
 	if h := r.Hedge; h != nil {
